@@ -1,0 +1,170 @@
+package shapefile
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/paulmach/orb"
+)
+
+// ringInfo is one usable ring of a record with what assembly needs.
+type ringInfo struct {
+	index int // position among the record's parts, for messages and order
+	ring  orb.Ring
+	area  float64 // signed; negative = clockwise (y up)
+	bound orb.Bound
+}
+
+// assemble turns the parts of one polygon record into polygons by the rule of
+// the Technical Description ("Polygon" shape type): a ring whose interior is
+// on the right when walking it (clockwise) is an outer ring, a
+// counter-clockwise ring is a hole. Each hole goes to the smallest outer ring
+// that contains it. A hole no outer ring contains becomes an outer ring of
+// its own, and a ring that cannot bound an area (fewer than 4 points once
+// closed, or zero area) is dropped; both are reported in the returned
+// messages. Output rings follow RFC 7946 §3.1.6: outer rings
+// counter-clockwise, holes clockwise, i.e. each stored ring reversed.
+func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
+	var warns []string
+	var outers, holes []ringInfo
+	for k, r := range parts {
+		n := len(r)
+		closed := n > 0 && r[0] == r[n-1]
+		eff := n
+		if !closed {
+			eff++
+		}
+		if eff < 4 {
+			warns = append(warns, fmt.Sprintf("ring %d has %d points (a closed ring needs at least 4): dropped", k, n))
+			continue
+		}
+		if !closed {
+			r = append(r, r[0]) // copies: parts carry a capped capacity
+			warns = append(warns, fmt.Sprintf("ring %d is not closed (first point differs from last): closed it", k))
+		}
+		a := signedArea(r)
+		if a == 0 {
+			warns = append(warns, fmt.Sprintf("ring %d has zero area: dropped", k))
+			continue
+		}
+		ri := ringInfo{index: k, ring: r, area: a, bound: r.Bound()}
+		if a < 0 {
+			outers = append(outers, ri)
+		} else {
+			holes = append(holes, ri)
+		}
+	}
+	if len(outers) == 0 && len(holes) == 0 {
+		return nil, warns
+	}
+
+	owner := make([]int, len(holes)) // index into outers, -1 = none
+	for h := range holes {
+		owner[h] = -1
+		best := math.Inf(1)
+		for o := range outers {
+			if -outers[o].area >= best || !boundWithin(holes[h].bound, outers[o].bound) {
+				continue
+			}
+			if ringInside(holes[h].ring, outers[o].ring) {
+				owner[h], best = o, -outers[o].area
+			}
+		}
+	}
+
+	type poly struct {
+		index int
+		rings []orb.Ring
+	}
+	polys := make([]poly, 0, len(outers))
+	for _, o := range outers {
+		polys = append(polys, poly{o.index, []orb.Ring{reversed(o.ring)}})
+	}
+	for h, hi := range holes {
+		if owner[h] >= 0 {
+			polys[owner[h]].rings = append(polys[owner[h]].rings, reversed(hi.ring))
+			continue
+		}
+		warns = append(warns, fmt.Sprintf("ring %d is a hole (counter-clockwise) that no outer ring contains: kept as an outer ring", hi.index))
+		polys = append(polys, poly{hi.index, []orb.Ring{hi.ring}}) // already counter-clockwise
+	}
+	slices.SortStableFunc(polys, func(a, b poly) int { return a.index - b.index })
+	mp := make(orb.MultiPolygon, len(polys))
+	for i, p := range polys {
+		mp[i] = orb.Polygon(p.rings)
+	}
+	return mp, warns
+}
+
+// signedArea is the shoelace area, positive for counter-clockwise rings with
+// y up. Coordinates are taken relative to the first vertex so that large
+// offsets (projected metres) do not swamp the products.
+func signedArea(r orb.Ring) float64 {
+	x0, y0 := r[0][0], r[0][1]
+	var s float64
+	for i := 1; i+1 < len(r); i++ {
+		s += (r[i][0]-x0)*(r[i+1][1]-y0) - (r[i+1][0]-x0)*(r[i][1]-y0)
+	}
+	return s / 2
+}
+
+func boundWithin(in, out orb.Bound) bool {
+	return in.Min[0] >= out.Min[0] && in.Min[1] >= out.Min[1] && in.Max[0] <= out.Max[0] && in.Max[1] <= out.Max[1]
+}
+
+// ringInside reports whether ring h lies inside ring o, deciding on the first
+// vertex (then edge midpoint) of h that is not on o's boundary. A ring lying
+// wholly on o's boundary counts as inside.
+func ringInside(h, o orb.Ring) bool {
+	for i := 0; i+1 < len(h); i++ {
+		if c := classify(h[i], o); c != onBoundary {
+			return c == inside
+		}
+	}
+	for i := 0; i+1 < len(h); i++ {
+		m := orb.Point{(h[i][0] + h[i+1][0]) / 2, (h[i][1] + h[i+1][1]) / 2}
+		if c := classify(m, o); c != onBoundary {
+			return c == inside
+		}
+	}
+	return true
+}
+
+const (
+	outside = iota
+	inside
+	onBoundary
+)
+
+// classify locates p against the closed ring r by crossing number (even-odd
+// rule), with an exact test for p lying on an edge.
+func classify(p orb.Point, r orb.Ring) int {
+	in := false
+	px, py := p[0], p[1]
+	for i := 0; i+1 < len(r); i++ {
+		ax, ay := r[i][0], r[i][1]
+		bx, by := r[i+1][0], r[i+1][1]
+		if (ax-px)*(by-py)-(bx-px)*(ay-py) == 0 &&
+			px >= math.Min(ax, bx) && px <= math.Max(ax, bx) &&
+			py >= math.Min(ay, by) && py <= math.Max(ay, by) {
+			return onBoundary
+		}
+		if (ay > py) != (by > py) {
+			if px < ax+(py-ay)*(bx-ax)/(by-ay) {
+				in = !in
+			}
+		}
+	}
+	if in {
+		return inside
+	}
+	return outside
+}
+
+// reversed reverses r in place (the record's point slice is ours) and
+// returns it.
+func reversed(r orb.Ring) orb.Ring {
+	slices.Reverse(r)
+	return r
+}
