@@ -1,0 +1,311 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"net"
+	"net/http"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/stipple-maps/stipple/cmd/stipple/build"
+	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
+	"github.com/stipple-maps/stipple/geo/demo"
+	"github.com/stipple-maps/stipple/geo/geojson"
+	"github.com/stipple-maps/stipple/render"
+)
+
+// usageError marks a wrong command line (exit code 2).
+type usageError struct{ msg string }
+
+func (e usageError) Error() string { return e.msg }
+
+const usage = `stipple turns people counted per area into dot-density maps.
+
+  stipple render MAP.toml [flags]   render the map a map file describes
+  stipple demo [DIR]                render the built-in invented city into DIR (default stipple-demo)
+  stipple serve DIR [--port 8080]   serve a rendered folder on 127.0.0.1 for a quick look
+  stipple version                   print the version
+
+Run "stipple render -h" for the flags that override a map file.
+`
+
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+	err := dispatch(ctx, args, stdout, stderr)
+	if err == nil {
+		return 0
+	}
+	var ue usageError
+	switch {
+	case errors.Is(err, flag.ErrHelp):
+		return 0
+	case errors.As(err, &ue):
+		fmt.Fprintln(stderr, "stipple: "+ue.msg)
+		fmt.Fprint(stderr, "\n"+usage)
+		return 2
+	case errors.Is(err, context.Canceled):
+		fmt.Fprintln(stderr, "stipple: interrupted; rerun the same command to finish")
+		return 130
+	default:
+		fmt.Fprintln(stderr, "stipple: "+oneLine(err.Error()))
+		return 1
+	}
+}
+
+func oneLine(s string) string { return strings.ReplaceAll(s, "\n", " ") }
+
+func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	if len(args) == 0 {
+		return usageError{"no command given"}
+	}
+	switch args[0] {
+	case "render":
+		return cmdRender(ctx, args[1:], stdout, stderr)
+	case "demo":
+		return cmdDemo(ctx, args[1:], stdout, stderr)
+	case "serve":
+		return cmdServe(ctx, args[1:], stdout, stderr)
+	case "version":
+		fmt.Fprintln(stdout, "stipple", build.Version)
+		return nil
+	case "help", "-h", "--help":
+		fmt.Fprint(stdout, usage)
+		return nil
+	default:
+		return usageError{fmt.Sprintf("unknown command %q", args[0])}
+	}
+}
+
+// overrides are the flags that replace map-file values.
+type overrides struct {
+	out                        string
+	seed                       int64
+	perDot                     float64
+	minZoom, maxZoom, tileSize int
+	workers                    int
+}
+
+func (o *overrides) register(fs *flag.FlagSet) {
+	fs.StringVar(&o.out, "out", "", "output folder (overrides out)")
+	fs.Int64Var(&o.seed, "seed", -1, "random seed (overrides seed)")
+	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot (overrides people_per_dot)")
+	fs.IntVar(&o.minZoom, "min-zoom", -1, "lowest zoom (overrides tiles.min_zoom)")
+	fs.IntVar(&o.maxZoom, "max-zoom", -1, "deepest zoom (overrides tiles.max_zoom)")
+	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 (overrides tiles.size)")
+	fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+}
+
+func (o *overrides) apply(m *mapfile.Map) error {
+	if o.out != "" {
+		m.Out = o.out
+	} else {
+		m.Out = m.Resolve(m.Out)
+	}
+	if o.seed >= 0 {
+		m.Seed = uint64(o.seed)
+	}
+	if o.perDot < 0 {
+		return usageError{"--per-dot must be positive"}
+	}
+	if o.perDot > 0 {
+		m.PeoplePerDot = o.perDot
+	}
+	if o.minZoom >= 0 {
+		m.Tiles.MinZoom = o.minZoom
+	}
+	if o.maxZoom >= 0 {
+		m.Tiles.MaxZoom = o.maxZoom
+	}
+	if o.tileSize != 0 {
+		m.Tiles.Size = o.tileSize
+	}
+	if err := m.CheckZooms(); err != nil {
+		return usageError{err.Error()}
+	}
+	return nil
+}
+
+// parse parses flags that may come before or after the positional arguments.
+func parse(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, err
+			}
+			return nil, usageError{err.Error()}
+		}
+		args = fs.Args()
+		if len(args) == 0 {
+			return pos, nil
+		}
+		pos = append(pos, args[0])
+		args = args[1:]
+	}
+}
+
+func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("render", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	var o overrides
+	o.register(fs)
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usageError{"render takes one map file"}
+	}
+	m, err := mapfile.Read(pos[0])
+	if err != nil {
+		return err
+	}
+	if err := o.apply(m); err != nil {
+		return err
+	}
+	return renderMap(ctx, m, o.workers, nil, stdout)
+}
+
+func renderMap(ctx context.Context, m *mapfile.Map, workers int, layer any, stdout io.Writer) error {
+	s, err := build.Run(ctx, m, build.Options{Workers: workers, Log: stdout})
+	if err != nil {
+		return err
+	}
+	printSummary(stdout, s)
+	return nil
+}
+
+func printSummary(w io.Writer, s *build.Summary) {
+	md := s.Metadata
+	fmt.Fprintf(w, "\n%s\n", md.Title)
+	for _, c := range md.Categories {
+		fmt.Fprintf(w, "  %-24s %12s people  %10d dots (expected %.1f)\n", c.Label, render.FormatCount(c.People), c.DotsDrawn, c.DotsExpected)
+	}
+	fmt.Fprintf(w, "  %s; seed %d\n", md.Note, md.Seed)
+	if s.NotDrawn > 0 {
+		fmt.Fprintf(w, "  not drawn: %s people in %d areas:\n", render.FormatCount(s.NotDrawn), len(s.Problems))
+		for i, p := range s.Problems {
+			if i == 10 {
+				fmt.Fprintf(w, "    … and %d more (see map.json)\n", len(s.Problems)-10)
+				break
+			}
+			fmt.Fprintf(w, "    %s\n", p)
+		}
+	} else {
+		fmt.Fprintln(w, "  not drawn: 0 people")
+	}
+	fmt.Fprintf(w, "  %d tiles, %.1f MB, zooms %d–%d, in %s\n", s.Tiles.Tiles, float64(s.Tiles.Bytes)/1e6, md.MinZoom, md.MaxZoom, s.Elapsed.Round(time.Millisecond))
+	fmt.Fprintf(w, "  open %s in a browser, or: stipple serve %s\n", filepath.Join(s.OutputDir, "index.html"), s.OutputDir)
+}
+
+func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	var o overrides
+	o.register(fs)
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	dir := "stipple-demo"
+	if len(pos) > 1 {
+		return usageError{"demo takes at most one folder"}
+	}
+	if len(pos) == 1 {
+		dir = pos[0]
+	}
+	m, err := WriteDemoSource(dir)
+	if err != nil {
+		return err
+	}
+	if o.out == "" {
+		o.out = dir
+	}
+	if err := o.apply(m); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "demo: Quillmere is an invented city; its areas, groups and counts are made up (source in %s)\n", filepath.Join(dir, "source"))
+	return renderMap(ctx, m, o.workers, nil, stdout)
+}
+
+// DemoMap is the built-in demo's map file.
+const DemoMap = `# Quillmere: an invented harbour city. Every area, group and number here
+# is made up by stipple's demo generator; none of it describes real people.
+title = "Home languages of Quillmere (invented demo)"
+credit = "Invented data made by stipple's demo generator; not a real place."
+people_per_dot = 10
+seed = 1
+out = ".."
+
+[input]
+file = "quillmere.geojson"
+id = "code"
+
+[tiles]
+min_zoom = 9
+max_zoom = 15
+size = 256
+
+[dots]
+diameter = 3.2
+min_diameter = 0.7
+opacity = 0.9
+
+# Colours: Okabe & Ito (2008), "Color Universal Design", colour-blind safe.
+`
+
+// WriteDemoSource writes the demo's GeoJSON and map file under dir/source
+// and returns the parsed map.
+func WriteDemoSource(dir string) (*mapfile.Map, error) {
+	src := filepath.Join(dir, "source")
+	if err := os.MkdirAll(src, 0o755); err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	if err := geojson.Write(filepath.Join(src, "quillmere.geojson"), demo.City(1)); err != nil {
+		return nil, err
+	}
+	var b strings.Builder
+	b.WriteString(DemoMap)
+	for _, g := range demo.Groups {
+		fmt.Fprintf(&b, "\n[[category]]\nkey = %q\nlabel = %q\ncolor = %q\nfields = [%q]\n", g.Field, g.Label, g.Color, g.Field)
+	}
+	path := filepath.Join(src, "quillmere.toml")
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	return mapfile.Read(path)
+}
+
+func cmdServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	port := fs.Int("port", 8080, "port on 127.0.0.1")
+	host := fs.String("host", "127.0.0.1", "address to bind; the default keeps the map on this machine")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usageError{"serve takes one folder"}
+	}
+	dir := pos[0]
+	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+		return fmt.Errorf("serve: %s is not a folder", dir)
+	}
+	ln, err := net.Listen("tcp", net.JoinHostPort(*host, fmt.Sprint(*port)))
+	if err != nil {
+		return fmt.Errorf("serve: %w", err)
+	}
+	srv := &http.Server{Handler: http.FileServer(http.Dir(dir)), ReadHeaderTimeout: 10 * time.Second}
+	fmt.Fprintf(stdout, "serving %s at http://%s/ (Ctrl-C to stop)\n", dir, ln.Addr())
+	go func() { <-ctx.Done(); srv.Close() }()
+	if err := srv.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return fmt.Errorf("serve: %w", err)
+	}
+	return nil
+}

@@ -1,0 +1,239 @@
+package geojson
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"slices"
+	"strconv"
+
+	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
+)
+
+// Options control how a file is read.
+type Options struct {
+	// IDField names the property that becomes Feature.ID. When empty, the
+	// feature's "id" member is used, and failing that its 0-based index.
+	IDField string
+	// MaxBytes caps the file size; 0 means 4 GiB.
+	MaxBytes int64
+}
+
+// Read reads the FeatureCollection in the file at path.
+func Read(path string, opt Options) (*geo.Layer, error) {
+	st, err := os.Stat(path)
+	if err != nil {
+		return nil, fmt.Errorf("geojson: %w", err)
+	}
+	max := opt.MaxBytes
+	if max == 0 {
+		max = 4 << 30
+	}
+	if st.Size() > max {
+		return nil, fmt.Errorf("geojson: %s: file is %d bytes, over the %d byte limit", path, st.Size(), max)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("geojson: %w", err)
+	}
+	return Decode(path, data, opt)
+}
+
+type rawCollection struct {
+	Type     string            `json:"type"`
+	Features []json.RawMessage `json:"features"`
+}
+
+type rawFeature struct {
+	Type       string                     `json:"type"`
+	ID         json.RawMessage            `json:"id"`
+	Geometry   *rawGeometry               `json:"geometry"`
+	Properties map[string]json.RawMessage `json:"properties"`
+}
+
+type rawGeometry struct {
+	Type        string          `json:"type"`
+	Coordinates json.RawMessage `json:"coordinates"`
+}
+
+// Decode parses GeoJSON bytes; path is used only in error messages.
+func Decode(path string, data []byte, opt Options) (*geo.Layer, error) {
+	var fc rawCollection
+	if err := json.Unmarshal(data, &fc); err != nil {
+		return nil, fmt.Errorf("geojson: %s: %s", path, describeJSONError(data, err))
+	}
+	if fc.Type != "FeatureCollection" {
+		if fc.Type == "" {
+			return nil, fmt.Errorf("geojson: %s: member \"type\" is missing; want \"FeatureCollection\"", path)
+		}
+		return nil, fmt.Errorf("geojson: %s: type is %q; want \"FeatureCollection\"", path, fc.Type)
+	}
+	layer := &geo.Layer{Path: path, Features: make([]geo.Feature, 0, len(fc.Features))}
+	seenField := map[string]bool{}
+	for i, raw := range fc.Features {
+		var rf rawFeature
+		if err := json.Unmarshal(raw, &rf); err != nil {
+			return nil, &geo.Error{Path: path, Index: i, Message: "geojson: " + err.Error()}
+		}
+		f := geo.Feature{Index: i, Props: make(map[string]any, len(rf.Properties))}
+		for k, v := range rf.Properties {
+			val, err := decodeValue(v)
+			if err != nil {
+				return nil, &geo.Error{Path: path, Index: i, Field: k, Message: "geojson: " + err.Error()}
+			}
+			f.Props[k] = val
+			if !seenField[k] {
+				seenField[k] = true
+				layer.Fields = append(layer.Fields, k)
+			}
+		}
+		f.ID = featureID(&rf, f.Props, opt.IDField, i)
+		if opt.IDField != "" {
+			if _, ok := f.Props[opt.IDField]; !ok {
+				return nil, &geo.Error{Path: path, Index: i, Field: opt.IDField, Message: "id field is missing"}
+			}
+		}
+		if rf.Type != "Feature" {
+			return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "type", Message: fmt.Sprintf("geojson: type is %q; want \"Feature\"", rf.Type)}
+		}
+		if rf.Geometry != nil {
+			g, err := decodeGeometry(rf.Geometry)
+			if err != nil {
+				return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "geometry", Message: "geojson: " + err.Error()}
+			}
+			f.Geometry = g
+		}
+		layer.Features = append(layer.Features, f)
+	}
+	slices.Sort(layer.Fields) // JSON objects have no field order to keep
+	return layer, nil
+}
+
+func featureID(rf *rawFeature, props map[string]any, field string, index int) string {
+	if field != "" {
+		if v, ok := props[field]; ok && v != nil {
+			return geo.Text(v)
+		}
+		return ""
+	}
+	if len(rf.ID) > 0 && string(rf.ID) != "null" {
+		var s string
+		if json.Unmarshal(rf.ID, &s) == nil {
+			return s
+		}
+		return string(bytes.TrimSpace(rf.ID))
+	}
+	return strconv.Itoa(index)
+}
+
+func decodeValue(raw json.RawMessage) (any, error) {
+	d := json.NewDecoder(bytes.NewReader(raw))
+	d.UseNumber()
+	var v any
+	if err := d.Decode(&v); err != nil {
+		return nil, err
+	}
+	if n, ok := v.(json.Number); ok {
+		if i, err := n.Int64(); err == nil {
+			return i, nil
+		}
+		f, err := n.Float64()
+		if err != nil {
+			return nil, fmt.Errorf("number %s is out of range", n)
+		}
+		return f, nil
+	}
+	switch v.(type) {
+	case string, bool, nil:
+		return v, nil
+	}
+	// Arrays and objects are kept as their JSON text: they are never counts.
+	return string(raw), nil
+}
+
+func decodeGeometry(g *rawGeometry) (orb.MultiPolygon, error) {
+	switch g.Type {
+	case "Polygon":
+		var c [][][]float64
+		if err := json.Unmarshal(g.Coordinates, &c); err != nil {
+			return nil, fmt.Errorf("Polygon coordinates: %v", err)
+		}
+		p, err := polygon(c)
+		if err != nil {
+			return nil, err
+		}
+		return orb.MultiPolygon{p}, nil
+	case "MultiPolygon":
+		var c [][][][]float64
+		if err := json.Unmarshal(g.Coordinates, &c); err != nil {
+			return nil, fmt.Errorf("MultiPolygon coordinates: %v", err)
+		}
+		mp := make(orb.MultiPolygon, 0, len(c))
+		for i, pc := range c {
+			p, err := polygon(pc)
+			if err != nil {
+				return nil, fmt.Errorf("part %d: %v", i, err)
+			}
+			mp = append(mp, p)
+		}
+		return mp, nil
+	case "":
+		return nil, errors.New("geometry has no type")
+	default:
+		return nil, fmt.Errorf("geometry type %s is not Polygon or MultiPolygon", g.Type)
+	}
+}
+
+func polygon(c [][][]float64) (orb.Polygon, error) {
+	p := make(orb.Polygon, 0, len(c))
+	for ri, rc := range c {
+		r := make(orb.Ring, 0, len(rc)+1)
+		for pi, pos := range rc {
+			if len(pos) < 2 {
+				return nil, fmt.Errorf("ring %d position %d has %d values; want at least 2", ri, pi, len(pos))
+			}
+			x, y := pos[0], pos[1]
+			if math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) {
+				return nil, fmt.Errorf("ring %d position %d is not finite", ri, pi)
+			}
+			r = append(r, orb.Point{x, y})
+		}
+		if len(r) > 0 && r[0] != r[len(r)-1] {
+			r = append(r, r[0]) // close an unclosed ring
+		}
+		p = append(p, r)
+	}
+	return p, nil
+}
+
+// describeJSONError turns a decoding error into "line L, column C: message".
+func describeJSONError(data []byte, err error) string {
+	var off int64 = -1
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		off = se.Offset
+	case errors.As(err, &te):
+		off = te.Offset
+		return fmt.Sprintf("%s: %s is %s; want %s", where(data, off), te.Field, te.Value, te.Type)
+	}
+	if off < 0 {
+		return "malformed JSON: " + err.Error()
+	}
+	return fmt.Sprintf("%s: malformed JSON: %v", where(data, off), err)
+}
+
+func where(data []byte, off int64) string {
+	if off > int64(len(data)) {
+		off = int64(len(data))
+	}
+	line := 1 + bytes.Count(data[:off], []byte{'\n'})
+	col := off - int64(bytes.LastIndexByte(data[:off], '\n'))
+	return fmt.Sprintf("line %d, column %d", line, col)
+}
+

@@ -1,0 +1,153 @@
+package render
+
+import (
+	"image"
+	"image/color"
+	"math"
+)
+
+// One is the fixed-point weight of a pixel fully covered by one opaque dot.
+// Coverage is summed in integers so that addition order cannot change a
+// pixel: the same dots give the same bytes in any order.
+const One = 1 << 12
+
+// Canvas accumulates per-category coverage for one image.
+type Canvas struct {
+	W, H int
+	// NCat is the number of categories.
+	NCat int
+	// Cov holds coverage as Cov[(y*W+x)*NCat+cat], in units of One.
+	Cov []uint32
+	// touched is set once any coverage lands.
+	touched bool
+}
+
+// NewCanvas returns an empty w × h canvas for ncat categories.
+func NewCanvas(w, h, ncat int) *Canvas {
+	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat)}
+}
+
+// Reset clears the canvas for reuse.
+func (c *Canvas) Reset() {
+	if c.touched {
+		clear(c.Cov)
+		c.touched = false
+	}
+}
+
+// Empty reports whether no dot has touched the canvas.
+func (c *Canvas) Empty() bool { return !c.touched }
+
+// Dot is the look of a dot at one zoom.
+type Dot struct {
+	// Diameter in pixels.
+	Diameter float64
+	// Opacity from 0 to 1: the share of a pixel's ink one dot gives.
+	Opacity float64
+}
+
+// Add deposits one dot of category cat centred at (x, y).
+//
+// A dot at least a pixel wide is an anti-aliased disc: each pixel gets the
+// share of it the disc covers, estimated from the distance of the pixel
+// centre to the disc's edge (clamp(r + 0.5 − d, 0, 1)). A smaller dot puts
+// its area's worth of ink on the four nearest pixels, split bilinearly, so
+// that low zooms keep the total ink of every dot and read as density.
+func (c *Canvas) Add(cat int, x, y float64, d Dot) {
+	r := d.Diameter / 2
+	if d.Diameter < 1 {
+		c.splat(cat, x-0.5, y-0.5, math.Pi*r*r*d.Opacity)
+		return
+	}
+	ink := d.Opacity * One
+	x0 := int(math.Floor(x - r - 0.5))
+	x1 := int(math.Ceil(x + r + 0.5))
+	y0 := int(math.Floor(y - r - 0.5))
+	y1 := int(math.Ceil(y + r + 0.5))
+	x0, y0 = max(x0, 0), max(y0, 0)
+	x1, y1 = min(x1, c.W), min(y1, c.H)
+	n := c.NCat
+	for py := y0; py < y1; py++ {
+		dy := float64(py) + 0.5 - y
+		row := py * c.W
+		for px := x0; px < x1; px++ {
+			dx := float64(px) + 0.5 - x
+			cov := r + 0.5 - math.Sqrt(dx*dx+dy*dy)
+			if cov <= 0 {
+				continue
+			}
+			if cov > 1 {
+				cov = 1
+			}
+			w := uint32(cov*ink + 0.5)
+			if w == 0 {
+				continue
+			}
+			c.Cov[(row+px)*n+cat] += w
+			c.touched = true
+		}
+	}
+}
+
+// splat spreads mass (in pixels of full ink) bilinearly over the four pixels
+// whose centres surround (x+0.5, y+0.5).
+func (c *Canvas) splat(cat int, x, y, mass float64) {
+	fx, fy := math.Floor(x), math.Floor(y)
+	ix, iy := int(fx), int(fy)
+	ax, ay := x-fx, y-fy
+	m := mass * One
+	w := [4]float64{(1 - ax) * (1 - ay), ax * (1 - ay), (1 - ax) * ay, ax * ay}
+	for i, wi := range w {
+		px, py := ix+i&1, iy+i>>1
+		if px < 0 || py < 0 || px >= c.W || py >= c.H {
+			continue
+		}
+		v := uint32(wi*m + 0.5)
+		if v == 0 {
+			continue
+		}
+		c.Cov[(py*c.W+px)*c.NCat+cat] += v
+		c.touched = true
+	}
+}
+
+// Composite writes the canvas into dst (same size): a pixel's colour is the
+// coverage-weighted mean of its categories' colours, and its alpha is the
+// total coverage, clipped at fully opaque. colors has one entry per category.
+func (c *Canvas) Composite(colors []color.NRGBA, dst *image.NRGBA) {
+	n := c.NCat
+	for py := 0; py < c.H; py++ {
+		row := dst.Pix[py*dst.Stride : py*dst.Stride+4*c.W]
+		cov := c.Cov[py*c.W*n : (py+1)*c.W*n]
+		for px := 0; px < c.W; px++ {
+			cell := cov[px*n : px*n+n]
+			var sum, r, g, b uint64
+			for k, w := range cell {
+				if w == 0 {
+					continue
+				}
+				ww := uint64(w)
+				sum += ww
+				r += ww * uint64(colors[k].R)
+				g += ww * uint64(colors[k].G)
+				b += ww * uint64(colors[k].B)
+			}
+			o := row[4*px : 4*px+4 : 4*px+4]
+			if sum == 0 {
+				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
+				continue
+			}
+			o[0] = uint8((r + sum/2) / sum)
+			o[1] = uint8((g + sum/2) / sum)
+			o[2] = uint8((b + sum/2) / sum)
+			a := sum
+			if a > One {
+				a = One
+			}
+			o[3] = uint8((a*255 + One/2) / One)
+			if o[3] == 0 {
+				o[0], o[1], o[2] = 0, 0, 0
+			}
+		}
+	}
+}

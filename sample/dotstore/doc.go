@@ -1,0 +1,12 @@
+// Package dotstore holds placed dots compactly, in an order that makes every
+// XYZ tile at every zoom one contiguous run.
+//
+// Coordinate space: a dot is kept as integer Web Mercator "world" coordinates
+// of WorldBits bits per axis (x east from 180°W, y south from 85.0511°N; the
+// square world of EPSG:3857 split into 2^29 × 2^29 cells, about 7.5 cm at
+// the equator) and a category number. Both go into one uint64 key: the Morton
+// (Z-order) interleave of x and y in the high 58 bits, the category in the low
+// 6. Sorting the keys sorts the dots along the Z-order curve, and the dots of
+// tile (z, x, y) for any z ≤ WorldBits are exactly the keys whose top 2z bits
+// equal the interleave of the tile's x and y.
+package dotstore

@@ -1,0 +1,97 @@
+package tiles
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+)
+
+// MetadataFile is the name of the metadata file beside the pyramid.
+const MetadataFile = "map.json"
+
+// Metadata describes a written map. The viewer reads it; so can any script.
+// Field names are stipple's own; coordinates are lon/lat degrees.
+type Metadata struct {
+	Format  string `json:"format"` // always "stipple-map/1"
+	Version string `json:"stipple_version"`
+	Title   string `json:"title"`
+	Credit  string `json:"credit"`
+	// Bounds is [west, south, east, north] of the dots (RFC 7946 §5 order).
+	Bounds [4]float64 `json:"bounds"`
+	// Center is [lon, lat, zoom], the start view.
+	Center   [3]float64 `json:"center"`
+	MinZoom  int        `json:"min_zoom"`
+	MaxZoom  int        `json:"max_zoom"`
+	TileSize int        `json:"tile_size"`
+	// Tiles is the tile path template relative to this file.
+	Tiles        string     `json:"tiles"`
+	PeoplePerDot float64    `json:"people_per_dot"`
+	Seed         uint64     `json:"seed"`
+	Note         string     `json:"note"`
+	Caution      string     `json:"caution"`
+	Categories   []Category `json:"categories"`
+	// NotDrawn totals the people that have no dot, and says why.
+	NotDrawn NotDrawn `json:"not_drawn"`
+	// Legend names the legend images written beside this file.
+	Legend []string `json:"legend"`
+	// Stats of the pyramid.
+	TileCount int64         `json:"tile_count"`
+	TileBytes int64         `json:"tile_bytes"`
+	PerZoom   map[int]int64 `json:"tiles_per_zoom"`
+}
+
+// Category is one group as the map shows it.
+type Category struct {
+	Key    string  `json:"key"`
+	Label  string  `json:"label"`
+	Color  string  `json:"color"` // #rrggbb
+	People float64 `json:"people"`
+	// DotsExpected is People / PeoplePerDot; DotsDrawn what was drawn.
+	DotsExpected float64 `json:"dots_expected"`
+	DotsDrawn    int     `json:"dots_drawn"`
+}
+
+// NotDrawn counts people left off the map.
+type NotDrawn struct {
+	People   float64  `json:"people"`
+	Dots     int      `json:"dots"`
+	Features []string `json:"features"` // "id: reason", the first 100
+}
+
+// WriteMetadata writes m as indented JSON to dir/map.json. encoding/json
+// escapes <, > and & in strings, so labels are safe to embed in HTML too.
+func WriteMetadata(dir string, m *Metadata) error {
+	b, err := json.MarshalIndent(m, "", "  ")
+	if err != nil {
+		return fmt.Errorf("tiles: metadata: %w", err)
+	}
+	return writeFile(filepath.Join(dir, MetadataFile), append(b, '\n'))
+}
+
+// ReadMetadata reads dir/map.json.
+func ReadMetadata(dir string) (*Metadata, error) {
+	b, err := os.ReadFile(filepath.Join(dir, MetadataFile))
+	if err != nil {
+		return nil, fmt.Errorf("tiles: %w", err)
+	}
+	var m Metadata
+	if err := json.Unmarshal(b, &m); err != nil {
+		return nil, fmt.Errorf("tiles: %s: %w", filepath.Join(dir, MetadataFile), err)
+	}
+	return &m, nil
+}
+
+func writeFile(path string, data []byte) error {
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	tmp := path + ".tmp"
+	if err := os.WriteFile(tmp, data, 0o644); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	if err := os.Rename(tmp, path); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	return nil
+}
