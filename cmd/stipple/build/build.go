@@ -3,23 +3,17 @@ package build
 import (
 	"context"
 	"fmt"
-	"image"
-	"image/color"
-	"image/png"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"runtime"
-	"sort"
-	"strings"
 	"sync"
 	"time"
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
-	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/sample/dotstore"
@@ -53,43 +47,6 @@ type Summary struct {
 	OutputDir string
 }
 
-// Load reads the map's areas and returns them with their counts per
-// category (counts[i][k] for feature i, category k).
-func Load(m *mapfile.Map, layer *geo.Layer) (*geo.Layer, [][]float64, error) {
-	if layer == nil {
-		path := m.Resolve(m.Input.File)
-		var err error
-		switch strings.ToLower(filepath.Ext(path)) {
-		case ".geojson", ".json":
-			layer, err = geojson.Read(path, geojson.Options{IDField: m.Input.ID})
-		default:
-			return nil, nil, fmt.Errorf("%s: key input.file: %s: unknown file type %q; stipple reads .geojson", m.Path, path, filepath.Ext(path))
-		}
-		if err != nil {
-			return nil, nil, err
-		}
-	}
-	counts := make([][]float64, len(layer.Features))
-	ids := make(map[string]int, len(layer.Features))
-	for i := range layer.Features {
-		f := &layer.Features[i]
-		if j, dup := ids[f.ID]; dup {
-			return nil, nil, &geo.Error{Path: layer.Path, Index: i, ID: f.ID, Field: m.Input.ID,
-				Message: fmt.Sprintf("id is also the id of feature %d; ids must be unique (they seed the dots)", j)}
-		}
-		ids[f.ID] = i
-		counts[i] = make([]float64, len(m.Categories))
-		for k, c := range m.Categories {
-			n, err := geo.Count(layer.Path, f, c.Fields)
-			if err != nil {
-				return nil, nil, err
-			}
-			counts[i][k] = n
-		}
-	}
-	return layer, counts, nil
-}
-
 // Run renders the map m into its output folder.
 func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	start := time.Now()
@@ -120,7 +77,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	}
 	logf("read %d areas from %s", len(layer.Features), layer.Path)
 
-	store, results := place(layer, counts, m, workers)
+	store, results := Place(layer, counts, m, workers)
 	for i, r := range results {
 		lost := 0
 		for k := range r.Dots {
@@ -189,7 +146,10 @@ func Look(m *mapfile.Map) func(z int) render.Dot {
 	}
 }
 
-func place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*dotstore.Store, []sample.Result) {
+// Place samples every feature's dots into a sorted store; results[i] says
+// what happened to feature i's people. The store is the same for any number
+// of workers.
+func Place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*dotstore.Store, []sample.Result) {
 	results := make([]sample.Result, len(layer.Features))
 	keys := make([][]uint64, workers)
 	opt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed}
@@ -222,77 +182,4 @@ func place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*
 	}
 	store.Sort()
 	return store, results
-}
-
-// Metadata describes the finished map.
-func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
-	b := s.Bounds
-	md := &tiles.Metadata{
-		Format: "stipple-map/1", Version: Version, Title: m.Title, Credit: m.Credit,
-		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
-		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
-		Tiles: "{z}/{x}/{y}.png", PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution,
-		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
-	}
-	md.Center = [3]float64{(b.Min[0] + b.Max[0]) / 2, (b.Min[1] + b.Max[1]) / 2, float64(FitZoom(b, 900, 600, m.Tiles.MinZoom, m.Tiles.MaxZoom))}
-	for k, c := range m.Categories {
-		md.Categories = append(md.Categories, tiles.Category{
-			Key: c.Key, Label: c.Label, Color: strings.ToUpper(c.Color), People: s.People[k],
-			DotsExpected: s.People[k] / m.PeoplePerDot, DotsDrawn: s.Dots[k],
-		})
-	}
-	md.NotDrawn.People = s.NotDrawn
-	md.NotDrawn.Dots = int(math.Round(s.NotDrawn / m.PeoplePerDot))
-	md.NotDrawn.Features = s.Problems
-	if len(md.NotDrawn.Features) > 100 {
-		md.NotDrawn.Features = md.NotDrawn.Features[:100]
-	}
-	if md.NotDrawn.Features == nil {
-		md.NotDrawn.Features = []string{}
-	}
-	sort.Strings(md.NotDrawn.Features)
-	return md
-}
-
-// FitZoom is the deepest zoom at which bound b fits a w × h pixel view.
-func FitZoom(b orb.Bound, w, h, minZ, maxZ int) int {
-	for z := maxZ; z > minZ; z-- {
-		nw := dotstoreWorld(b.Min[0], b.Max[1], z)
-		se := dotstoreWorld(b.Max[0], b.Min[1], z)
-		if se[0]-nw[0] <= float64(w) && se[1]-nw[1] <= float64(h) {
-			return z
-		}
-	}
-	return minZ
-}
-
-func dotstoreWorld(lon, lat float64, z int) [2]float64 {
-	x, y := dotstore.World(lon, lat)
-	s := 256 * math.Exp2(float64(z)) / dotstore.WorldSize
-	return [2]float64{float64(x) * s, float64(y) * s}
-}
-
-// LegendOf is the legend for the metadata.
-func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
-	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit}
-	for k, c := range md.Categories {
-		l.Entries = append(l.Entries, render.LegendEntry{Label: c.Label, Color: colors[k], People: c.People, Dots: c.DotsDrawn})
-	}
-	return l
-}
-
-func writePNG(path string, img image.Image) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	if err := png.Encode(f, img); err != nil {
-		f.Close()
-		return fmt.Errorf("output: %s: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	return nil
 }

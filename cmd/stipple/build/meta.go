@@ -1,0 +1,91 @@
+package build
+
+import (
+	"fmt"
+	"image"
+	"image/color"
+	"image/png"
+	"math"
+	"os"
+	"sort"
+	"strings"
+
+	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
+	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles"
+)
+
+// Metadata describes the finished map.
+func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
+	b := s.Bounds
+	md := &tiles.Metadata{
+		Format: "stipple-map/1", Version: Version, Title: m.Title, Credit: m.Credit,
+		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
+		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
+		Tiles: "{z}/{x}/{y}.png", PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
+		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution,
+		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
+	}
+	md.Center = [3]float64{(b.Min[0] + b.Max[0]) / 2, (b.Min[1] + b.Max[1]) / 2, float64(FitZoom(b, 900, 600, m.Tiles.MinZoom, m.Tiles.MaxZoom))}
+	for k, c := range m.Categories {
+		md.Categories = append(md.Categories, tiles.Category{
+			Key: c.Key, Label: c.Label, Color: strings.ToUpper(c.Color), People: s.People[k],
+			DotsExpected: s.People[k] / m.PeoplePerDot, DotsDrawn: s.Dots[k],
+		})
+	}
+	md.NotDrawn.People = s.NotDrawn
+	md.NotDrawn.Dots = int(math.Round(s.NotDrawn / m.PeoplePerDot))
+	md.NotDrawn.Features = s.Problems
+	if len(md.NotDrawn.Features) > 100 {
+		md.NotDrawn.Features = md.NotDrawn.Features[:100]
+	}
+	if md.NotDrawn.Features == nil {
+		md.NotDrawn.Features = []string{}
+	}
+	sort.Strings(md.NotDrawn.Features)
+	return md
+}
+
+// FitZoom is the deepest zoom at which bound b fits a w × h pixel view.
+func FitZoom(b orb.Bound, w, h, minZ, maxZ int) int {
+	for z := maxZ; z > minZ; z-- {
+		nw := dotstoreWorld(b.Min[0], b.Max[1], z)
+		se := dotstoreWorld(b.Max[0], b.Min[1], z)
+		if se[0]-nw[0] <= float64(w) && se[1]-nw[1] <= float64(h) {
+			return z
+		}
+	}
+	return minZ
+}
+
+func dotstoreWorld(lon, lat float64, z int) [2]float64 {
+	x, y := dotstore.World(lon, lat)
+	s := 256 * math.Exp2(float64(z)) / dotstore.WorldSize
+	return [2]float64{float64(x) * s, float64(y) * s}
+}
+
+// LegendOf is the legend for the metadata.
+func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
+	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit}
+	for k, c := range md.Categories {
+		l.Entries = append(l.Entries, render.LegendEntry{Label: c.Label, Color: colors[k], People: c.People, Dots: c.DotsDrawn})
+	}
+	return l
+}
+
+func writePNG(path string, img image.Image) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("output: %w", err)
+	}
+	if err := png.Encode(f, img); err != nil {
+		f.Close()
+		return fmt.Errorf("output: %s: %w", path, err)
+	}
+	if err := f.Close(); err != nil {
+		return fmt.Errorf("output: %w", err)
+	}
+	return nil
+}
