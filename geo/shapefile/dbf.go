@@ -230,6 +230,26 @@ func (t *dbfTable) decodeRecord(rec []byte, props map[string]any, raw []string, 
 	return nil
 }
 
+// fieldText is the text of field k as decodeRecord puts it in raw.
+func (t *dbfTable) fieldText(rec []byte, k int) string {
+	f := t.fields[k]
+	b := rec[f.offset : f.offset+f.length]
+	switch f.typ {
+	case 'C':
+		s, _ := t.dec.decode(bytes.TrimRight(b, " \x00"))
+		return s
+	case 'N', 'F', 'L':
+		return string(bytes.Trim(b, " \x00"))
+	case 'D':
+		s := string(bytes.Trim(b, " \x00"))
+		if isDate(s) {
+			return s[0:4] + "-" + s[4:6] + "-" + s[6:8]
+		}
+		return ""
+	}
+	return ""
+}
+
 func allStars(s string) bool {
 	for i := 0; i < len(s); i++ {
 		if s[i] != '*' {

@@ -336,7 +336,11 @@ func decode(s source, opt Options) (*geo.Layer, []Warning, error) {
 		if err := tab.decodeRecord(rec, props, raw, repaired); err != nil {
 			var fe *fieldError
 			if errors.As(err, &fe) {
-				return nil, nil, fmt.Errorf("shapefile: %w", &geo.Error{Path: s.dbf.name, Index: i, Field: fe.field, Message: fmt.Sprintf("record %d: %s", i+1, fe.msg)})
+				var fid string
+				if idCol >= 0 {
+					fid = tab.fieldText(rec, idCol)
+				}
+				return nil, nil, fmt.Errorf("shapefile: %w", &geo.Error{Path: s.dbf.name, Index: i, ID: fid, Field: fe.field, Message: fmt.Sprintf("record %d: %s", i+1, fe.msg)})
 			}
 			return nil, nil, recordError(s.dbf.name, i, "", err)
 		}
@@ -345,24 +349,26 @@ func decode(s source, opt Options) (*geo.Layer, []Warning, error) {
 				firstRepair[k] = i + 1
 			}
 		}
-		id := strconv.Itoa(i + 1)
+		// Messages name the id only when it comes from the table: the
+		// default id repeats the record number they already give.
+		id, msgID := strconv.Itoa(i+1), ""
 		if idCol >= 0 {
-			id = raw[idCol]
+			id, msgID = raw[idCol], raw[idCol]
 		}
 
 		rings, err := decodeShape(content, sc.hdr.shapeType, budget)
 		if err != nil {
-			return nil, nil, recordError(s.shp.name, i, id, err)
+			return nil, nil, recordError(s.shp.name, i, msgID, err)
 		}
 		for _, r := range rings {
 			budget -= len(r)
 		}
 		mp, msgs := assemble(rings)
 		for _, m := range msgs {
-			warns = append(warns, Warning{Path: s.shp.name, Index: i, ID: id, Message: fmt.Sprintf("record %d: %s", i+1, m)})
+			warns = append(warns, Warning{Path: s.shp.name, Index: i, ID: msgID, Message: fmt.Sprintf("record %d: %s", i+1, m)})
 		}
 		if len(rings) > 0 && len(mp) == 0 {
-			warns = append(warns, Warning{Path: s.shp.name, Index: i, ID: id, Message: fmt.Sprintf("record %d: no usable ring left: the feature has empty geometry", i+1)})
+			warns = append(warns, Warning{Path: s.shp.name, Index: i, ID: msgID, Message: fmt.Sprintf("record %d: no usable ring left: the feature has empty geometry", i+1)})
 		}
 		layer.Features = append(layer.Features, geo.Feature{Index: i, ID: id, Geometry: mp, Props: props})
 	}
