@@ -180,8 +180,8 @@ func TestReadRFC7946Examples(t *testing.T) {
 		fixture string
 		nlt     []string
 	}{
-		{"rfc7946-a3.geojson", nil},                                    // RFC 7946 Appendix A.3
-		{"rfc7946-a6.geojson", nil},                                    // RFC 7946 Appendix A.6
+		{"rfc7946-a3.geojson", nil},                                  // RFC 7946 Appendix A.3
+		{"rfc7946-a6.geojson", nil},                                  // RFC 7946 Appendix A.6
 		{"rfc7946-a3.geojson", []string{"-nlt", "PROMOTE_TO_MULTI"}}, // same, stored as MultiPolygon
 	} {
 		t.Run(tc.fixture+strings.Join(tc.nlt, ""), func(t *testing.T) {
