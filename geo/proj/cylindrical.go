@@ -79,10 +79,10 @@ func (PlateCarree) Forward(lon, lat float64) (x, y float64) {
 // Inverse maps metres back to lon, lat in degrees.
 func (PlateCarree) Inverse(x, y float64) (lon, lat float64) {
 	lat = y / WebRadius / deg
-	if !(lat >= -90 && lat <= 90) || math.IsNaN(x) || math.IsInf(x, 0) {
+	if !(math.Abs(lat) <= 90+1e-12) || math.IsNaN(x) || math.IsInf(x, 0) {
 		return math.NaN(), math.NaN()
 	}
-	return wrapDeg(x / WebRadius / deg), lat
+	return wrapDeg(x / WebRadius / deg), math.Max(-90, math.Min(90, lat))
 }
 
 // String returns the PROJ description.

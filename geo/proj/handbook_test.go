@@ -19,7 +19,7 @@ func near(t *testing.T, what string, got, want, tol float64) {
 // Mercator), worked example.
 func TestWebMercatorIOGPExample(t *testing.T) {
 	var p WebMercator
-	lon := dms(-100, 20, 0)     // 100°20′00.000″W
+	lon := dms(-100, 20, 0)    // 100°20′00.000″W
 	lat := dms(24, 22, 54.433) // 24°22′54.433″N
 	near(t, "lon rad", lon*deg, -1.751147016, 5e-10)
 	near(t, "lat rad", lat*deg, 0.425542460, 5e-10)

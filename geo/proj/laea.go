@@ -86,15 +86,22 @@ func (p *LAEA) kPrime(sinb, cosb, cosdl float64) float64 {
 	return math.Sqrt(2 / den)
 }
 
-// authalic returns sin β and cos β for latitude lat in degrees, and q.
-func (p *LAEA) authalic(lat float64) (sinb, cosb, q float64) {
-	s, c := math.Sincos(lat * deg)
-	if p.e == 0 {
-		return s, c, 2 * s
+// authalic returns sin β and cos β for latitude lat in degrees, and
+// v = qp − |q|. Above 45° it goes through qpMinusQ, so that cos β keeps its
+// digits near the poles.
+func (p *LAEA) authalic(lat float64) (sinb, cosb, v float64) {
+	if math.Abs(lat) <= 45 {
+		s, c := math.Sincos(lat * deg)
+		if p.e == 0 {
+			return s, c, 2 - 2*math.Abs(s)
+		}
+		q := qsfn(s, p.e, p.e2)
+		sinb = q / p.qp
+		return sinb, math.Sqrt(1 - sinb*sinb), p.qp - math.Abs(q)
 	}
-	q = qsfn(s, p.e, p.e2)
-	sinb = math.Max(-1, math.Min(1, q/p.qp))
-	return sinb, math.Sqrt(1 - sinb*sinb), q
+	v = qpMinusQ((90-math.Abs(lat))*deg, p.e, p.e2)
+	om := v / p.qp // 1 − sin|β|
+	return math.Copysign(1-om, lat), math.Sqrt(om * (2 - om)), v
 }
 
 // Forward projects lon, lat in degrees to metres.
@@ -103,21 +110,21 @@ func (p *LAEA) Forward(lon, lat float64) (x, y float64) {
 		return math.NaN(), math.NaN()
 	}
 	sdl, cdl := math.Sincos(wrapRad((lon - p.lon0) * deg))
-	sinb, cosb, q := p.authalic(lat)
+	sinb, cosb, v := p.authalic(lat)
 	switch p.aspect {
 	case northPolar, southPolar:
-		// Snyder eqs. 24-21 to 24-23 (ellipsoid), 24-5, 24-6 (sphere).
-		var v float64
+		// Snyder eqs. 24-21 to 24-23 (ellipsoid), 24-5, 24-6 (sphere):
+		// ρ = a√(qp ∓ q), from v = qp − |q|.
+		if (lat < 0 && p.aspect == northPolar) || (lat > 0 && p.aspect == southPolar) {
+			v = 2*p.qp - v // the far hemisphere
+		}
 		if p.aspect == northPolar {
-			v = p.qp - q
 			cdl = -cdl
-		} else {
-			v = p.qp + q
 		}
 		if v >= 2*p.qp*(1-1e-15) {
 			return math.NaN(), math.NaN() // the opposite pole
 		}
-		rho := p.ell.A * math.Sqrt(math.Max(0, v))
+		rho := p.ell.A * math.Sqrt(v)
 		return p.fe + rho*sdl, p.fn + rho*cdl
 	}
 	b := p.rq * p.kPrime(sinb, cosb, cdl)
@@ -140,20 +147,21 @@ func (p *LAEA) Inverse(x, y float64) (lon, lat float64) {
 	switch p.aspect {
 	case northPolar, southPolar:
 		rho := math.Hypot(x, y)
-		r2 := rho * rho / (p.ell.A * p.ell.A)
-		if r2 > 2*p.qp*(1+1e-12) {
+		r := rho / p.ell.A
+		v := r * r // qp ∓ q
+		if v > 2*p.qp*(1+1e-12) {
 			return math.NaN(), math.NaN()
 		}
-		q := p.qp - r2
+		lat := 90 - colatFromV(math.Min(v, 2*p.qp), p.e, p.e2, p.qp)/deg
 		lam := math.Atan2(x, -y)
 		if p.aspect == southPolar {
-			q = -q
+			lat = -lat
 			lam = math.Atan2(x, y)
 		}
 		if rho == 0 {
 			lam = 0
 		}
-		return wrapDeg(p.lon0 + lam/deg), phiFromQ(q, p.e, p.e2, p.qp) / deg
+		return wrapDeg(p.lon0 + lam/deg), lat
 	}
 	xd, yd := x/p.d, y*p.d
 	rho := math.Hypot(xd, yd)
@@ -173,13 +181,7 @@ func (p *LAEA) Inverse(x, y float64) (lon, lat float64) {
 	w := rho*cce*p.sinb1 + yd*sce*p.cosb1
 	lam := math.Atan2(u, v)
 	beta := math.Atan2(w, math.Hypot(u, v))
-	var phi float64
-	if p.e == 0 {
-		phi = beta
-	} else {
-		phi = phiFromQ(p.qp*math.Sin(beta), p.e, p.e2, p.qp)
-	}
-	return wrapDeg(p.lon0 + lam/deg), phi / deg
+	return wrapDeg(p.lon0 + lam/deg), phiFromBeta(beta, p.e, p.e2, p.qp) / deg
 }
 
 // Ellipsoid returns the ellipsoid the projection is built on.
