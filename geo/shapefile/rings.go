@@ -48,7 +48,7 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 			warns = append(warns, fmt.Sprintf("ring %d has zero area: dropped", k))
 			continue
 		}
-		ri := ringInfo{index: k, ring: r, area: a, bound: r.Bound()}
+		ri := ringInfo{index: k, ring: r, area: a}
 		if a < 0 {
 			outers = append(outers, ri)
 		} else {
@@ -59,6 +59,14 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 		return nil, warns
 	}
 
+	if len(holes) > 0 { // bounds serve only to place holes
+		for i := range outers {
+			outers[i].bound = outers[i].ring.Bound()
+		}
+		for i := range holes {
+			holes[i].bound = holes[i].ring.Bound()
+		}
+	}
 	owner := make([]int, len(holes)) // index into outers, -1 = none
 	for h := range holes {
 		owner[h] = -1
