@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 	"os"
 	"slices"
@@ -77,13 +78,15 @@ func Decode(path string, data []byte, opt Options) (*geo.Layer, error) {
 	for i, raw := range fc.Features {
 		var rf rawFeature
 		if err := json.Unmarshal(raw, &rf); err != nil {
-			return nil, &geo.Error{Path: path, Index: i, Message: "geojson: " + err.Error()}
+			return nil, &geo.Error{Path: path, Index: i, Message: err.Error()}
 		}
 		f := geo.Feature{Index: i, Props: make(map[string]any, len(rf.Properties))}
-		for k, v := range rf.Properties {
-			val, err := decodeValue(v)
-			if err != nil {
-				return nil, &geo.Error{Path: path, Index: i, Field: k, Message: "geojson: " + err.Error()}
+		var badField string
+		var badErr error
+		for _, k := range slices.Sorted(maps.Keys(rf.Properties)) {
+			val, err := decodeValue(rf.Properties[k])
+			if err != nil && badErr == nil {
+				badField, badErr = k, err
 			}
 			f.Props[k] = val
 			if !seenField[k] {
@@ -92,18 +95,21 @@ func Decode(path string, data []byte, opt Options) (*geo.Layer, error) {
 			}
 		}
 		f.ID = featureID(&rf, f.Props, opt.IDField, i)
+		if badErr != nil {
+			return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: badField, Message: badErr.Error()}
+		}
 		if opt.IDField != "" {
 			if _, ok := f.Props[opt.IDField]; !ok {
 				return nil, &geo.Error{Path: path, Index: i, Field: opt.IDField, Message: "id field is missing"}
 			}
 		}
 		if rf.Type != "Feature" {
-			return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "type", Message: fmt.Sprintf("geojson: type is %q; want \"Feature\"", rf.Type)}
+			return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "type", Message: fmt.Sprintf("type is %q; want \"Feature\"", rf.Type)}
 		}
 		if rf.Geometry != nil {
 			g, err := decodeGeometry(rf.Geometry)
 			if err != nil {
-				return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "geometry", Message: "geojson: " + err.Error()}
+				return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "geometry", Message: err.Error()}
 			}
 			f.Geometry = g
 		}
@@ -236,4 +242,3 @@ func where(data []byte, off int64) string {
 	col := off - int64(bytes.LastIndexByte(data[:off], '\n'))
 	return fmt.Sprintf("line %d, column %d", line, col)
 }
-

@@ -110,6 +110,10 @@ func Parse(path string, data []byte) (*Map, error) {
 		if errors.As(err, &pe) {
 			return nil, &Error{Path: path, Line: pe.Position.Line, Key: pe.LastKey, Msg: pe.Message}
 		}
+		if g := typeErrRE.FindStringSubmatch(err.Error()); g != nil {
+			line, _ := strconv.Atoi(g[1])
+			return nil, &Error{Path: path, Line: line, Key: g[2], Msg: g[3]}
+		}
 		return nil, &Error{Path: path, Msg: err.Error()}
 	}
 	lines := strings.Split(string(data), "\n")
@@ -122,6 +126,9 @@ func Parse(path string, data []byte) (*Map, error) {
 	}
 	return &m, nil
 }
+
+// typeErrRE matches the decoder's type errors, which carry no typed position.
+var typeErrRE = regexp.MustCompile(`^toml: line (\d+) \(last key "(.*?)"\): (.*)$`)
 
 var colorRE = regexp.MustCompile(`^#[0-9A-Fa-f]{6}$`)
 
