@@ -32,9 +32,10 @@
 // Attributes: every column except the primary key, the geometry column and
 // BLOB columns becomes a Props entry, in column order in Layer.Fields. Values
 // follow SQLite's storage class: INTEGER → int64, REAL → float64, TEXT →
-// string, NULL → nil; a column declared BOOLEAN gives bool. DATE and DATETIME
-// columns are read as their text. Feature.ID is the integer primary key (the
-// fid) as decimal text unless Options.IDField names a column.
+// string, NULL → nil; a column declared BOOLEAN gives bool. DATE, DATETIME
+// and TIMESTAMP columns are read as their stored text ("2026-03-01").
+// Feature.ID is the integer primary key (the fid) as decimal text unless
+// Options.IDField names a column.
 //
 // Errors are one line, prefixed "gpkg: ", and wrap a *geo.Error naming the
 // file, the feature (0-based index in primary-key order, and its id) and the

@@ -30,7 +30,7 @@ func ExampleRead() {
 			f.ID, f.Props["label"], f.Props["households"], len(f.Geometry), f.Geometry[0][0])
 	}
 	// Output:
-	// zones EPSG:4326 [zone label households share coastal note]
+	// zones EPSG:4326 [zone label households share coastal note surveyed]
 	// 007 "Mill Row" households=412 parts=1 first ring=[[4.5 51] [4.6 51] [4.6 51.1] [4.5 51.1] [4.5 51]]
 	// 010 "Kiln Yard" households=0 parts=1 first ring=[[4.6 51] [4.7 51] [4.7 51.1] [4.6 51.1] [4.6 51]]
 	// 0100 "Ferry Lane" households=9001 parts=2 first ring=[[4.7 51] [4.8 51] [4.8 51.1] [4.7 51]]

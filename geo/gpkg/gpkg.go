@@ -259,8 +259,8 @@ func Read(path string, opt Options) (*geo.Layer, error) {
 	}
 
 	// Select the primary key, the geometry, then the attributes in column
-	// order. DATE and DATETIME columns are cast to TEXT so the driver does
-	// not turn them into time values.
+	// order. DATE, DATETIME and TIMESTAMP columns are cast to TEXT so the
+	// driver does not turn them into time values.
 	pk := -1
 	for i, c := range cols {
 		if c.pk && strings.Contains(c.decl, "INT") {
@@ -286,7 +286,7 @@ func Read(path string, opt Options) (*geo.Layer, error) {
 			continue // not an attribute value; see doc.go
 		}
 		attrs = append(attrs, c)
-		if strings.HasPrefix(c.decl, "DATE") {
+		if c.decl == "DATE" || c.decl == "DATETIME" || c.decl == "TIMESTAMP" {
 			sel = append(sel, "CAST("+quoteIdent(c.name)+" AS TEXT)")
 		} else {
 			sel = append(sel, quoteIdent(c.name))

@@ -227,7 +227,7 @@ func TestReadAttributesAndIDs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantFields := []string{"zone", "label", "households", "share", "coastal", "note"}
+	wantFields := []string{"zone", "label", "households", "share", "coastal", "note", "surveyed"}
 	if !reflect.DeepEqual(layer.Fields, wantFields) {
 		t.Errorf("fields %v, want %v", layer.Fields, wantFields)
 	}
@@ -263,7 +263,7 @@ func TestReadAttributesAndIDs(t *testing.T) {
 	}
 
 	_, err = Read(out, Options{IDField: "zonecode"})
-	wantErr := `gpkg: ` + out + `: id field "zonecode" is not a column of "zones" (columns: zone, label, households, share, coastal, note)`
+	wantErr := `gpkg: ` + out + `: id field "zonecode" is not a column of "zones" (columns: zone, label, households, share, coastal, note, surveyed)`
 	if err == nil || err.Error() != wantErr {
 		t.Errorf("got %v\nwant %s", err, wantErr)
 	}
