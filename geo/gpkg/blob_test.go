@@ -313,3 +313,28 @@ func FuzzGeometryBlob(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkDecodeBlob decodes a 2000-vertex polygon with a 200-vertex hole.
+func BenchmarkDecodeBlob(b *testing.B) {
+	circle := func(n int, r float64, ccw bool) [][2]float64 {
+		pts := make([][2]float64, n+1)
+		for i := 0; i < n; i++ {
+			a := 2 * math.Pi * float64(i) / float64(n)
+			if !ccw {
+				a = -a
+			}
+			pts[i] = [2]float64{10 + r*math.Cos(a), 50 + r*math.Sin(a)}
+		}
+		pts[n] = pts[0]
+		return pts
+	}
+	le := byteOrder(binary.LittleEndian)
+	blob := append(gpHeader(le, 1, false, 4326), wkbPoly(le, 3, 2, [][][2]float64{circle(2000, 1, true), circle(200, 0.1, false)})...)
+	b.SetBytes(int64(len(blob)))
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, _, err := decodeBlob(blob, 1<<20); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/encoding/wkb"
 	"github.com/twpayne/go-geom"
 	"github.com/twpayne/go-geom/xy"
 
@@ -361,5 +362,106 @@ func TestUSCounties(t *testing.T) {
 	// shared/data/README.md: the synthetic groups sum to 308,745,538.
 	if total != 308745538 {
 		t.Errorf("total %d, want 308745538", total)
+	}
+}
+
+// TestWKBAgainstOrb decodes every county blob that GDAL wrote twice: with
+// decodeWKB and with orb's independent encoding/wkb decoder, and compares
+// them value for value (before the winding step, which orb does not do).
+func TestWKBAgainstOrb(t *testing.T) {
+	src := "../../../shared/data/us-counties.geojson"
+	if _, err := os.Stat(src); err != nil {
+		t.Skipf("%s not present", src)
+	}
+	out := filepath.Join(t.TempDir(), "counties.gpkg")
+	toGPKG(t, out, src, "counties", "-nlt", "PROMOTE_TO_MULTI")
+	db, err := open(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	rows, err := db.Query(`SELECT geom FROM counties ORDER BY fid`)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer rows.Close()
+	n := 0
+	for rows.Next() {
+		var b []byte
+		if err := rows.Scan(&b); err != nil {
+			t.Fatal(err)
+		}
+		h, err := parseHeader(b)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ours, err := decodeWKB(b[h.size:], 1<<30)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g, err := wkb.Unmarshal(b[h.size:])
+		if err != nil {
+			t.Fatal(err)
+		}
+		theirs, ok := g.(orb.MultiPolygon)
+		if !ok {
+			t.Fatalf("orb decoded a %T", g)
+		}
+		if !reflect.DeepEqual(ours, theirs) {
+			t.Fatalf("blob %d: decoders differ", n)
+		}
+		n++
+	}
+	if n != 3230 {
+		t.Errorf("%d blobs, want 3230", n)
+	}
+}
+
+func BenchmarkReadCounties(b *testing.B) {
+	src := "../../../shared/data/us-counties.geojson"
+	if _, err := os.Stat(src); err != nil {
+		b.Skipf("%s not present", src)
+	}
+	bin, err := exec.LookPath("ogr2ogr")
+	if err != nil {
+		b.Skip("ogr2ogr not installed")
+	}
+	out := filepath.Join(b.TempDir(), "counties.gpkg")
+	if msg, err := exec.Command(bin, "-f", "GPKG", "-nlt", "PROMOTE_TO_MULTI", out, src, "-nln", "counties").CombinedOutput(); err != nil {
+		b.Fatalf("%v %s", err, msg)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Read(out, Options{IDField: "geoid"}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// TestOddFileName reads a file whose name holds characters that SQLite URIs
+// give meaning to (https://www.sqlite.org/uri.html: ?, #, %, spaces), and
+// checks that opening does not create or change a missing file.
+func TestOddFileName(t *testing.T) {
+	b, err := os.ReadFile("testdata/zones.gpkg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := filepath.Join(t.TempDir(), "a dir #1")
+	os.MkdirAll(dir, 0o755)
+	p := filepath.Join(dir, "zones?mode=rwc&x=%41.gpkg")
+	if err := os.WriteFile(p, b, 0o444); err != nil {
+		t.Fatal(err)
+	}
+	l, err := Read(p, Options{})
+	if err != nil || len(l.Features) != 3 {
+		t.Fatalf("Read(%q): %v", p, err)
+	}
+	after, _ := os.ReadFile(p)
+	if !reflect.DeepEqual(after, b) {
+		t.Errorf("file changed by reading")
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("reading left %d files in %s", len(entries), dir)
 	}
 }

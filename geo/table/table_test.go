@@ -487,3 +487,29 @@ func FuzzRead(f *testing.F) {
 		}
 	})
 }
+
+func BenchmarkReadAndJoinCounties(b *testing.B) {
+	csvPath := "../../../shared/data/us-counties-counts.csv"
+	if _, err := os.Stat(csvPath); err != nil {
+		b.Skipf("%s not present", csvPath)
+	}
+	tb, err := Read(csvPath, Options{Key: "geoid"})
+	if err != nil {
+		b.Fatal(err)
+	}
+	layer := &geo.Layer{Path: "counties", Fields: []string{"geoid"}}
+	for i, k := range tb.Keys {
+		layer.Features = append(layer.Features, geo.Feature{Index: i, ID: k, Props: map[string]any{"geoid": k}})
+	}
+	cols := []string{"grp_a", "grp_b", "grp_c", "grp_d", "grp_e"}
+	b.ReportAllocs()
+	for b.Loop() {
+		tb, err := Read(csvPath, Options{Key: "geoid"})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := Join(layer, "geoid", tb, cols); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
