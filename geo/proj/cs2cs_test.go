@@ -132,6 +132,7 @@ func TestCrossCheckCS2CS(t *testing.T) {
 	bin := needTool(t, "cs2cs")
 	for _, c := range crossCases(t) {
 		t.Run(c.name, func(t *testing.T) {
+			t.Parallel() // cs2cs waits mostly on PROJ's database
 			if len(c.pts) < 1000 {
 				t.Fatalf("only %d points", len(c.pts))
 			}
