@@ -9,4 +9,13 @@
 // 6. Sorting the keys sorts the dots along the Z-order curve, and the dots of
 // tile (z, x, y) for any z ≤ WorldBits are exactly the keys whose top 2z bits
 // equal the interleave of the tile's x and y.
+//
+// Size: a Builder gathers keys from many goroutines within a memory budget
+// (16 bytes a dot: the keys and the radix sort's second buffer). Past the
+// budget it sorts the buffer (SortKeys, a parallel LSD radix sort) and writes
+// it out as a run; Finish k-way merges the runs into one store file, which
+// Open maps read-only. A store file is a 4096-byte header (magic "STIPDOT1",
+// key count, count per category) followed by the sorted keys, little-endian.
+// The keys, and so every tile drawn from them, are the same whether the store
+// was built in memory or spilled, and for any number of workers.
 package dotstore

@@ -1,19 +1,30 @@
 package dotstore
 
 import (
-	"slices"
 	"sort"
 )
 
-// Store is a set of dots, sorted once all are added.
+// Store is a sorted set of dots, held in memory or mapped from a store file
+// (see Open). A Store is safe for concurrent reads.
 type Store struct {
 	keys   []uint64
 	sorted bool
 	counts [MaxCategories]int
+	m      *mapping // non-nil when keys live in a mapped file
 }
 
-// New returns an empty store with room for n dots.
+// New returns an empty in-memory store with room for n dots.
 func New(n int) *Store { return &Store{keys: make([]uint64, 0, n)} }
+
+// FromSorted wraps keys that are already sorted (for example by SortKeys)
+// without copying them.
+func FromSorted(keys []uint64) *Store {
+	s := &Store{keys: keys, sorted: true}
+	for _, k := range keys {
+		s.counts[k&(MaxCategories-1)]++
+	}
+	return s
+}
 
 // Add puts one dot of category cat at lon/lat degrees.
 func (s *Store) Add(lon, lat float64, cat int) {
@@ -36,7 +47,7 @@ func (s *Store) AddKeys(keys []uint64) {
 // dots, so the result does not depend on the order they were added in.
 func (s *Store) Sort() {
 	if !s.sorted {
-		slices.Sort(s.keys)
+		SortKeys(s.keys, make([]uint64, len(s.keys)), 1)
 		s.sorted = true
 	}
 }
@@ -47,12 +58,20 @@ func (s *Store) Len() int { return len(s.keys) }
 // Count is the number of dots of category cat.
 func (s *Store) Count(cat int) int { return s.counts[cat] }
 
+// Keys returns all keys in order. For a mapped store the slice aliases the
+// file mapping and is valid until Close.
+func (s *Store) Keys() []uint64 { return s.keys }
+
 // Range returns the sorted keys k with first ≤ k ≤ last. The store must be
 // sorted.
 func (s *Store) Range(first, last uint64) []uint64 {
-	i := sort.Search(len(s.keys), func(i int) bool { return s.keys[i] >= first })
-	j := i + sort.Search(len(s.keys)-i, func(k int) bool { return s.keys[i+k] > last })
-	return s.keys[i:j]
+	return searchRange(s.keys, first, last)
+}
+
+func searchRange(keys []uint64, first, last uint64) []uint64 {
+	i := sort.Search(len(keys), func(i int) bool { return keys[i] >= first })
+	j := i + sort.Search(len(keys)-i, func(k int) bool { return keys[i+k] > last })
+	return keys[i:j]
 }
 
 // Tile returns the keys of the dots inside tile (z, x, y).
@@ -63,16 +82,43 @@ func (s *Store) Tile(z, x, y int) []uint64 {
 // Tiles calls fn for every tile at zoom z that holds at least one dot, in
 // Z-order, jumping from tile to tile by binary search.
 func (s *Store) Tiles(z int, fn func(x, y int)) {
+	TilesOf(s.keys, z, func(x, y int, _ []uint64) { fn(x, y) })
+}
+
+// TilesOf calls fn for every tile at zoom z that holds keys, in Z-order,
+// with the tile's keys; keys must be sorted.
+func TilesOf(keys []uint64, z int, fn func(x, y int, keys []uint64)) {
 	shift := uint(2*(WorldBits-z) + CatBits)
 	i := 0
-	for i < len(s.keys) {
-		m := s.keys[i] >> shift
+	for i < len(keys) {
+		m := keys[i] >> shift
 		tx, ty := deinterleave(m)
-		fn(int(tx), int(ty))
 		next := (m + 1) << shift
-		if next == 0 { // the last tile of the world
-			return
+		j := len(keys)
+		if next != 0 { // next == 0 past the last tile of the world
+			j = i + sort.Search(len(keys)-i, func(k int) bool { return keys[i+k] >= next })
 		}
-		i += sort.Search(len(s.keys)-i, func(k int) bool { return s.keys[i+k] >= next })
+		fn(int(tx), int(ty), keys[i:j])
+		i = j
 	}
+}
+
+// Release lets the operating system drop the pages of a mapped store that
+// reads have brought in, so that resident memory stays bounded while a
+// pyramid sweeps the file; later reads fault them back from the page cache.
+// It does nothing for an in-memory store.
+func (s *Store) Release() {
+	if s.m != nil {
+		s.m.release()
+	}
+}
+
+// Close unmaps a mapped store; its key slices must not be used afterwards.
+func (s *Store) Close() error {
+	if s.m == nil {
+		return nil
+	}
+	err := s.m.close()
+	s.m, s.keys = nil, nil
+	return err
 }
