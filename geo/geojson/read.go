@@ -208,9 +208,6 @@ func polygon(c [][][]float64) (orb.Polygon, error) {
 			}
 			r = append(r, orb.Point{x, y})
 		}
-		if len(r) > 0 && r[0] != r[len(r)-1] {
-			r = append(r, r[0]) // close an unclosed ring
-		}
 		p = append(p, r)
 	}
 	return p, nil

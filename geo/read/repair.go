@@ -1,0 +1,177 @@
+package read
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
+)
+
+// Repair cleans the layer's geometry in place and records what it did in
+// res.Notes and res.Repairs. A polygon whose outer ring is dropped is dropped
+// with its holes; a feature left with no polygon keeps its counts, and the
+// sampler reports its people as not drawn.
+func Repair(res *Result) {
+	l := res.Layer
+	note := func(f *geo.Feature, format string, a ...any) {
+		e := &geo.Error{Path: l.Path, Index: f.Index, ID: f.ID, Field: "geometry", Message: fmt.Sprintf(format, a...)}
+		res.Notes = append(res.Notes, e.Error())
+	}
+	for i := range l.Features {
+		f := &l.Features[i]
+		var out orb.MultiPolygon
+		for pi, poly := range f.Geometry {
+			var keep orb.Polygon
+			for ri, ring := range poly {
+				r, closed, dropped := clean(ring)
+				if closed {
+					res.Repairs.ClosedRings++
+				}
+				res.Repairs.DroppedPoints += dropped
+				what := "hole"
+				if ri == 0 {
+					what = "outer ring"
+				}
+				if len(r) < 4 {
+					res.Repairs.DroppedRings++
+					note(f, "part %d %s %d has %d distinct points; dropped", pi, what, ri, max(len(r)-1, 0))
+					if ri == 0 {
+						break
+					}
+					continue
+				}
+				crosses := SelfIntersects(r)
+				if area(r) == 0 && !crosses { // a bowtie's lobes cancel, but it has area
+					res.Repairs.DroppedRings++
+					note(f, "part %d %s %d has no area; dropped", pi, what, ri)
+					if ri == 0 {
+						break
+					}
+					continue
+				}
+				if jumps(r) {
+					res.Repairs.Antimeridian++
+					note(f, "part %d %s %d jumps more than 180° of longitude (drawn across the antimeridian); it is unwrapped for sampling", pi, what, ri)
+				}
+				if crosses {
+					res.Repairs.SelfIntersecting++
+					note(f, "part %d %s %d crosses itself; dots fill it by the even-odd rule", pi, what, ri)
+				}
+				keep = append(keep, r)
+			}
+			if len(keep) > 0 && len(poly) > 0 && len(keep[0]) > 0 {
+				out = append(out, keep)
+			}
+		}
+		if len(out) == 0 && len(f.Geometry) > 0 {
+			note(f, "no polygon with area is left; its people cannot be drawn")
+		}
+		if len(out) == 0 {
+			res.Repairs.EmptyFeatures++
+		}
+		f.Geometry = out
+	}
+}
+
+// clean drops repeated consecutive points and closes the ring.
+func clean(r orb.Ring) (out orb.Ring, closed bool, dropped int) {
+	out = make(orb.Ring, 0, len(r)+1)
+	for _, p := range r {
+		if len(out) > 0 && out[len(out)-1] == p {
+			dropped++
+			continue
+		}
+		out = append(out, p)
+	}
+	if len(out) > 0 && out[0] != out[len(out)-1] {
+		out = append(out, out[0])
+		closed = true
+	}
+	return out, closed, dropped
+}
+
+func area(r orb.Ring) float64 {
+	var a float64
+	for i := 1; i < len(r); i++ {
+		a += (r[i-1][0] - r[0][0]) * (r[i][1] - r[0][1])
+		a -= (r[i][0] - r[0][0]) * (r[i-1][1] - r[0][1])
+	}
+	return a / 2
+}
+
+func jumps(r orb.Ring) bool {
+	for i := 1; i < len(r); i++ {
+		if math.Abs(r[i][0]-r[i-1][0]) > 180 {
+			return true
+		}
+	}
+	return false
+}
+
+// SelfIntersects reports whether two non-adjacent edges of the closed ring
+// cross or touch. It sweeps edges sorted by their west end, so compact rings
+// cost about n log n.
+func SelfIntersects(r orb.Ring) bool {
+	n := len(r) - 1 // edges
+	if n < 4 {
+		return false
+	}
+	idx := make([]int, n)
+	for i := range idx {
+		idx[i] = i
+	}
+	minX := func(e int) float64 { return math.Min(r[e][0], r[e+1][0]) }
+	maxX := func(e int) float64 { return math.Max(r[e][0], r[e+1][0]) }
+	sort.Slice(idx, func(a, b int) bool { return minX(idx[a]) < minX(idx[b]) })
+	var active []int
+	for _, e := range idx {
+		x := minX(e)
+		k := 0
+		for _, a := range active {
+			if maxX(a) >= x {
+				active[k] = a
+				k++
+			}
+		}
+		active = active[:k]
+		for _, a := range active {
+			if adjacent(a, e, n) {
+				continue
+			}
+			if segmentsTouch(r[a], r[a+1], r[e], r[e+1]) {
+				return true
+			}
+		}
+		active = append(active, e)
+	}
+	return false
+}
+
+func adjacent(a, b, n int) bool {
+	d := a - b
+	if d < 0 {
+		d = -d
+	}
+	return d <= 1 || d == n-1
+}
+
+func orient(a, b, c orb.Point) float64 {
+	return (b[0]-a[0])*(c[1]-a[1]) - (b[1]-a[1])*(c[0]-a[0])
+}
+
+func onSegment(a, b, p orb.Point) bool {
+	return math.Min(a[0], b[0]) <= p[0] && p[0] <= math.Max(a[0], b[0]) &&
+		math.Min(a[1], b[1]) <= p[1] && p[1] <= math.Max(a[1], b[1])
+}
+
+func segmentsTouch(p1, p2, q1, q2 orb.Point) bool {
+	d1, d2 := orient(q1, q2, p1), orient(q1, q2, p2)
+	d3, d4 := orient(p1, p2, q1), orient(p1, p2, q2)
+	if ((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0)) {
+		return true
+	}
+	return (d1 == 0 && onSegment(q1, q2, p1)) || (d2 == 0 && onSegment(q1, q2, p2)) ||
+		(d3 == 0 && onSegment(p1, p2, q1)) || (d4 == 0 && onSegment(p1, p2, q2))
+}
