@@ -3,6 +3,7 @@ package shapefile
 import (
 	"bytes"
 	"encoding/binary"
+	"errors"
 	"flag"
 	"math"
 	"os"
@@ -11,6 +12,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 var update = flag.Bool("update", false, "rewrite the generated files under testdata/bad/shapefile and geo/shapefile/testdata")
@@ -279,5 +282,18 @@ func TestBadInputs(t *testing.T) {
 				t.Errorf("%d features, want %d", len(l.Features), c.feats)
 			}
 		})
+	}
+}
+
+// Record errors wrap a *geo.Error carrying the feature index and id.
+func TestRecordErrorIsGeoError(t *testing.T) {
+	_, err := Read(p("nan-coordinate", ".shp"), Options{IDField: "id"})
+	var ge *geo.Error
+	if !errors.As(err, &ge) || ge.Index != 1 || ge.ID != "b" || ge.Path != p("nan-coordinate", ".shp") {
+		t.Fatalf("%v: %+v", err, ge)
+	}
+	_, err = Read(p("dbf-bad-number", ".shp"), Options{})
+	if !errors.As(err, &ge) || ge.Index != 1 || ge.Field != "pop" {
+		t.Fatalf("%v: %+v", err, ge)
 	}
 }

@@ -111,9 +111,9 @@ func decoderForCPG(text, path string) (d *textDecoder, ok bool, err error) {
 }
 
 // ldidPages maps the dBASE language driver id (byte 29 of the DBF header) to
-// a code page. 0x03 and 0x57 are what GDAL writes for ENCODING=LDID/3 and
-// LDID/87 and are checked against GDAL in the tests (GDAL reads 0x57, "ANSI",
-// as ISO-8859-1); the others are from memory of the dBASE/ESRI driver table.
+// a code page, used when no .cpg names one. The entries are from memory of
+// the dBASE/ESRI driver table; TestLDIDVsGDAL checks every one against
+// GDAL's reading of the same bytes (GDAL reads 0x57, "ANSI", as ISO-8859-1).
 var ldidPages = map[byte]*charmap.Charmap{
 	0x01: charmap.CodePage437,
 	0x02: charmap.CodePage850,

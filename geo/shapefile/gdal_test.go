@@ -3,11 +3,13 @@ package shapefile
 import (
 	"bufio"
 	"bytes"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"reflect"
 	"regexp"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -128,5 +130,57 @@ func TestCommittedGDALFixture(t *testing.T) {
 	}
 	if ids := []string{l.Features[0].ID, l.Features[1].ID, l.Features[2].ID}; !reflect.DeepEqual(ids, []string{"007", "012", "100"}) {
 		t.Errorf("ids %v", ids)
+	}
+}
+
+// TestLDIDVsGDAL checks the language driver table against GDAL's reading:
+// for each id in ldidPages, a table without .cpg holds one record per byte
+// 0x80..0xFF, and ogr2ogr's GeoJSON of it must give the same characters as
+// this package (bytes a code page leaves undefined are skipped on both
+// sides).
+func TestLDIDVsGDAL(t *testing.T) {
+	ogr := needTool(t, "ogr2ogr")
+	ids := make([]int, 0, len(ldidPages))
+	for id := range ldidPages {
+		ids = append(ids, int(id))
+	}
+	slices.Sort(ids)
+	for _, id := range ids {
+		t.Run(fmt.Sprintf("0x%02X", id), func(t *testing.T) {
+			var shapes []tShape
+			var rows [][]string
+			for b := 0x80; b <= 0xFF; b++ {
+				shapes = append(shapes, tShape{typ: typePolygon, parts: triangle})
+				rows = append(rows, []string{string([]byte{byte(b)})})
+			}
+			shp, shx := buildSHP(typePolygon, shapes)
+			dbf := buildDBF(byte(id), []tField{{"c", 'C', 1, 0}}, rows, nil)
+			dir := t.TempDir()
+			path := writeSet(t, dir, "ldid", map[string][]byte{".shp": shp, ".shx": shx, ".dbf": dbf})
+			out := filepath.Join(dir, "ldid.geojson")
+			if b, err := exec.Command(ogr, "-f", "GeoJSON", out, path).CombinedOutput(); err != nil {
+				t.Fatalf("ogr2ogr: %v\n%s", err, b)
+			}
+			want := readGeoJSON(t, out)
+			l, warns, err := ReadAll(path, Options{})
+			if err != nil || len(warns) != 0 {
+				t.Fatalf("%v %v", err, warns)
+			}
+			same := 0
+			for i, f := range l.Features {
+				got, _ := f.Props["c"].(string)
+				w, _ := want.Features[i].Properties["c"].(string)
+				if got == "\uFFFD" || w == "" || w == "?" || w == "\uFFFD" {
+					continue
+				}
+				if got != w {
+					t.Errorf("byte 0x%02X: %q (U+%04X), GDAL %q", 0x80+i, got, []rune(got)[0], w)
+				}
+				same++
+			}
+			if same < 100 {
+				t.Errorf("only %d of 128 bytes compared", same)
+			}
+		})
 	}
 }
