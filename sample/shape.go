@@ -3,118 +3,300 @@ package sample
 import (
 	"math"
 	"math/rand/v2"
-	"sort"
 
 	"github.com/paulmach/orb"
 )
 
 const degToRad = math.Pi / 180
 
-// Shape is a feature's polygons prepared for sampling: each part in the
-// equal-area plane (x = longitude in radians, y = sin latitude) with its
-// bounding box and area.
+// boxFill is the fill ratio (part area / box area) from which a simple part
+// is sampled by rejection against its box instead of by triangles. Measured
+// by BenchmarkFillThreshold (see BENCHMARKS.part.md): on a 64-vertex ring,
+// preparing and drawing 100 dots, box rejection is as fast as triangulation
+// plus triangle draws near a fill of 0.35 and faster above; 0.5 keeps
+// rejection's worst case at 2 proposals per dot and spares the
+// triangulation of big, compact parts with few dots.
+const boxFill = 0.5
+
+// method is how a part draws proposals.
+type method uint8
+
+const (
+	byBox       method = iota // uniform in the box, test against the rings
+	byTriangles               // pick a triangle by area, uniform in it; always inside
+	byGrid                    // pick an inside or boundary cell, uniform in it; test in boundary cells
+	autoMethod  method = 255  // let NewShape choose
+)
+
+func (m method) String() string {
+	switch m {
+	case byBox:
+		return "box"
+	case byTriangles:
+		return "triangles"
+	case byGrid:
+		return "grid"
+	}
+	return "auto"
+}
+
+// Shape is a feature's polygons prepared for sampling, in the equal-area
+// plane x = longitude (degrees, unwrapped across the antimeridian),
+// y = sin(latitude). Each part with area gets a sampling method; see the
+// package documentation.
 type Shape struct {
-	parts []part
-	cum   []float64 // cumulative part areas, for choosing a part
-	area  float64
+	parts    []part
+	pick     *alias // part by proposal weight
+	area     float64
+	crossing bool
+	minX     float64
+	maxX     float64
+	minY     float64
+	maxY     float64
+	outline  []float64 // lon/lat segments (x0,y0,x1,y1) for features without area
+	olen     []float64 // cumulative segment lengths
 }
 
 type part struct {
-	rings                  [][]float64 // x0,y0,x1,y1,… per ring, closed
+	rings                  [][]float64
 	minX, minY, maxX, maxY float64
-	area                   float64
+	area                   float64 // plane units: degrees × (sin φ)
+	weight                 float64 // proposal area
+	method                 method
+	check                  ringCheck
+	ix                     *edgeIndex
+	tri                    []float64 // 6 per triangle
+	tris                   *alias
+	grid                   *cellGrid
 }
 
-// NewShape prepares g for sampling. Parts with no area are dropped.
-func NewShape(g orb.MultiPolygon) *Shape {
-	s := &Shape{}
+// NewShape prepares g (lon/lat degrees) for sampling. Parts without area
+// are dropped; Area then tells whether anything is left.
+func NewShape(g orb.MultiPolygon) *Shape { return newShape(g, autoMethod) }
+
+func newShape(g orb.MultiPolygon, force method) *Shape {
+	s := &Shape{minX: math.Inf(1), minY: math.Inf(1), maxX: math.Inf(-1), maxY: math.Inf(-1)}
+	var weights []float64
 	for _, poly := range g {
-		var pt part
-		pt.minX, pt.minY = math.Inf(1), math.Inf(1)
-		pt.maxX, pt.maxY = math.Inf(-1), math.Inf(-1)
-		for ri, ring := range poly {
-			if len(ring) < 3 {
-				continue
-			}
-			flat := make([]float64, 0, 2*len(ring)+2)
-			for _, p := range ring {
-				x, y := p[0]*degToRad, math.Sin(p[1]*degToRad)
-				flat = append(flat, x, y)
-				if ri == 0 {
-					pt.minX, pt.maxX = math.Min(pt.minX, x), math.Max(pt.maxX, x)
-					pt.minY, pt.maxY = math.Min(pt.minY, y), math.Max(pt.maxY, y)
-				}
-			}
-			if ring[0] != ring[len(ring)-1] {
-				flat = append(flat, flat[0], flat[1])
-			}
-			a := math.Abs(shoelace(flat))
-			if ri == 0 {
-				pt.area += a
-			} else {
-				pt.area -= a
-			}
-			pt.rings = append(pt.rings, flat)
+		pt, ok := newPart(poly, force)
+		if pt.check == ringsCross {
+			s.crossing = true
 		}
-		if len(pt.rings) == 0 || pt.area <= 0 || pt.maxX <= pt.minX || pt.maxY <= pt.minY {
+		if !ok {
 			continue
 		}
 		s.parts = append(s.parts, pt)
+		weights = append(weights, pt.weight)
 		s.area += pt.area
-		s.cum = append(s.cum, s.area)
+		s.minX, s.maxX = math.Min(s.minX, pt.minX), math.Max(s.maxX, pt.maxX)
+		s.minY, s.maxY = math.Min(s.minY, pt.minY), math.Max(s.maxY, pt.maxY)
+	}
+	if len(s.parts) > 0 {
+		s.pick = newAlias(weights)
+	} else {
+		s.setOutline(g)
 	}
 	return s
 }
 
-// Area is the shape's area on the unit sphere (steradians).
-func (s *Shape) Area() float64 { return s.area }
-
-// Point draws one point uniformly by area, trying at most maxTry times.
-func (s *Shape) Point(p *rand.PCG, maxTry int) (orb.Point, bool) {
-	if len(s.parts) == 0 {
-		return orb.Point{}, false
+// newPart prepares one polygon; ok is false when it has no area.
+func newPart(poly orb.Polygon, force method) (part, bool) {
+	pt := part{rings: planeRings(poly)}
+	if len(pt.rings) == 0 {
+		return pt, false
 	}
-	i := 0
-	if len(s.parts) > 1 {
-		u := unit(p) * s.area
-		i = sort.SearchFloat64s(s.cum, u)
-		if i >= len(s.parts) {
-			i = len(s.parts) - 1
+	pt.minX, pt.minY, pt.maxX, pt.maxY = bounds(pt.rings)
+	box := (pt.maxX - pt.minX) * (pt.maxY - pt.minY)
+	if !(box > 0) || math.IsInf(box, 0) {
+		return pt, false
+	}
+	pt.check = checkRings(pt.rings)
+	pt.ix = newEdgeIndex(pt.rings)
+	m := force
+	if pt.check == ringsSimple {
+		pt.area = math.Abs(shoelace(pt.rings[0]))
+		for _, h := range pt.rings[1:] {
+			pt.area -= math.Abs(shoelace(h))
+		}
+		if !(pt.area > 0) {
+			return pt, false
+		}
+		if m == autoMethod {
+			m = byTriangles
+			if pt.area >= boxFill*box {
+				m = byBox
+			}
+		}
+	} else {
+		// Even-odd fill that triangulation does not handle.
+		m = byGrid
+	}
+	if m == byTriangles {
+		tri, ok := triangulate(pt.rings)
+		sum := 0.0
+		w := make([]float64, len(tri)/6)
+		for k := range w {
+			t := tri[6*k:]
+			w[k] = cross(t[0], t[1], t[2], t[3], t[4], t[5]) / 2
+			sum += w[k]
+		}
+		if ok && len(w) > 0 && math.Abs(sum-pt.area) <= 1e-9*pt.area {
+			pt.tri, pt.tris = tri, newAlias(w)
+			pt.weight = sum
+		} else {
+			m = byGrid
 		}
 	}
-	pt := &s.parts[i]
-	w, h := pt.maxX-pt.minX, pt.maxY-pt.minY
-	for try := 0; try < maxTry; try++ {
-		x := pt.minX + unit(p)*w
-		y := pt.minY + unit(p)*h
-		if evenOdd(pt.rings, x, y) {
-			return orb.Point{x / degToRad, math.Asin(y) / degToRad}, true
+	switch m {
+	case byBox:
+		pt.weight = box
+	case byGrid:
+		pt.grid = newCellGrid(pt.rings, pt.ix, pt.minX, pt.minY, pt.maxX, pt.maxY)
+		pt.weight = pt.grid.weight()
+		if pt.check != ringsSimple {
+			pt.area = pt.grid.area(pt.ix)
+		}
+		if !(pt.area > 0) || pt.weight <= 0 {
+			return pt, false
+		}
+	}
+	pt.method = m
+	return pt, true
+}
+
+// propose draws one point from the part's proposal and says whether it is
+// inside the part.
+func (pt *part) propose(p *rand.PCG) (x, y float64, ok bool) {
+	switch pt.method {
+	case byTriangles:
+		t := pt.tri[6*pt.tris.draw(p):]
+		u, v := unit(p), unit(p)
+		if u+v > 1 {
+			u, v = 1-u, 1-v
+		}
+		x = t[0] + u*(t[2]-t[0]) + v*(t[4]-t[0])
+		y = t[1] + u*(t[3]-t[1]) + v*(t[5]-t[1])
+		return x, y, true
+	case byGrid:
+		return pt.grid.propose(p, pt.ix)
+	}
+	x = pt.minX + unit(p)*(pt.maxX-pt.minX)
+	y = pt.minY + unit(p)*(pt.maxY-pt.minY)
+	return x, y, pt.ix.contains(x, y)
+}
+
+// Area is the shape's area on the unit sphere (steradians). For parts whose
+// rings cross it is an estimate (see cellGrid.area); otherwise exact for the
+// polygons as drawn in the equal-area plane.
+func (s *Shape) Area() float64 { return s.area * degToRad }
+
+// Point draws one point uniformly by area, trying at most maxTry proposals.
+// The proposals of all parts are weighted by their proposal areas and a
+// rejected proposal starts over from the choice of part, which makes the
+// result uniform over the union of the parts whatever their methods.
+func (s *Shape) Point(p *rand.PCG, maxTry int) (orb.Point, bool) {
+	for try := 0; try < maxTry && len(s.parts) > 0; try++ {
+		pt := &s.parts[s.pick.draw(p)]
+		if x, y, ok := pt.propose(p); ok {
+			return lonLat(x, y), true
 		}
 	}
 	return orb.Point{}, false
 }
 
-// evenOdd reports whether (x, y) is inside the rings by the even-odd rule:
-// inside the outer ring and outside every hole, and for self-crossing rings
-// inside the part that the even-odd rule fills.
-func evenOdd(rings [][]float64, x, y float64) bool {
-	in := false
-	for _, r := range rings {
-		n := len(r)
-		for i := 2; i < n; i += 2 {
-			x0, y0, x1, y1 := r[i-2], r[i-1], r[i], r[i+1]
-			if (y0 > y) != (y1 > y) && x < x0+(y-y0)*(x1-x0)/(y1-y0) {
-				in = !in
+// pointUnmasked is Point that also rejects points inside masks.
+func (s *Shape) pointUnmasked(p *rand.PCG, maxTry int, m *Mask) (orb.Point, bool) {
+	for try := 0; try < maxTry && len(s.parts) > 0; try++ {
+		pt := &s.parts[s.pick.draw(p)]
+		x, y, ok := pt.propose(p)
+		if !ok {
+			continue
+		}
+		x = wrapLon(x)
+		if m.containsPlane(x, y) {
+			continue
+		}
+		return lonLat(x, y), true
+	}
+	return orb.Point{}, false
+}
+
+// Contains tells whether point q (lon/lat degrees) is inside the shape by
+// the test the sampler uses: even-odd in the equal-area plane.
+func (s *Shape) Contains(q orb.Point) bool {
+	y := math.Sin(q[1] * degToRad)
+	for k := range s.parts {
+		pt := &s.parts[k]
+		for _, x := range [3]float64{q[0], q[0] + 360, q[0] - 360} {
+			if x >= pt.minX && x <= pt.maxX && y >= pt.minY && y <= pt.maxY && pt.ix.contains(x, y) {
+				return true
 			}
 		}
 	}
-	return in
+	return false
 }
 
-func shoelace(r []float64) float64 {
-	var a float64
-	for i := 2; i < len(r); i += 2 {
-		a += r[i-2]*r[i+1] - r[i]*r[i-1]
+// lonLat maps a plane point back to lon/lat degrees.
+func lonLat(x, y float64) orb.Point {
+	return orb.Point{wrapLon(x), math.Asin(math.Max(-1, math.Min(1, y))) / degToRad}
+}
+
+// setOutline keeps the segments of g's rings, for placing the dots of a
+// feature that has people but no area.
+func (s *Shape) setOutline(g orb.MultiPolygon) {
+	total := 0.0
+	for _, poly := range g {
+		for _, ring := range poly {
+			for i, q := range ring {
+				if !finite(q) {
+					continue
+				}
+				if len(s.outline) == 0 && len(s.olen) == 0 {
+					// Remember the first vertex as a zero-length segment.
+					s.outline = append(s.outline, q[0], q[1], q[0], q[1])
+					s.olen = append(s.olen, 0)
+				}
+				if i == 0 || !finite(ring[i-1]) {
+					continue
+				}
+				a := ring[i-1]
+				d := math.Hypot(q[0]-a[0], q[1]-a[1])
+				if d == 0 || math.IsInf(d, 0) {
+					continue
+				}
+				total += d
+				s.outline = append(s.outline, a[0], a[1], q[0], q[1])
+				s.olen = append(s.olen, total)
+			}
+		}
 	}
-	return a / 2
+}
+
+func finite(q orb.Point) bool {
+	return !math.IsNaN(q[0]) && !math.IsInf(q[0], 0) && !math.IsNaN(q[1]) && !math.IsInf(q[1], 0)
+}
+
+// outlinePoint draws a point uniformly by length along the outline of a
+// shape without area (in lon/lat degrees); ok is false when g had no vertex.
+func (s *Shape) outlinePoint(p *rand.PCG) (orb.Point, bool) {
+	if len(s.olen) == 0 {
+		return orb.Point{}, false
+	}
+	total := s.olen[len(s.olen)-1]
+	if total == 0 {
+		return orb.Point{wrapLon(s.outline[0]), s.outline[1]}, true
+	}
+	u := unit(p) * total
+	lo, hi := 0, len(s.olen)-1
+	for lo < hi {
+		mid := (lo + hi) / 2
+		if s.olen[mid] > u {
+			hi = mid
+		} else {
+			lo = mid + 1
+		}
+	}
+	seg := s.outline[4*lo:]
+	t := unit(p)
+	return orb.Point{wrapLon(seg[0] + t*(seg[2]-seg[0])), seg[1] + t*(seg[3]-seg[1])}, true
 }
