@@ -459,6 +459,9 @@ func projectedCRS(n *wktNode) (CRS, error) {
 			f := g.angle
 			if au := p.child("ANGLEUNIT", "UNIT"); au != nil {
 				f, _ = au.number(1)
+				if !(f > 0) {
+					return CRS{}, fmt.Errorf("proj: WKT: %s has no positive conversion factor", au.head())
+				}
 				f = snapAngle(f)
 			}
 			if f != deg {
@@ -468,6 +471,9 @@ func projectedCRS(n *wktNode) (CRS, error) {
 			f := crs.UnitMetres
 			if lu := p.child("LENGTHUNIT", "UNIT"); lu != nil {
 				f, _ = lu.number(1)
+				if !(f > 0) {
+					return CRS{}, fmt.Errorf("proj: WKT: %s has no positive conversion factor", lu.head())
+				}
 				f = snapLength(f)
 			}
 			v *= f

@@ -45,6 +45,7 @@ func TestParseWKT(t *testing.T) {
 		{"epsg3857.esri.prj", "WGS_1984_Web_Mercator_Auxiliary_Sphere", 0, 3857, false, "WGS 84", 1},
 		{"epsg3857.wkt2.wkt", "WGS 84 / Pseudo-Mercator", 3857, 3857, false, "WGS 84", 1},
 		{"epsg3785.wkt1.wkt", "Popular Visualisation CRS / Mercator", 3785, 3857, false, "WGS 84", 1},
+		{"esri102113.esri.prj", "WGS_1984_Web_Mercator", 0, 3857, false, "WGS 84", 1},
 		{"epsg900913.wkt1.wkt", "Google Maps Global Mercator (deprecated)", 900913, 3857, false, "WGS 84", 1},
 		{"epsg5070.wkt1.wkt", "NAD83 / Conus Albers", 5070, 5070, false, "NAD83", 1},
 		{"epsg5070.esri.prj", "NAD_1983_Contiguous_USA_Albers", 0, 5070, false, "NAD83", 1},
@@ -394,4 +395,32 @@ func TestCRSGeographicPassThrough(t *testing.T) {
 	if s := c.String(); s != `"NAD83" (EPSG:4269): longitude/latitude on NAD83` {
 		t.Errorf("String = %s", s)
 	}
+}
+
+// ParseWKT never panics or hangs, whatever the bytes; seeds are the
+// testdata files.
+func FuzzParseWKT(f *testing.F) {
+	files, _ := filepath.Glob("testdata/*.*")
+	for _, name := range files {
+		if b, err := os.ReadFile(name); err == nil {
+			f.Add(string(b))
+		}
+	}
+	f.Add(`A[[[[`)
+	f.Add(`PROJCS["a",GEOGCS["g",DATUM["D_WGS_1984",SPHEROID["s",6378137,0]]],PROJECTION["Albers"],PARAMETER["standard_parallel_1",90],PARAMETER["standard_parallel_2",90]]`)
+	f.Fuzz(func(t *testing.T, wkt string) {
+		c, err := ParseWKT(wkt)
+		if err != nil {
+			if c.Projection != nil || c.Name != "" {
+				t.Errorf("error %v with a CRS %v", err, c)
+			}
+			return
+		}
+		if !c.Geographic && c.Projection == nil {
+			t.Errorf("projected CRS without a projection: %v", c)
+		}
+		if c.Projection != nil {
+			c.ToLonLat(c.FromLonLat(10, 45)) // must not panic
+		}
+	})
 }

@@ -14,6 +14,7 @@ OSR_USE_NON_DEPRECATED=NO gdalsrsinfo -o wkt1 EPSG:3785 >epsg3785.wkt1.wkt
 gdalsrsinfo -o wkt1 EPSG:900913 >epsg900913.wkt1.wkt
 gdalsrsinfo -o wkt_esri ESRI:102003 >esri102003.esri.prj
 gdalsrsinfo -o wkt1 ESRI:102003 >esri102003.wkt1.wkt
+gdalsrsinfo -o wkt_esri ESRI:102113 >esri102113.esri.prj
 # Coordinate systems stipple does not support.
 for code in 9311 4267 32633 27700 3395 2227 3031; do
 	gdalsrsinfo -o wkt1 EPSG:$code >unsupported_epsg$code.wkt1.wkt
