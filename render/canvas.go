@@ -11,28 +11,38 @@ import (
 // pixel: the same dots give the same bytes in any order.
 const One = 1 << 12
 
-// Canvas accumulates per-category coverage for one image.
+// Canvas accumulates per-category coverage for one image. A canvas holds
+// either coverage in units of One (Add, AddStamp; composite with Composite)
+// or dot counts (Count; composite with CompositeCounts).
 type Canvas struct {
 	W, H int
 	// NCat is the number of categories.
 	NCat int
-	// Cov holds coverage as Cov[(y*W+x)*NCat+cat], in units of One.
+	// Cov holds coverage as Cov[(y*W+x)*NCat+cat].
 	Cov []uint32
-	// touched is set once any coverage lands.
+	// rows[y] is set once coverage lands on row y.
+	rows    []bool
 	touched bool
 }
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
-	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat)}
+	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), rows: make([]bool, h)}
 }
 
 // Reset clears the canvas for reuse.
 func (c *Canvas) Reset() {
-	if c.touched {
-		clear(c.Cov)
-		c.touched = false
+	if !c.touched {
+		return
 	}
+	n := c.W * c.NCat
+	for y, used := range c.rows {
+		if used {
+			clear(c.Cov[y*n : (y+1)*n])
+			c.rows[y] = false
+		}
+	}
+	c.touched = false
 }
 
 // Empty reports whether no dot has touched the canvas.
@@ -45,6 +55,10 @@ type Dot struct {
 	// Opacity from 0 to 1: the share of a pixel's ink one dot gives.
 	Opacity float64
 }
+
+// Mass is the ink of one dot in pixels of full cover: its area times its
+// opacity.
+func (d Dot) Mass() float64 { r := d.Diameter / 2; return math.Pi * r * r * d.Opacity }
 
 // Add deposits one dot of category cat centred at (x, y).
 //
@@ -84,6 +98,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 				continue
 			}
 			c.Cov[(row+px)*n+cat] += w
+			c.rows[py] = true
 			c.touched = true
 		}
 	}
@@ -107,17 +122,62 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*c.NCat+cat] += v
+		c.rows[py] = true
 		c.touched = true
 	}
+}
+
+// Count adds one dot of category cat to pixel (px, py) of a count canvas,
+// saturating at the largest uint32.
+func (c *Canvas) Count(cat, px, py int) {
+	i := (py*c.W+px)*c.NCat + cat
+	if c.Cov[i] != math.MaxUint32 {
+		c.Cov[i]++
+	}
+	c.rows[py] = true
+	c.touched = true
 }
 
 // Composite writes the canvas into dst (same size): a pixel's colour is the
 // coverage-weighted mean of its categories' colours, and its alpha is the
 // total coverage, clipped at fully opaque. colors has one entry per category.
 func (c *Canvas) Composite(colors []color.NRGBA, dst *image.NRGBA) {
+	c.composite(colors, 1<<gainBits, dst)
+}
+
+// CompositeCounts composites a count canvas: every dot gives mass pixels of
+// full ink (Dot.Mass), so a pixel's alpha is its dot count times mass,
+// clipped at fully opaque, and its colour the count-weighted mean. Counts
+// are summed in integers, so this too is independent of order.
+func (c *Canvas) CompositeCounts(colors []color.NRGBA, mass float64, dst *image.NRGBA) {
+	g := math.Round(mass * One * (1 << gainBits))
+	if g < 1 {
+		g = 1
+	}
+	if g > 1<<40 {
+		g = 1 << 40
+	}
+	c.composite(colors, uint64(g), dst)
+}
+
+// gainBits is the fixed-point precision of the coverage gain.
+const gainBits = 16
+
+func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) {
 	n := c.NCat
+	const full = One << gainBits
+	// A sum at or above sat is fully opaque whatever the gain.
+	sat := (uint64(full) + gain - 1) / gain
+	var cr, cg, cb [64]uint64
+	for k := 0; k < n && k < len(colors); k++ {
+		cr[k], cg[k], cb[k] = uint64(colors[k].R), uint64(colors[k].G), uint64(colors[k].B)
+	}
 	for py := 0; py < c.H; py++ {
 		row := dst.Pix[py*dst.Stride : py*dst.Stride+4*c.W]
+		if !c.rows[py] {
+			clear(row)
+			continue
+		}
 		cov := c.Cov[py*c.W*n : (py+1)*c.W*n]
 		for px := 0; px < c.W; px++ {
 			cell := cov[px*n : px*n+n]
@@ -128,26 +188,27 @@ func (c *Canvas) Composite(colors []color.NRGBA, dst *image.NRGBA) {
 				}
 				ww := uint64(w)
 				sum += ww
-				r += ww * uint64(colors[k].R)
-				g += ww * uint64(colors[k].G)
-				b += ww * uint64(colors[k].B)
+				r += ww * cr[k]
+				g += ww * cg[k]
+				b += ww * cb[k]
 			}
 			o := row[4*px : 4*px+4 : 4*px+4]
 			if sum == 0 {
 				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
 				continue
 			}
+			var a uint64 = 255
+			if sum < sat {
+				a = (sum*gain*255 + full/2) / full
+			}
+			if a == 0 {
+				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
+				continue
+			}
 			o[0] = uint8((r + sum/2) / sum)
 			o[1] = uint8((g + sum/2) / sum)
 			o[2] = uint8((b + sum/2) / sum)
-			a := sum
-			if a > One {
-				a = One
-			}
-			o[3] = uint8((a*255 + One/2) / One)
-			if o[3] == 0 {
-				o[0], o[1], o[2] = 0, 0, 0
-			}
+			o[3] = uint8(a)
 		}
 	}
 }

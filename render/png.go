@@ -1,81 +1,222 @@
 package render
 
 import (
+	"bytes"
+	"encoding/binary"
+	"hash/crc32"
 	"image"
-	"image/color"
-	"image/png"
 	"io"
 	"sync"
+
+	"github.com/klauspost/compress/zlib"
 )
 
-// Encoder writes tiles as PNG: 8-bit paletted when the image has at most 256
-// distinct colours (lossless then, and far smaller and faster), 32-bit
-// otherwise. It is safe for concurrent use.
+// Encoder writes tiles as PNG (ISO/IEC 15948, "PNG Specification, Second
+// Edition"): indexed colour when the image has at most 256 distinct colours
+// (lossless then; bit depth 1, 2, 4 or 8 by palette size, with a tRNS chunk
+// for the palette's alpha), truecolour with alpha otherwise. Rows are stored
+// with filter type 0 (None) and compressed with klauspost/compress's zlib at
+// its fastest level: on dot tiles, mostly empty or flat runs, the per-row
+// filter choice of image/png costs most of its time and saves little (see
+// BenchmarkEncode). The output depends on the pixels alone. An Encoder is
+// safe for concurrent use.
 type Encoder struct {
-	enc  png.Encoder
-	pool sync.Pool // *paletteBuf
+	// Level is the zlib level; 0 means zlib.BestSpeed.
+	Level int
+	pool  sync.Pool // *encState
 }
 
 // NewEncoder returns an Encoder tuned for dot tiles.
-func NewEncoder() *Encoder {
-	e := &Encoder{enc: png.Encoder{CompressionLevel: png.BestSpeed, BufferPool: &bufferPool{}}}
-	return e
+func NewEncoder() *Encoder { return &Encoder{} }
+
+type encState struct {
+	// An open-addressing colour table; slot i is in use when gen[i] == cur.
+	keys [paletteSlots]uint32
+	idx  [paletteSlots]uint8
+	gen  [paletteSlots]uint32
+	cur  uint32
+	pal  []uint32 // RGBA, big-endian packed, in order of first appearance
+	ind  []uint8  // palette index of every pixel
+	raw  []byte   // filtered scanlines
+	z    bytes.Buffer
+	zw   *zlib.Writer
+	out  bytes.Buffer
 }
 
-type bufferPool struct{ p sync.Pool }
+const paletteSlots = 1024 // 4 × 256: short probe chains
 
-func (b *bufferPool) Get() *png.EncoderBuffer {
-	v, _ := b.p.Get().(*png.EncoderBuffer)
-	return v
-}
-func (b *bufferPool) Put(v *png.EncoderBuffer) { b.p.Put(v) }
-
-type paletteBuf struct {
-	index map[uint32]uint8
-	img   *image.Paletted
-}
+var pngSignature = []byte{0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'}
 
 // Encode writes img to w.
 func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
-	pb, _ := e.pool.Get().(*paletteBuf)
-	if pb == nil {
-		pb = &paletteBuf{index: make(map[uint32]uint8, 256)}
+	st, _ := e.pool.Get().(*encState)
+	if st == nil {
+		st = &encState{}
+		lvl := e.Level
+		if lvl == 0 {
+			lvl = zlib.BestSpeed
+		}
+		zw, err := zlib.NewWriterLevel(&st.z, lvl)
+		if err != nil {
+			return err
+		}
+		st.zw = zw
 	}
-	defer e.pool.Put(pb)
-	if p := toPaletted(img, pb); p != nil {
-		return e.enc.Encode(w, p)
+	defer e.pool.Put(st)
+	data, err := st.encode(img)
+	if err != nil {
+		return err
 	}
-	return e.enc.Encode(w, img)
+	_, err = w.Write(data)
+	return err
 }
 
-// toPaletted returns img as a paletted image when it has at most 256
-// colours, else nil. Palette order is the order colours first appear in
-// scan order, so it depends on the pixels alone.
-func toPaletted(img *image.NRGBA, pb *paletteBuf) *image.Paletted {
-	clear(pb.index)
+func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 	b := img.Bounds()
 	w, h := b.Dx(), b.Dy()
-	if pb.img == nil || pb.img.Rect.Dx() != w || pb.img.Rect.Dy() != h {
-		pb.img = image.NewPaletted(image.Rect(0, 0, w, h), nil)
-	}
-	pal := make(color.Palette, 0, 16)
-	for y := 0; y < h; y++ {
-		src := img.Pix[y*img.Stride : y*img.Stride+4*w]
-		dst := pb.img.Pix[y*pb.img.Stride : y*pb.img.Stride+w]
-		for x := 0; x < w; x++ {
-			c := uint32(src[4*x])<<24 | uint32(src[4*x+1])<<16 | uint32(src[4*x+2])<<8 | uint32(src[4*x+3])
-			i, ok := pb.index[c]
-			if !ok {
-				if len(pal) == 256 {
-					return nil
-				}
-				i = uint8(len(pal))
-				pb.index[c] = i
-				pal = append(pal, color.NRGBA{src[4*x], src[4*x+1], src[4*x+2], src[4*x+3]})
-			}
-			dst[x] = i
+	st.out.Reset()
+	st.out.Write(pngSignature)
+	paletted := st.palettize(img, w, h)
+	var depth uint8 = 8
+	colorType := uint8(6) // truecolour with alpha
+	if paletted {
+		colorType = 3
+		switch n := len(st.pal); {
+		case n <= 2:
+			depth = 1
+		case n <= 4:
+			depth = 2
+		case n <= 16:
+			depth = 4
 		}
 	}
-	pb.img.Palette = pal
-	return pb.img
+	var ihdr [13]byte
+	binary.BigEndian.PutUint32(ihdr[0:], uint32(w))
+	binary.BigEndian.PutUint32(ihdr[4:], uint32(h))
+	ihdr[8], ihdr[9] = depth, colorType // compression, filter, interlace: 0
+	st.chunk("IHDR", ihdr[:])
+	if paletted {
+		plte := make([]byte, 0, 3*len(st.pal))
+		trns := make([]byte, 0, len(st.pal))
+		lastAlpha := 0
+		for i, c := range st.pal {
+			plte = append(plte, byte(c>>24), byte(c>>16), byte(c>>8))
+			a := byte(c)
+			trns = append(trns, a)
+			if a != 255 {
+				lastAlpha = i + 1
+			}
+		}
+		st.chunk("PLTE", plte)
+		if lastAlpha > 0 {
+			st.chunk("tRNS", trns[:lastAlpha])
+		}
+		st.packRows(w, h, depth)
+	} else {
+		rowLen := 1 + 4*w
+		st.raw = grow(st.raw, rowLen*h)
+		for y := 0; y < h; y++ {
+			r := st.raw[y*rowLen : (y+1)*rowLen]
+			r[0] = 0
+			copy(r[1:], img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w])
+		}
+	}
+	st.z.Reset()
+	st.zw.Reset(&st.z)
+	if _, err := st.zw.Write(st.raw); err != nil {
+		return nil, err
+	}
+	if err := st.zw.Close(); err != nil {
+		return nil, err
+	}
+	st.chunk("IDAT", st.z.Bytes())
+	st.chunk("IEND", nil)
+	return st.out.Bytes(), nil
+}
+
+func grow(b []byte, n int) []byte {
+	if cap(b) < n {
+		return make([]byte, n)
+	}
+	return b[:n]
+}
+
+// palettize fills st.pal and st.ind and reports whether the image has at
+// most 256 colours.
+func (st *encState) palettize(img *image.NRGBA, w, h int) bool {
+	st.cur++
+	if st.cur == 0 { // wrapped: forget every slot
+		st.gen = [paletteSlots]uint32{}
+		st.cur = 1
+	}
+	st.pal = st.pal[:0]
+	if cap(st.ind) < w*h {
+		st.ind = make([]uint8, w*h)
+	}
+	st.ind = st.ind[:w*h]
+	last, lastIdx, have := uint32(0), uint8(0), false
+	b := img.Bounds()
+	for y := 0; y < h; y++ {
+		src := img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
+		dst := st.ind[y*w : (y+1)*w]
+		for x := range dst {
+			p := src[4*x : 4*x+4 : 4*x+4]
+			c := uint32(p[0])<<24 | uint32(p[1])<<16 | uint32(p[2])<<8 | uint32(p[3])
+			if have && c == last {
+				dst[x] = lastIdx
+				continue
+			}
+			slot := (c * 0x9E3779B1) >> 22
+			for st.gen[slot] == st.cur && st.keys[slot] != c {
+				slot = (slot + 1) & (paletteSlots - 1)
+			}
+			if st.gen[slot] != st.cur {
+				if len(st.pal) == 256 {
+					return false
+				}
+				st.gen[slot], st.keys[slot], st.idx[slot] = st.cur, c, uint8(len(st.pal))
+				st.pal = append(st.pal, c)
+			}
+			last, lastIdx, have = c, st.idx[slot], true
+			dst[x] = lastIdx
+		}
+	}
+	return true
+}
+
+// packRows writes the palette indices as scanlines of the given bit depth,
+// each led by filter type 0, most significant bits first (PNG spec §7.2).
+func (st *encState) packRows(w, h int, depth uint8) {
+	per := 8 / int(depth)
+	rowLen := 1 + (w+per-1)/per
+	st.raw = grow(st.raw, rowLen*h)
+	for y := 0; y < h; y++ {
+		r := st.raw[y*rowLen : (y+1)*rowLen]
+		src := st.ind[y*w : (y+1)*w]
+		r[0] = 0
+		if depth == 8 {
+			copy(r[1:], src)
+			continue
+		}
+		out := r[1:]
+		clear(out)
+		d := uint(depth)
+		for x, v := range src {
+			shift := 8 - d*uint(x%per+1)
+			out[x/per] |= v << shift
+		}
+	}
+}
+
+// chunk appends one PNG chunk: length, type, data, CRC-32 of type and data.
+func (st *encState) chunk(typ string, data []byte) {
+	var hdr [8]byte
+	binary.BigEndian.PutUint32(hdr[:4], uint32(len(data)))
+	copy(hdr[4:], typ)
+	st.out.Write(hdr[:])
+	st.out.Write(data)
+	crc := crc32.Update(crc32.ChecksumIEEE(hdr[4:]), crc32.IEEETable, data)
+	var c [4]byte
+	binary.BigEndian.PutUint32(c[:], crc)
+	st.out.Write(c[:])
 }

@@ -1,0 +1,229 @@
+package render
+
+import (
+	"fmt"
+	"image"
+	"image/color"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+)
+
+// refStamp is the plain reference for AddStamp: every pixel of the canvas
+// gets the disc rule of Add for a centre at ((x+0.5)/Sub, (y+0.5)/Sub).
+func refStamp(c *Canvas, cat, x, y int, d Dot) {
+	r, ink := d.Diameter/2, d.Opacity*One
+	ix, iy := int(math.Floor(float64(x)/Sub)), int(math.Floor(float64(y)/Sub))
+	fx, fy := x-ix*Sub, y-iy*Sub
+	for py := 0; py < c.H; py++ {
+		for px := 0; px < c.W; px++ {
+			c.Cov[(py*c.W+px)*c.NCat+cat] += stampWeight(r, ink, px-ix, py-iy, fx, fy)
+		}
+	}
+}
+
+func TestAddStampMatchesReference(t *testing.T) {
+	const seed = 3
+	t.Logf("seed %d", seed)
+	rng := rand.New(rand.NewPCG(seed, 9))
+	for _, diam := range []float64{1, 1.5, 2.2, 3, 4.7, 9} {
+		d := Dot{Diameter: diam, Opacity: 0.8}
+		st := NewStamp(d)
+		got, want := NewCanvas(24, 20, 3), NewCanvas(24, 20, 3)
+		for i := 0; i < 300; i++ {
+			// Centres from well outside to well inside, edges included.
+			x, y := rng.IntN(40*Sub)-8*Sub, rng.IntN(36*Sub)-8*Sub
+			cat := rng.IntN(3)
+			got.AddStamp(cat, x, y, st)
+			refStamp(want, cat, x, y, d)
+		}
+		if !slices.Equal(got.Cov, want.Cov) {
+			t.Errorf("diameter %v: AddStamp differs from the reference", diam)
+		}
+	}
+}
+
+// TestStampAgreesWithAdd: a stamp at sub-pixel step f gives the bytes Add
+// gives for the step's centre, except where float rounding of the distance
+// differs in the last bit (at most 1 unit of One).
+func TestStampAgreesWithAdd(t *testing.T) {
+	d := Dot{Diameter: 3, Opacity: 0.9}
+	st := NewStamp(d)
+	for f := 0; f < Sub*Sub; f += 7 {
+		a, b := NewCanvas(8, 8, 1), NewCanvas(8, 8, 1)
+		x, y := 3*Sub+f%Sub, 4*Sub+f/Sub
+		a.AddStamp(0, x, y, st)
+		b.Add(0, (float64(x)+0.5)/Sub, (float64(y)+0.5)/Sub, d)
+		for i := range a.Cov {
+			if diff := int(a.Cov[i]) - int(b.Cov[i]); diff < -1 || diff > 1 {
+				t.Fatalf("step %d pixel %d: stamp %d, Add %d", f, i, a.Cov[i], b.Cov[i])
+			}
+		}
+	}
+}
+
+// refComposite is the plain per-pixel reference for composite.
+func refComposite(c *Canvas, colors []color.NRGBA, gain uint64) []uint8 {
+	out := make([]uint8, 4*c.W*c.H)
+	full := uint64(One) << gainBits
+	for p := 0; p < c.W*c.H; p++ {
+		var sum, r, g, b uint64
+		for k := 0; k < c.NCat; k++ {
+			w := uint64(c.Cov[p*c.NCat+k])
+			sum += w
+			r += w * uint64(colors[k].R)
+			g += w * uint64(colors[k].G)
+			b += w * uint64(colors[k].B)
+		}
+		if sum == 0 {
+			continue
+		}
+		a := math.Min(float64(sum)*float64(gain), float64(full))
+		a8 := uint64(math.Floor(a*255/float64(full) + 0.5))
+		if a8 == 0 {
+			continue
+		}
+		out[4*p] = uint8((r + sum/2) / sum)
+		out[4*p+1] = uint8((g + sum/2) / sum)
+		out[4*p+2] = uint8((b + sum/2) / sum)
+		out[4*p+3] = uint8(a8)
+	}
+	return out
+}
+
+var testColors = []color.NRGBA{{230, 159, 0, 255}, {86, 180, 233, 255}, {0, 158, 115, 255}, {240, 228, 66, 255}, {204, 121, 167, 255}}
+
+func TestCompositeMatchesReference(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 4))
+	c := NewCanvas(32, 16, 5)
+	st := NewStamp(Dot{Diameter: 2.5, Opacity: 0.7})
+	for i := 0; i < 400; i++ {
+		c.AddStamp(rng.IntN(5), rng.IntN(32*Sub), rng.IntN(16*Sub), st)
+	}
+	dst := image.NewNRGBA(image.Rect(0, 0, 32, 16))
+	c.Composite(testColors, dst)
+	if want := refComposite(c, testColors, 1<<gainBits); !slices.Equal(dst.Pix, want) {
+		t.Error("Composite differs from the reference")
+	}
+	cnt := NewCanvas(32, 16, 5)
+	for i := 0; i < 3000; i++ {
+		cnt.Count(rng.IntN(5), rng.IntN(32), rng.IntN(16))
+	}
+	for _, mass := range []float64{0.001, 0.05, 0.4, 3} {
+		cnt.CompositeCounts(testColors, mass, dst)
+		g := uint64(math.Round(mass * One * (1 << gainBits)))
+		if want := refComposite(cnt, testColors, g); !slices.Equal(dst.Pix, want) {
+			t.Errorf("CompositeCounts(mass %v) differs from the reference", mass)
+		}
+	}
+}
+
+// TestCategoryOrderDoesNotChangePixels renumbers the categories (and their
+// colours with them) and shuffles the drawing order: the pixels must be
+// identical, which is what integer coverage and share compositing promise.
+func TestCategoryOrderDoesNotChangePixels(t *testing.T) {
+	type dot struct{ cat, x, y int }
+	rng := rand.New(rand.NewPCG(8, 8))
+	dots := make([]dot, 2000)
+	for i := range dots {
+		dots[i] = dot{rng.IntN(5), rng.IntN(64 * Sub), rng.IntN(64 * Sub)}
+	}
+	perm := []int{3, 0, 4, 1, 2} // new number of old category k
+	permColors := make([]color.NRGBA, 5)
+	for k, p := range perm {
+		permColors[p] = testColors[k]
+	}
+	for _, d := range []Dot{{Diameter: 3, Opacity: 0.9}, {Diameter: 1.2, Opacity: 0.5}} {
+		st := NewStamp(d)
+		a, b := NewCanvas(64, 64, 5), NewCanvas(64, 64, 5)
+		ca, cb := NewCanvas(64, 64, 5), NewCanvas(64, 64, 5)
+		for _, o := range dots {
+			a.AddStamp(o.cat, o.x, o.y, st)
+			ca.Count(o.cat, o.x/Sub, o.y/Sub)
+		}
+		for _, i := range rng.Perm(len(dots)) {
+			o := dots[i]
+			b.AddStamp(perm[o.cat], o.x, o.y, st)
+			cb.Count(perm[o.cat], o.x/Sub, o.y/Sub)
+		}
+		ia, ib := image.NewNRGBA(image.Rect(0, 0, 64, 64)), image.NewNRGBA(image.Rect(0, 0, 64, 64))
+		a.Composite(testColors, ia)
+		b.Composite(permColors, ib)
+		if !slices.Equal(ia.Pix, ib.Pix) {
+			t.Errorf("%v: disc pixels change with category order", d)
+		}
+		ca.CompositeCounts(testColors, d.Mass()/8, ia)
+		cb.CompositeCounts(permColors, d.Mass()/8, ib)
+		if !slices.Equal(ia.Pix, ib.Pix) {
+			t.Errorf("%v: count pixels change with category order", d)
+		}
+	}
+}
+
+func TestResetClearsOnlyWhatWasUsed(t *testing.T) {
+	c := NewCanvas(16, 16, 2)
+	c.AddStamp(1, 5*Sub, 7*Sub, NewStamp(Dot{Diameter: 3, Opacity: 1}))
+	c.Count(0, 15, 15)
+	if c.Empty() {
+		t.Fatal("canvas empty after drawing")
+	}
+	c.Reset()
+	if !c.Empty() || slices.ContainsFunc(c.Cov, func(v uint32) bool { return v != 0 }) {
+		t.Fatal("Reset left coverage behind")
+	}
+}
+
+// BenchmarkAddStamp draws 3 px dots into a 256 px tile; compare with
+// BenchmarkAdd (the float path).
+func BenchmarkAddStamp(b *testing.B) {
+	for _, diam := range []float64{1.5, 3} {
+		b.Run(fmt.Sprint("d=", diam), func(b *testing.B) {
+			st := NewStamp(Dot{Diameter: diam, Opacity: 0.9})
+			c := NewCanvas(256, 256, 5)
+			rng := rand.New(rand.NewPCG(1, 1))
+			pts := make([]int, 2*4096)
+			for i := range pts {
+				pts[i] = rng.IntN(256 * Sub)
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				j := 2 * (i & 4095)
+				c.AddStamp(i%5, pts[j], pts[j+1], st)
+			}
+		})
+	}
+}
+
+func BenchmarkAdd(b *testing.B) {
+	d := Dot{Diameter: 3, Opacity: 0.9}
+	c := NewCanvas(256, 256, 5)
+	rng := rand.New(rand.NewPCG(1, 1))
+	pts := make([]float64, 2*4096)
+	for i := range pts {
+		pts[i] = rng.Float64() * 256
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		j := 2 * (i & 4095)
+		c.Add(i%5, pts[j], pts[j+1], d)
+	}
+}
+
+// BenchmarkComposite composites a 256 px, 5-category tile with 2000 dots.
+func BenchmarkComposite(b *testing.B) {
+	c := NewCanvas(256, 256, 5)
+	st := NewStamp(Dot{Diameter: 3, Opacity: 0.9})
+	rng := rand.New(rand.NewPCG(2, 2))
+	for i := 0; i < 2000; i++ {
+		c.AddStamp(rng.IntN(5), rng.IntN(256*Sub), rng.IntN(256*Sub), st)
+	}
+	dst := image.NewNRGBA(image.Rect(0, 0, 256, 256))
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		c.Composite(testColors, dst)
+	}
+}

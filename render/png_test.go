@@ -1,0 +1,173 @@
+package render
+
+import (
+	"bytes"
+	"fmt"
+	"image"
+	"image/color"
+	"image/png"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"testing"
+)
+
+func needTool(t *testing.T, name string) string {
+	p, err := exec.LookPath(name)
+	if err != nil {
+		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
+			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
+		}
+		t.Skipf("%s not installed", name)
+	}
+	return p
+}
+
+// testImage has exactly ncolors distinct colours (some translucent, one
+// transparent) or, with ncolors = 0, thousands.
+func testImage(w, h, ncolors int, seed uint64) *image.NRGBA {
+	rng := rand.New(rand.NewPCG(seed, 5))
+	img := image.NewNRGBA(image.Rect(0, 0, w, h))
+	pal := make([]color.NRGBA, ncolors)
+	for i := range pal {
+		pal[i] = color.NRGBA{uint8(rng.IntN(256)), uint8(rng.IntN(256)), uint8(i), uint8(rng.IntN(256))}
+	}
+	if ncolors > 0 {
+		pal[0] = color.NRGBA{}
+	}
+	for y := 0; y < h; y++ {
+		for x := 0; x < w; x++ {
+			var c color.NRGBA
+			switch {
+			case ncolors == 0:
+				c = color.NRGBA{uint8(x), uint8(y), uint8(rng.IntN(256)), uint8(rng.IntN(256))}
+			case y*w+x < ncolors:
+				c = pal[y*w+x] // every colour appears
+			case rng.IntN(3) == 0:
+				c = pal[rng.IntN(ncolors)]
+			}
+			img.SetNRGBA(x, y, c)
+		}
+	}
+	return img
+}
+
+// TestEncodeDecodesValueForValue encodes images of every bit depth and the
+// truecolour path, decodes them with image/png (an independent decoder) and
+// compares every pixel's non-premultiplied RGBA.
+func TestEncodeDecodesValueForValue(t *testing.T) {
+	enc := NewEncoder()
+	for _, tc := range []struct {
+		ncolors, w, h int
+		wantType      byte // IHDR colour type
+		wantDepth     byte
+	}{
+		{1, 17, 5, 3, 1}, {2, 9, 9, 3, 1}, {3, 33, 7, 3, 2}, {4, 256, 256, 3, 2},
+		{16, 31, 3, 3, 4}, {17, 64, 64, 3, 8}, {256, 256, 256, 3, 8}, {0, 256, 256, 6, 8}, {0, 3, 1, 3, 2}, // 3 pixels: at most 3 colours
+	} {
+		t.Run(fmt.Sprintf("%d-colours-%dx%d", tc.ncolors, tc.w, tc.h), func(t *testing.T) {
+			img := testImage(tc.w, tc.h, tc.ncolors, uint64(tc.w))
+			var buf bytes.Buffer
+			if err := enc.Encode(&buf, img); err != nil {
+				t.Fatal(err)
+			}
+			data := buf.Bytes()
+			// IHDR: bytes 24 and 25 of the file (PNG spec §11.2.2).
+			if data[24] != tc.wantDepth || data[25] != tc.wantType {
+				t.Errorf("IHDR depth %d type %d; want %d, %d", data[24], data[25], tc.wantDepth, tc.wantType)
+			}
+			got, err := png.Decode(bytes.NewReader(data))
+			if err != nil {
+				t.Fatal(err)
+			}
+			for y := 0; y < tc.h; y++ {
+				for x := 0; x < tc.w; x++ {
+					want := img.NRGBAAt(x, y)
+					g := color.NRGBAModel.Convert(got.At(x, y)).(color.NRGBA)
+					if want.A == 0 {
+						want = color.NRGBA{} // colour of a transparent pixel is not kept
+						if g.A == 0 {
+							g = color.NRGBA{}
+						}
+					}
+					if g != want {
+						t.Fatalf("pixel (%d,%d) = %v; want %v", x, y, g, want)
+					}
+				}
+			}
+		})
+	}
+}
+
+func TestEncodeRejectsNothingAndIsDeterministic(t *testing.T) {
+	img := testImage(64, 64, 40, 1)
+	var a, b bytes.Buffer
+	e := NewEncoder()
+	e.Encode(&a, img)
+	e.Encode(&b, img)
+	if !bytes.Equal(a.Bytes(), b.Bytes()) {
+		t.Error("same image, different bytes")
+	}
+}
+
+// TestPngcheckAcceptsOutput runs pngcheck (Debian package pngcheck), which
+// verifies chunk CRCs, IHDR fields, PLTE/tRNS sizes and the zlib stream.
+func TestPngcheckAcceptsOutput(t *testing.T) {
+	tool := needTool(t, "pngcheck")
+	dir := t.TempDir()
+	e := NewEncoder()
+	var files []string
+	for _, n := range []int{1, 3, 12, 200, 0} {
+		var buf bytes.Buffer
+		if err := e.Encode(&buf, testImage(100, 60, n, uint64(n))); err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, fmt.Sprintf("c%d.png", n))
+		os.WriteFile(p, buf.Bytes(), 0o644)
+		files = append(files, p)
+	}
+	out, err := exec.Command(tool, append([]string{"-q"}, files...)...).CombinedOutput()
+	if err != nil {
+		t.Fatalf("pngcheck: %v\n%s", err, out)
+	}
+}
+
+// dotTile is a realistic tile: 2000 3-px dots of 5 categories.
+func dotTile(n int) *image.NRGBA {
+	c := NewCanvas(256, 256, 5)
+	st := NewStamp(Dot{Diameter: 3, Opacity: 0.9})
+	rng := rand.New(rand.NewPCG(2, 2))
+	for i := 0; i < n; i++ {
+		c.AddStamp(rng.IntN(5), rng.IntN(256*Sub), rng.IntN(256*Sub), st)
+	}
+	img := image.NewNRGBA(image.Rect(0, 0, 256, 256))
+	c.Composite(testColors, img)
+	return img
+}
+
+// BenchmarkEncode compares this encoder with image/png on dot tiles.
+func BenchmarkEncode(b *testing.B) {
+	for _, n := range []int{200, 2000, 20000} {
+		img := dotTile(n)
+		run := func(name string, enc func(*bytes.Buffer) error) {
+			b.Run(fmt.Sprintf("dots=%d/%s", n, name), func(b *testing.B) {
+				var buf bytes.Buffer
+				b.ReportAllocs()
+				for i := 0; i < b.N; i++ {
+					buf.Reset()
+					if err := enc(&buf); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(float64(buf.Len()), "bytes")
+			})
+		}
+		e := NewEncoder()
+		run("stipple", func(w *bytes.Buffer) error { return e.Encode(w, img) })
+		std := &png.Encoder{}
+		run("image-png-default", func(w *bytes.Buffer) error { return std.Encode(w, img) })
+		fast := &png.Encoder{CompressionLevel: png.BestSpeed}
+		run("image-png-bestspeed", func(w *bytes.Buffer) error { return fast.Encode(w, img) })
+	}
+}
