@@ -198,7 +198,7 @@ var badCases = []badCase{
 	{name: "unclosed-ring", files: func() map[string][]byte {
 		return set(withShape(1, tShape{typ: typePolygon, parts: [][][2]float64{{{20, 0}, {20, 5}, {25, 0}}}}), baseFields, baseRows, nil)
 	}, feats: 2, warn: []string{
-		`shapefile: ` + p("unclosed-ring", ".shp") + `: feature 1 (id "b"): record 2: ring 0 is not closed (first point differs from last): closed it`,
+		`shapefile: ` + p("unclosed-ring", ".shp") + `: feature 1 (id "b"): record 2: ring 0 is not closed (first point differs from last): the first point was repeated at the end`,
 	}},
 	{name: "trailing-bytes", files: func() map[string][]byte {
 		f := baseSet()

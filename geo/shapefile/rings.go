@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"github.com/paulmach/orb"
 )
@@ -12,8 +13,8 @@ import (
 type ringInfo struct {
 	index int // position among the record's parts, for messages and order
 	ring  orb.Ring
-	area  float64 // signed; negative = clockwise (y up)
-	bound orb.Bound
+	area  float64   // signed; negative = clockwise (y up)
+	bound orb.Bound // set only when there are holes to place
 }
 
 // assemble turns the parts of one polygon record into polygons by the rule of
@@ -26,7 +27,10 @@ type ringInfo struct {
 // messages. Output rings follow RFC 7946 §3.1.6: outer rings
 // counter-clockwise, holes clockwise, i.e. each stored ring reversed.
 func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
-	var warns []string
+	// Problems are gathered per kind so that a record with a million empty
+	// parts gives a few lines, not a million.
+	var short, unclosed, huge, flat, lonely []int
+	shortN := 0 // point count of the first short ring
 	var outers, holes []ringInfo
 	for k, r := range parts {
 		n := len(r)
@@ -36,22 +40,25 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 			eff++
 		}
 		if eff < 4 {
-			warns = append(warns, fmt.Sprintf("ring %d has %d points (a closed ring needs at least 4): dropped", k, n))
+			if len(short) == 0 {
+				shortN = n
+			}
+			short = append(short, k)
 			continue
 		}
 		if !closed {
 			r = append(r, r[0]) // copies: parts carry a capped capacity
-			warns = append(warns, fmt.Sprintf("ring %d is not closed (first point differs from last): closed it", k))
+			unclosed = append(unclosed, k)
 		}
 		a, bound := areaWithBound(r)
 		if math.IsInf(bound, 0) || math.IsNaN(a) {
-			warns = append(warns, fmt.Sprintf("ring %d has coordinates too large to compute its area: dropped", k))
+			huge = append(huge, k)
 			continue
 		}
 		if math.Abs(a) <= 2*bound {
 			// Zero, or too small to tell its sign from rounding: the ring
 			// has no orientation and bounds nothing.
-			warns = append(warns, fmt.Sprintf("ring %d has zero area: dropped", k))
+			flat = append(flat, k)
 			continue
 		}
 		ri := ringInfo{index: k, ring: r, area: a}
@@ -61,28 +68,32 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 			holes = append(holes, ri)
 		}
 	}
-	if len(outers) == 0 && len(holes) == 0 {
-		return nil, warns
-	}
 
-	if len(holes) > 0 { // bounds serve only to place holes
+	owner := make([]int, len(holes)) // index into outers, -1 = none
+	if len(holes) > 0 {
+		// Bounds serve only to place holes. Outers are tried from the
+		// smallest up, so the first that contains a hole is the smallest.
 		for i := range outers {
 			outers[i].bound = outers[i].ring.Bound()
 		}
-		for i := range holes {
-			holes[i].bound = holes[i].ring.Bound()
+		bySize := make([]int, len(outers))
+		for i := range bySize {
+			bySize[i] = i
 		}
-	}
-	owner := make([]int, len(holes)) // index into outers, -1 = none
-	for h := range holes {
-		owner[h] = -1
-		best := math.Inf(1)
-		for o := range outers {
-			if -outers[o].area >= best || !boundWithin(holes[h].bound, outers[o].bound) {
-				continue
-			}
-			if ringInside(holes[h].ring, outers[o].ring) {
-				owner[h], best = o, -outers[o].area
+		slices.SortStableFunc(bySize, func(a, b int) int { return cmpFloat(-outers[a].area, -outers[b].area) })
+		for h := range holes {
+			owner[h] = -1
+			hb := holes[h].ring.Bound()
+			for _, o := range bySize {
+				// An outer smaller than the hole cannot contain it (the
+				// margin allows for rounding when the two rings coincide).
+				if -outers[o].area < holes[h].area*(1-1e-9) || !boundWithin(hb, outers[o].bound) {
+					continue
+				}
+				if ringInside(holes[h].ring, outers[o].ring) {
+					owner[h] = o
+					break
+				}
 			}
 		}
 	}
@@ -100,15 +111,72 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 			polys[owner[h]].rings = append(polys[owner[h]].rings, reversed(hi.ring))
 			continue
 		}
-		warns = append(warns, fmt.Sprintf("ring %d is a hole (counter-clockwise) that no outer ring contains: kept as an outer ring", hi.index))
+		lonely = append(lonely, hi.index)
 		polys = append(polys, poly{hi.index, []orb.Ring{hi.ring}}) // already counter-clockwise
 	}
 	slices.SortStableFunc(polys, func(a, b poly) int { return a.index - b.index })
-	mp := make(orb.MultiPolygon, len(polys))
-	for i, p := range polys {
-		mp[i] = orb.Polygon(p.rings)
+	var mp orb.MultiPolygon
+	if len(polys) > 0 {
+		mp = make(orb.MultiPolygon, len(polys))
+		for i, p := range polys {
+			mp[i] = orb.Polygon(p.rings)
+		}
+	}
+
+	var warns []string
+	if len(short) == 1 {
+		warns = append(warns, fmt.Sprintf("ring %d has %d points (a closed ring needs at least 4): dropped", short[0], shortN))
+	} else if len(short) > 1 {
+		warns = append(warns, fmt.Sprintf("%s fewer than 4 points once closed: dropped", ringNames(short, "has", "have")))
+	}
+	if len(unclosed) > 0 {
+		warns = append(warns, fmt.Sprintf("%s not closed (first point differs from last): the first point was repeated at the end", ringList(unclosed)))
+	}
+	if len(huge) > 0 {
+		warns = append(warns, fmt.Sprintf("%s coordinates too large to compute an area: dropped", ringNames(huge, "has", "have")))
+	}
+	if len(flat) > 0 {
+		warns = append(warns, fmt.Sprintf("%s zero area: dropped", ringNames(flat, "has", "have")))
+	}
+	if len(lonely) > 0 {
+		slices.Sort(lonely)
+		warns = append(warns, fmt.Sprintf("%s a hole (counter-clockwise) that no outer ring contains: kept as an outer ring", ringList(lonely)))
 	}
 	return mp, warns
+}
+
+// ringList names rings for a message with its verb: "ring 3 is",
+// "rings 1, 4 are", "rings 1, 2, 3, 4, 5 and 7 more are".
+func ringList(idx []int) string { return ringNames(idx, "is", "are") }
+
+func ringNames(idx []int, one, many string) string {
+	if len(idx) == 1 {
+		return fmt.Sprintf("ring %d %s", idx[0], one)
+	}
+	var b strings.Builder
+	b.WriteString("rings ")
+	for i, k := range idx {
+		if i == 5 {
+			fmt.Fprintf(&b, " and %d more", len(idx)-5)
+			break
+		}
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		fmt.Fprint(&b, k)
+	}
+	b.WriteString(" " + many)
+	return b.String()
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
 }
 
 // signedArea is the shoelace area, positive for counter-clockwise rings with

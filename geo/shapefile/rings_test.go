@@ -214,3 +214,26 @@ func compareStrings(a, b string) int {
 	}
 	return 0
 }
+
+// TestAssembleManyBadParts: problems are summarised per kind, so a record
+// of 100 000 empty parts gives one line; identical outer/hole pairs are
+// placed, the first candidate tried being the smallest.
+func TestAssembleManyBadParts(t *testing.T) {
+	parts := make([]orb.Ring, 100_000)
+	parts = append(parts, orb.Ring{{0, 0}, {0, 1}, {1, 1}, {1, 0}, {0, 0}})
+	mp, warns := assemble(parts)
+	if len(mp) != 1 || len(warns) != 1 || warns[0] != "rings 0, 1, 2, 3, 4 and 99995 more have fewer than 4 points once closed: dropped" {
+		t.Errorf("%d polygons, warnings %q", len(mp), warns)
+	}
+
+	sq := orb.Ring{{0, 0}, {0, 1}, {1, 1}, {1, 0}, {0, 0}}
+	var many []orb.Ring
+	for i := 0; i < 20_000; i++ {
+		many = append(many, slices.Clone(sq), reversedCopy(sq))
+	}
+	// Equal outers tie; the first in file order takes every hole.
+	mp, warns = assemble(many)
+	if len(mp) != 20_000 || len(warns) != 0 || len(mp[0]) != 20_001 || len(mp[1]) != 1 {
+		t.Errorf("%d polygons, first has %d rings, warnings %q", len(mp), len(mp[0]), warns)
+	}
+}
