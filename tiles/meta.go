@@ -17,6 +17,11 @@ type Metadata struct {
 	Version string `json:"stipple_version"`
 	Title   string `json:"title"`
 	Credit  string `json:"credit"`
+	// Layer is the map's key when a viewer holds several maps (the URL
+	// hash names it, e.g. "2010"); "" for a map on its own.
+	Layer string `json:"layer,omitempty"`
+	// LayerLabel names the map in the viewer's layer switch; "" uses Layer.
+	LayerLabel string `json:"layer_label,omitempty"`
 	// Bounds is [west, south, east, north] of the dots (RFC 7946 §5 order).
 	Bounds [4]float64 `json:"bounds"`
 	// Center is [lon, lat, zoom], the start view.
@@ -25,7 +30,10 @@ type Metadata struct {
 	MaxZoom  int        `json:"max_zoom"`
 	TileSize int        `json:"tile_size"`
 	// Tiles is the tile path template relative to this file.
-	Tiles        string     `json:"tiles"`
+	Tiles string `json:"tiles"`
+	// Outline is the template of the boundary outline tiles relative to
+	// this file (OutlineTemplate), "" when none were drawn.
+	Outline      string     `json:"outline,omitempty"`
 	PeoplePerDot float64    `json:"people_per_dot"`
 	Seed         uint64     `json:"seed"`
 	Note         string     `json:"note"`
@@ -57,6 +65,9 @@ type NotDrawn struct {
 	People   float64  `json:"people"`
 	Dots     int      `json:"dots"`
 	Features []string `json:"features"` // "id: reason", the first 100
+	// RowsWithoutArea is the people in count-table rows that matched no
+	// area: in the input, but on no area of the map.
+	RowsWithoutArea float64 `json:"people_in_rows_without_area"`
 }
 
 // WriteMetadata writes m as indented JSON to dir/map.json. encoding/json

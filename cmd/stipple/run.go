@@ -29,7 +29,10 @@ const usage = `stipple turns people counted per area into dot-density maps.
 
   stipple render MAP.toml [flags]   render the map a map file describes
   stipple demo [DIR]                render the built-in invented city into DIR (default stipple-demo)
+  stipple inspect FILE [--map MAP.toml]   describe a polygon file; with a map, what a render would make
+  stipple init FILE [-o MAP.toml]   write a starter map file for a polygon file
   stipple serve DIR [--port 8080]   serve a rendered folder on 127.0.0.1 for a quick look
+  stipple print MAP.toml [flags]    print the map on a page (PNG and PDF, equal-area projection)
   stipple version                   print the version
 
 Run "stipple render -h" for the flags that override a map file.
@@ -68,8 +71,14 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdRender(ctx, args[1:], stdout, stderr)
 	case "demo":
 		return cmdDemo(ctx, args[1:], stdout, stderr)
+	case "inspect":
+		return cmdInspect(ctx, args[1:], stdout, stderr)
+	case "init":
+		return cmdInit(ctx, args[1:], stdout, stderr)
 	case "serve":
 		return cmdServe(ctx, args[1:], stdout, stderr)
+	case "print":
+		return cmdPrint(ctx, args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "stipple", build.Version)
 		return nil
@@ -168,16 +177,46 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := o.apply(m); err != nil {
 		return err
 	}
-	return renderMap(ctx, m, o.workers, nil, stdout)
+	return renderMap(ctx, m, o.workers, stdout)
 }
 
-func renderMap(ctx context.Context, m *mapfile.Map, workers int, layer any, stdout io.Writer) error {
-	s, err := build.Run(ctx, m, build.Options{Workers: workers, Log: stdout})
+func renderMap(ctx context.Context, m *mapfile.Map, workers int, stdout io.Writer) error {
+	in, err := build.LoadInput(m, nil)
+	if err != nil {
+		return err
+	}
+	printInputReport(stdout, in)
+	s, err := build.Run(ctx, m, build.Options{Workers: workers, Log: stdout, Input: in})
 	if err != nil {
 		return err
 	}
 	printSummary(stdout, s)
 	return nil
+}
+
+// printInputReport says what reading and joining found, before the render.
+func printInputReport(w io.Writer, in *build.Input) {
+	if in.Read != nil {
+		r := in.Read
+		crs := r.CRS.Name
+		if crs == "" {
+			crs = "none declared (lon/lat assumed)"
+		}
+		fmt.Fprintf(w, "input: %s, %s, %d areas, coordinate system: %s\n", r.Layer.Path, r.Format, len(r.Layer.Features), crs)
+		if n := len(r.Notes); n > 0 {
+			fmt.Fprintf(w, "input: %d geometry notes:\n", n)
+			for i, note := range r.Notes {
+				if i == 10 {
+					fmt.Fprintf(w, "  … and %d more (stipple inspect lists them all)\n", n-10)
+					break
+				}
+				fmt.Fprintf(w, "  %s\n", note)
+			}
+		}
+	}
+	if in.Join != nil {
+		fmt.Fprintln(w, strings.TrimRight(in.Join.String(), "\n"))
+	}
 }
 
 func printSummary(w io.Writer, s *build.Summary) {
@@ -197,7 +236,10 @@ func printSummary(w io.Writer, s *build.Summary) {
 			fmt.Fprintf(w, "    %s\n", p)
 		}
 	} else {
-		fmt.Fprintln(w, "  not drawn: 0 people")
+		fmt.Fprintln(w, "  not drawn: 0 people in areas")
+	}
+	if s.RowsWithoutArea > 0 {
+		fmt.Fprintf(w, "  not drawn: %s people in table rows that match no area (listed above)\n", render.FormatCount(s.RowsWithoutArea))
 	}
 	fmt.Fprintf(w, "  %d tiles, %.1f MB, zooms %d–%d, in %s\n", s.Tiles.Tiles, float64(s.Tiles.Bytes)/1e6, md.MinZoom, md.MaxZoom, s.Elapsed.Round(time.Millisecond))
 	fmt.Fprintf(w, "  open %s in a browser, or: stipple serve %s\n", filepath.Join(s.OutputDir, "index.html"), s.OutputDir)
@@ -230,7 +272,7 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return err
 	}
 	fmt.Fprintf(stdout, "demo: Quillmere is an invented city; its areas, groups and counts are made up (source in %s)\n", filepath.Join(dir, "source"))
-	return renderMap(ctx, m, o.workers, nil, stdout)
+	return renderMap(ctx, m, o.workers, stdout)
 }
 
 // DemoMap is the built-in demo's map file.

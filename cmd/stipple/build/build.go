@@ -31,20 +31,26 @@ type Options struct {
 	Log io.Writer
 	// Layer, when set, is used instead of reading m.Input.File.
 	Layer *geo.Layer
+	// Input, when set, is used instead of loading the map's inputs (the
+	// CLI loads first to print the reading and join reports).
+	Input *Input
 }
 
 // Summary is what a run did.
 type Summary struct {
-	Features  int
-	People    []float64 // per category
-	Dots      []int     // drawn, per category
-	NotDrawn  float64   // people with no dot (lost dots × people per dot)
-	Problems  []string  // one line per feature with lost dots
-	Tiles     tiles.Stats
-	Elapsed   time.Duration
-	Bounds    orb.Bound
-	Metadata  *tiles.Metadata
-	OutputDir string
+	Features int
+	People   []float64 // per category
+	Dots     []int     // drawn, per category
+	NotDrawn float64   // people with no dot (lost dots × people per dot)
+	// RowsWithoutArea is the people in table rows that matched no area:
+	// in the input, but not on the map.
+	RowsWithoutArea float64
+	Problems        []string // one line per feature with lost dots
+	Tiles           tiles.Stats
+	Elapsed         time.Duration
+	Bounds          orb.Bound
+	Metadata        *tiles.Metadata
+	OutputDir       string
 }
 
 // Run renders the map m into its output folder.
@@ -55,16 +61,24 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 			fmt.Fprintf(opt.Log, format+"\n", a...)
 		}
 	}
-	layer, counts, err := Load(m, opt.Layer)
-	if err != nil {
-		return nil, err
+	in := opt.Input
+	if in == nil {
+		var err error
+		if in, err = LoadInput(m, opt.Layer); err != nil {
+			return nil, err
+		}
+	}
+	layer, counts := in.Layer, in.Counts
+	var rowsWithoutArea float64
+	if in.Join != nil {
+		rowsWithoutArea = in.Join.PeopleInUnmatchedTotal
 	}
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
 	nc := len(m.Categories)
-	sum := &Summary{Features: len(layer.Features), People: make([]float64, nc), Dots: make([]int, nc), Bounds: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
+	sum := &Summary{RowsWithoutArea: rowsWithoutArea, Features: len(layer.Features), People: make([]float64, nc), Dots: make([]int, nc), Bounds: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
 	for i, f := range layer.Features {
 		hasPeople := false
 		for k := range m.Categories {

@@ -2,47 +2,106 @@ package build
 
 import (
 	"fmt"
-	"path/filepath"
-	"strings"
 
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
-	"github.com/stipple-maps/stipple/geo/geojson"
+	"github.com/stipple-maps/stipple/geo/read"
+	"github.com/stipple-maps/stipple/geo/table"
 )
 
+// Input is what Load found in the map's inputs.
+type Input struct {
+	// Layer holds the areas in lon/lat, repaired.
+	Layer *geo.Layer
+	// Counts[i][k] is the people of category k in feature i.
+	Counts [][]float64
+	// Read is the reader's result: format, CRS, repair notes.
+	Read *read.Result
+	// Join is the table join's report, nil without a table.
+	Join *table.Report
+	// Unjoined lists features that found no table row (their counts are 0).
+	Unjoined map[int]bool
+}
+
 // Load reads the map's areas and returns them with their counts per
-// category (counts[i][k] for feature i, category k).
+// category (counts[i][k] for feature i, category k). A non-nil layer is used
+// as it is instead of reading m.Input.File.
 func Load(m *mapfile.Map, layer *geo.Layer) (*geo.Layer, [][]float64, error) {
+	in, err := LoadInput(m, layer)
+	if err != nil {
+		return nil, nil, err
+	}
+	return in.Layer, in.Counts, nil
+}
+
+// LoadInput is Load with the reports of reading and joining.
+func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
+	in := &Input{Layer: layer, Unjoined: map[int]bool{}}
 	if layer == nil {
-		path := m.Resolve(m.Input.File)
-		var err error
-		switch strings.ToLower(filepath.Ext(path)) {
-		case ".geojson", ".json":
-			layer, err = geojson.Read(path, geojson.Options{IDField: m.Input.ID})
-		default:
-			return nil, nil, fmt.Errorf("%s: key input.file: %s: unknown file type %q; stipple reads .geojson", m.Path, path, filepath.Ext(path))
-		}
+		res, err := read.File(m.Resolve(m.Input.File), read.Options{IDField: m.Input.ID, Layer: m.Input.Layer})
 		if err != nil {
-			return nil, nil, err
+			return nil, err
+		}
+		in.Read, in.Layer = res, res.Layer
+	}
+	layer = in.Layer
+	if t := m.Input.Table; t != nil {
+		tab, err := table.Read(m.Resolve(t.File), table.Options{
+			Key: t.Key, SkipRows: t.SkipRows, Trim: t.Trim, StripPrefix: t.StripPrefix,
+			KeepLast: t.KeepLast, NullAsZero: t.NullAsZero,
+		})
+		if err != nil {
+			return nil, err
+		}
+		header := map[string]bool{}
+		for _, h := range tab.Header {
+			header[h] = true
+		}
+		var cols []string
+		seen := map[string]bool{}
+		for _, c := range m.Categories {
+			for _, f := range c.Fields {
+				if header[f] && !seen[f] {
+					cols = append(cols, f)
+					seen[f] = true
+				}
+			}
+		}
+		rep, err := table.Join(layer, m.Input.ID, tab, cols)
+		if err != nil {
+			return nil, err
+		}
+		in.Join = rep
+		missing := map[string]bool{}
+		for _, k := range rep.FeaturesWithoutRow {
+			missing[k] = true
+		}
+		for i, f := range layer.Features {
+			if missing[tab.Options.Normalize(geo.Text(f.Props[m.Input.ID]))] {
+				in.Unjoined[i] = true
+			}
 		}
 	}
-	counts := make([][]float64, len(layer.Features))
+	in.Counts = make([][]float64, len(layer.Features))
 	ids := make(map[string]int, len(layer.Features))
 	for i := range layer.Features {
 		f := &layer.Features[i]
 		if j, dup := ids[f.ID]; dup {
-			return nil, nil, &geo.Error{Path: layer.Path, Index: i, ID: f.ID, Field: m.Input.ID,
+			return nil, &geo.Error{Path: layer.Path, Index: i, ID: f.ID, Field: m.Input.ID,
 				Message: fmt.Sprintf("id is also the id of feature %d; ids must be unique (they seed the dots)", j)}
 		}
 		ids[f.ID] = i
-		counts[i] = make([]float64, len(m.Categories))
+		in.Counts[i] = make([]float64, len(m.Categories))
+		if in.Unjoined[i] {
+			continue // no table row: reported by the join, no people
+		}
 		for k, c := range m.Categories {
 			n, err := geo.Count(layer.Path, f, c.Fields)
 			if err != nil {
-				return nil, nil, err
+				return nil, err
 			}
-			counts[i][k] = n
+			in.Counts[i][k] = n
 		}
 	}
-	return layer, counts, nil
+	return in, nil
 }

@@ -36,6 +36,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		})
 	}
 	md.NotDrawn.People = s.NotDrawn
+	md.NotDrawn.RowsWithoutArea = s.RowsWithoutArea
 	md.NotDrawn.Dots = int(math.Round(s.NotDrawn / m.PeoplePerDot))
 	md.NotDrawn.Features = s.Problems
 	if len(md.NotDrawn.Features) > 100 {

@@ -33,9 +33,32 @@ type Map struct {
 
 // Input names the polygons and where their counts come from.
 type Input struct {
+	// File is a .geojson, .shp or .gpkg file of polygons.
 	File string `toml:"file"`
 	// ID is the field that identifies an area; "" uses the feature's own id.
+	// With a table, it is also the field matched against the table's key.
 	ID string `toml:"id"`
+	// Layer picks the layer of a GeoPackage with several.
+	Layer string `toml:"layer"`
+	// Table, when set, is a CSV file holding the counts, joined on ID.
+	Table *Table `toml:"table"`
+}
+
+// Table is a CSV count table joined onto the areas.
+type Table struct {
+	File string `toml:"file"`
+	// Key is the table's column holding the area key.
+	Key string `toml:"key"`
+	// SkipRows skips description rows under the header.
+	SkipRows int `toml:"skip_rows"`
+	// Key normalisation, applied to both sides: trim white space, strip a
+	// fixed prefix, keep the last N characters.
+	Trim        bool   `toml:"trim"`
+	StripPrefix string `toml:"strip_prefix"`
+	KeepLast    int    `toml:"keep_last"`
+	// NullAsZero reads "-", "(X)", "N", "null", empty … as 0 and reports
+	// how many cells it zeroed; without it they are errors.
+	NullAsZero bool `toml:"null_as_zero"`
 }
 
 // Tiles sets the pyramid.
@@ -138,6 +161,20 @@ func (m *Map) check(md toml.MetaData, lines []string) error {
 	}
 	if !md.IsDefined("input", "file") {
 		return &Error{Path: m.Path, Key: "input.file", Msg: "missing: name the polygon file, e.g. [input] file = \"areas.geojson\""}
+	}
+	if t := m.Input.Table; t != nil {
+		if t.File == "" {
+			return errAt("missing: name the CSV file of counts", "input", "table", "file")
+		}
+		if t.Key == "" {
+			return errAt("missing: name the table's key column", "input", "table", "key")
+		}
+		if m.Input.ID == "" {
+			return errAt("missing: with a table, input.id names the areas' field matched to the table key", "input", "id")
+		}
+		if t.SkipRows < 0 || t.KeepLast < 0 {
+			return errAt("skip_rows and keep_last cannot be negative", "input", "table")
+		}
 	}
 	if !(m.PeoplePerDot > 0) {
 		return errAt(fmt.Sprintf("is %v; want a positive number of people per dot", m.PeoplePerDot), "people_per_dot")
