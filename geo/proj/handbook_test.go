@@ -209,3 +209,47 @@ func TestWebMercatorScale(t *testing.T) {
 	near(t, "eqc k", k, w/math.Cos(45*deg), 1e-8)
 	near(t, "eqc h", h, w*w*w/(1-WGS84.E2()), 1e-8)
 }
+
+// Constructors reject parameters the formulas cannot take, each with a
+// message naming the parameter.
+func TestConstructorErrors(t *testing.T) {
+	nan, inf := math.NaN(), math.Inf(1)
+	albers := func(e Ellipsoid, lat0, lon0, lat1, lat2, fe, fn float64) error {
+		_, err := NewAlbers(e, lat0, lon0, lat1, lat2, fe, fn)
+		return err
+	}
+	laea := func(e Ellipsoid, lat0, lon0, fe, fn float64) error {
+		_, err := NewLAEA(e, lat0, lon0, fe, fn)
+		return err
+	}
+	for _, c := range []struct {
+		err  error
+		want string
+	}{
+		{albers(WGS84, 0, 0, -20, 20, 0, 0), "proj: albers: standard parallels -20 and 20 are symmetric about the equator (the cone would be a cylinder)"},
+		{albers(WGS84, 0, 0, 0, 0, 0, 0), "proj: albers: standard parallels 0 and 0 are symmetric about the equator (the cone would be a cylinder)"},
+		{albers(WGS84, 0, 0, 29.5, 91, 0, 0), "proj: albers: standard parallel 2 91 is outside [-90, 90] degrees"},
+		{albers(WGS84, -90.5, 0, 29.5, 45.5, 0, 0), "proj: albers: latitude of origin -90.5 is outside [-90, 90] degrees"},
+		{albers(WGS84, 0, 0, nan, 45.5, 0, 0), "proj: albers: standard parallel 1 NaN is outside [-90, 90] degrees"},
+		{albers(WGS84, 0, 181, 29.5, 45.5, 0, 0), "proj: albers: central meridian 181 is outside [-180, 180] degrees"},
+		{albers(WGS84, 0, 0, 29.5, 45.5, inf, 0), "proj: albers: false easting +Inf is not a finite number"},
+		{albers(WGS84, 0, 0, 29.5, 45.5, 0, nan), "proj: albers: false northing NaN is not a finite number"},
+		{albers(Ellipsoid{A: 0}, 0, 0, 29.5, 45.5, 0, 0), "proj: ellipsoid semi-major axis 0 is not a positive finite length"},
+		{albers(Ellipsoid{A: 6e6, F: -0.1}, 0, 0, 29.5, 45.5, 0, 0), "proj: ellipsoid flattening -0.1 is outside [0, 1)"},
+		{laea(WGS84, 95, 0, 0, 0), "proj: laea: latitude of centre 95 is outside [-90, 90] degrees"},
+		{laea(WGS84, 0, nan, 0, 0), "proj: laea: longitude of centre NaN is outside [-180, 180] degrees"},
+		{laea(WGS84, 0, 0, nan, 0), "proj: laea: false easting NaN is not a finite number"},
+		{laea(Sphere(inf), 0, 0, 0, 0), "proj: ellipsoid semi-major axis +Inf is not a positive finite length"},
+	} {
+		if c.err == nil || c.err.Error() != c.want {
+			t.Errorf("got %v, want %s", c.err, c.want)
+		}
+	}
+	// Tangent cones and polar centres are fine.
+	if err := albers(WGS84, 50, 10, 50, 50, 0, 0); err != nil {
+		t.Error(err)
+	}
+	if err := laea(WGS84, -90, 180, 0, 0); err != nil {
+		t.Error(err)
+	}
+}

@@ -88,8 +88,9 @@ func projString(parts ...string) string { return strings.Join(parts, " ") }
 const (
 	deg = math.Pi / 180
 	// inverseIterations bounds every latitude iteration; each is Newton's
-	// method (or eq. 3-16, which is Newton's method on q) from a start
-	// within 0.2° and converges in a few steps.
+	// method (or eq. 3-16, which is Newton's method on q) from the series
+	// of Snyder eq. 3-18, which is within 2.5e-10 rad on WGS 84 (measured
+	// on a 0.01° grid), so one or two steps suffice.
 	inverseIterations = 20
 )
 
@@ -170,8 +171,8 @@ func qpMinusQ(chi, e, e2 float64) float64 {
 // qp − q equals v, by Newton's method (d(qp−q)/dχ = dq/dφ =
 // 2(1−e²) sin χ/(1 − e² cos²χ)², Snyder eq. 3-12 differentiated). It
 // starts from the authalic colatitude χβ = 2 asin(√(v/2qp)) corrected by
-// the series of Snyder eq. 3-18 written for colatitudes, which is within
-// 1e-8 rad, so that one or two steps reach full precision.
+// the series of Snyder eq. 3-18 written for colatitudes (within 2.5e-10
+// rad), so that one or two steps reach full precision.
 func colatFromV(v, e, e2, qp float64) float64 {
 	if !(v > 0) {
 		if v == 0 {
@@ -232,9 +233,11 @@ func phiFromQ(q, e, e2, qp float64) float64 {
 	if math.Abs(q) >= qp {
 		return math.Copysign(math.Pi/2, q)
 	}
-	// Start from the authalic latitude with the series of Snyder eq. 3-18,
-	// which is already within 1e-8 rad; eq. 3-16 then converges in a
-	// step or two.
+	// Start from the authalic latitude with the series of Snyder eq. 3-18
+	// (truncated after e⁶, within 2.5e-10 rad = 1.4e-8° on WGS 84, the
+	// same as the difference of PROJ 9.1's LAEA inverse from ours in the
+	// cs2cs test, so PROJ seems to stop at the series); eq. 3-16 then
+	// converges in a step or two.
 	beta := math.Asin(q / qp)
 	e4 := e2 * e2
 	e6 := e4 * e2
