@@ -39,7 +39,8 @@
 //
 // Degenerate rings: a ring that is not closed is closed, with a Warning. A
 // ring with fewer than 4 points once closed (for example a ring of two
-// points) or with zero area is dropped with a Warning; the feature is kept,
+// points) or with zero area (or an area too small to tell its orientation
+// from rounding) is dropped with a Warning; the feature is kept,
 // with empty Geometry if nothing is left (and a Warning saying so), so no
 // feature vanishes silently.
 //
@@ -78,7 +79,8 @@
 // file; NumParts and NumPoints must fit in the record's bytes before any
 // allocation, and the running vertex total within Options.MaxVertices; part
 // indices start at 0, increase and stay below NumPoints; NaN or infinite
-// coordinates are errors. The DBF header length must match its field
+// coordinates are errors. The record numbers in the record headers are not
+// checked: the index gives each record's place. The DBF header length must match its field
 // descriptors, fields must fit in the record, and the declared records must
 // fit in the file. Errors are one line, prefixed "shapefile: ", and where
 // they concern one record they wrap a *geo.Error (feature index, id, field).
