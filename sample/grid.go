@@ -56,7 +56,9 @@ func newCellGrid(rings [][]float64, ix *edgeIndex, minX, minY, maxX, maxY float6
 // gridOf classifies about target cells, shaped close to square.
 func gridOf(rings [][]float64, minX, minY, maxX, maxY float64, target int) *cellGrid {
 	w, h := maxX-minX, maxY-minY
-	nx := int(math.Round(math.Sqrt(float64(target) * w / h)))
+	// Cells about square on the ground near the equator: x is in degrees,
+	// y in units of the sphere's radius.
+	nx := int(math.Round(math.Sqrt(float64(target) * w * degToRad / h)))
 	nx = max(1, min(nx, target))
 	ny := max(1, min(target/nx, target))
 	g := &cellGrid{lattice: lattice{minX: minX, minY: minY, cw: w / float64(nx), ch: h / float64(ny), nx: nx, ny: ny}}

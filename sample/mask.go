@@ -63,7 +63,7 @@ func NewMask(polys []orb.MultiPolygon) *Mask {
 	}
 	cells := max(1, min(maxMaskCells, 4*len(m.parts)))
 	w, h := maxX-minX, maxY-minY
-	nx := max(1, min(cells, int(math.Round(math.Sqrt(float64(cells)*w/h)))))
+	nx := max(1, min(cells, int(math.Round(math.Sqrt(float64(cells)*w*degToRad/h)))))
 	ny := max(1, cells/nx)
 	m.grid = lattice{minX: minX, minY: minY, cw: w / float64(nx), ch: h / float64(ny), nx: nx, ny: ny}
 	each := func(f func(c, id int)) {
