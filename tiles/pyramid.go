@@ -6,11 +6,12 @@ import (
 	"fmt"
 	"image"
 	"image/color"
-	"math"
+	"math/bits"
 	"os"
 	"path/filepath"
 	"runtime"
 	"slices"
+	"sort"
 	"strconv"
 	"sync"
 	"sync/atomic"
@@ -28,31 +29,75 @@ type Options struct {
 	TileSize int
 	// Colors has one colour per category, by category number.
 	Colors []color.NRGBA
-	// Look gives the dot's look at a zoom.
+	// Look gives the dot's look at a zoom, in pixels of TileSize tiles.
 	Look func(z int) render.Dot
+	// HiDPI also writes {z}/{x}/{y}@2x.png: tiles of twice the pixels with
+	// every dot twice as wide, for high-density screens.
+	HiDPI bool
 	// Workers is the number of tiles rendered at once; 0 means all cores.
 	Workers int
+	// Fingerprint identifies everything the tiles depend on (dots, look,
+	// colours, sizes). A rerun with the same fingerprint keeps the zooms and
+	// tiles an interrupted run finished; with another, the old tiles are
+	// removed first. "" never resumes.
+	Fingerprint string
 	// Progress, when set, is called after each tile with the running totals.
 	Progress func(Stats)
 }
 
-// Stats count what a pyramid write did.
+// Stats count what a pyramid write did. Tiles kept from an interrupted run
+// count as written, so the totals are those of an uninterrupted run.
 type Stats struct {
-	Tiles   int64         // tiles written
-	Bytes   int64         // bytes of PNG written
+	Tiles   int64         // 1× tiles written
+	Tiles2x int64         // @2x tiles written
+	Bytes   int64         // bytes of PNG, both kinds
 	Empty   int64         // candidate tiles with no ink, not written
-	PerZoom map[int]int64 // tiles written per zoom
+	Kept    int64         // tiles found complete from an earlier run
+	PerZoom map[int]int64 // 1× tiles per zoom
+	// Planned is the number of tiles that hold dots, over all zooms and
+	// kinds: an estimate of the final Tiles + Tiles2x for progress displays.
+	Planned int64
 }
 
 // Source is where the dots come from: a sorted dot store.
 type Source interface {
-	Tiles(z int, fn func(x, y int))
-	Range(first, last uint64) []uint64
+	// Keys returns every dot key in ascending order.
+	Keys() []uint64
 }
 
-type job struct{ z, x, y int }
+// releaser is a Source that can drop pages it has read (a mapped store).
+type releaser interface{ Release() }
+
+// releaseEvery is how many bytes of keys are read between Release calls:
+// resident memory of a mapped store stays within about this much.
+const releaseEvery = 128 << 20
+
+// pass is one kind of tile: 1× or @2x.
+type pass struct {
+	size   int
+	shift  int // log2(size)
+	look   func(z int) render.Dot
+	suffix string // "" or "@2x"
+}
+
+type job struct {
+	p       *pass
+	z, x, y int
+	hist    bool
+	n       int // keys in the tile, for ordering
+}
 
 // Write renders every tile in the zoom range that has ink and writes it.
+//
+// Each zoom is drawn one of two ways, decided by the dot's look there. Where
+// a dot is narrower than a pixel, the tile is a count canvas: every dot adds
+// one to the pixel holding its centre, and compositing turns counts into ink
+// (count × dot mass). Those low zooms hold the most dots per tile, and a dot
+// costs a shift and an increment there. Where a dot is a pixel or wider it is
+// an anti-aliased disc from a precomputed stamp, and the tile also draws the
+// dots of its neighbours' edge strips, so a dot across an edge has the same
+// pixels on both tiles. All tiles of all zooms go into one queue, the largest
+// count tiles first, so every worker stays busy even at zoom 0.
 func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if opt.TileSize != 256 && opt.TileSize != 512 {
 		return Stats{}, fmt.Errorf("tiles: tile size %d; want 256 or 512", opt.TileSize)
@@ -64,206 +109,221 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
-	st := Stats{PerZoom: map[int]int64{}}
-	var mu sync.Mutex
-	var failed atomic.Value
-	enc := render.NewEncoder()
-	for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
-		jobs := Candidates(src, z)
-		ch := make(chan job)
-		var wg sync.WaitGroup
-		for w := 0; w < workers; w++ {
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				r := newTileRenderer(src, opt)
-				var buf bytes.Buffer
-				for j := range ch {
-					if failed.Load() != nil {
-						continue
-					}
-					img := r.render(j.z, j.x, j.y)
-					if img == nil {
-						mu.Lock()
-						st.Empty++
-						mu.Unlock()
-						continue
-					}
-					buf.Reset()
-					if err := enc.Encode(&buf, img); err != nil {
-						failed.Store(err)
-						continue
-					}
-					if err := writeAtomic(opt.Dir, j, buf.Bytes()); err != nil {
-						failed.Store(err)
-						continue
-					}
-					mu.Lock()
-					st.Tiles++
-					st.Bytes += int64(buf.Len())
-					st.PerZoom[j.z]++
-					snap := st
-					mu.Unlock()
-					if opt.Progress != nil {
-						opt.Progress(snap)
-					}
-				}
-			}()
-		}
-		for _, j := range jobs {
-			if ctx.Err() != nil {
-				break
+	w := &writer{opt: opt, src: src, keys: src.Keys(), dirs: map[string]bool{}, st: Stats{PerZoom: map[int]int64{}}}
+	w.rel, _ = src.(releaser)
+	man, resuming, err := openManifest(opt.Dir, opt.Fingerprint)
+	if err != nil {
+		return Stats{}, err
+	}
+	w.man, w.resuming = man, resuming
+	w.tmp = filepath.Join(opt.Dir, StateDir, "tmp")
+	os.RemoveAll(w.tmp) // stale temporary tiles of a killed run
+	if err := os.MkdirAll(w.tmp, 0o755); err != nil {
+		return Stats{}, fmt.Errorf("tiles: %w", err)
+	}
+	passes := []*pass{{size: opt.TileSize, look: opt.Look}}
+	if opt.HiDPI {
+		look := opt.Look
+		passes = append(passes, &pass{size: 2 * opt.TileSize, suffix: "@2x", look: func(z int) render.Dot {
+			d := look(z)
+			d.Diameter *= 2
+			return d
+		}})
+	}
+	// Plan: every zoom not yet done, with its candidate tiles.
+	var hist, disc []job
+	w.left = map[string]*int64{}
+	for _, p := range passes {
+		p.shift = bits.TrailingZeros(uint(p.size))
+		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
+			zk := zoomKey(z, p.suffix)
+			occ := occupied(w.keys, z)
+			if done, ok := man.Done[zk]; ok {
+				w.addDone(z, p, done)
+				continue
 			}
-			ch <- job{z, j[0], j[1]}
-		}
-		close(ch)
-		wg.Wait()
-		if err, _ := failed.Load().(error); err != nil {
-			return st, err
-		}
-		if err := ctx.Err(); err != nil {
-			return st, err
+			w.st.Planned += int64(len(occ))
+			isHist := p.look(z).Diameter < 1
+			var jobs []job
+			if isHist {
+				for _, t := range occ {
+					jobs = append(jobs, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
+				}
+				hist = append(hist, jobs...)
+			} else {
+				for _, t := range withFringe(occ, z) {
+					jobs = append(jobs, job{p: p, z: z, x: t.x, y: t.y, n: t.n})
+				}
+				disc = append(disc, jobs...)
+			}
+			n := int64(len(jobs))
+			w.left[zk] = &n
+			w.zs = append(w.zs, zk)
+			man.began(zk)
 		}
 	}
-	return st, nil
-}
+	if err := man.save(opt.Dir); err != nil {
+		return Stats{}, err
+	}
+	w.zoomStats = map[string]*ZoomStats{}
+	for _, zk := range w.zs {
+		w.zoomStats[zk] = &ZoomStats{}
+	}
+	// Zero-job zooms are done at once.
+	for zk, n := range w.left {
+		if *n == 0 {
+			if err := w.finishZoom(zk); err != nil {
+				return w.st, err
+			}
+		}
+	}
+	// Longest processing time first for the count tiles; disc tiles by zoom
+	// and in Z-order, so reads sweep the store.
+	slices.SortStableFunc(hist, func(a, b job) int { return b.n - a.n })
+	all := append(hist, disc...)
 
-// Candidates lists the tiles at zoom z that may have ink: those holding dots
-// and their eight neighbours (a dot near an edge inks the next tile too), in
-// row-major order.
-func Candidates(src Source, z int) [][2]int {
-	n := 1 << z
-	seen := map[[2]int]bool{}
-	src.Tiles(z, func(x, y int) {
-		for dy := -1; dy <= 1; dy++ {
-			for dx := -1; dx <= 1; dx++ {
-				ny := y + dy
-				if ny < 0 || ny >= n {
+	ch := make(chan job, 4*workers)
+	var wg sync.WaitGroup
+	var failed atomic.Pointer[error]
+	for i := 0; i < workers; i++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			r := newTileRenderer(w, len(opt.Colors))
+			for j := range ch {
+				if failed.Load() != nil {
 					continue
 				}
-				seen[[2]int{(x + dx + n) % n, ny}] = true
-			}
-		}
-	})
-	out := make([][2]int, 0, len(seen))
-	for k := range seen {
-		out = append(out, k)
-	}
-	slices.SortFunc(out, func(a, b [2]int) int {
-		if a[1] != b[1] {
-			return a[1] - b[1]
-		}
-		return a[0] - b[0]
-	})
-	return out
-}
-
-type tileRenderer struct {
-	src    Source
-	opt    Options
-	canvas *render.Canvas
-	img    *image.NRGBA
-}
-
-func newTileRenderer(src Source, opt Options) *tileRenderer {
-	s := opt.TileSize
-	return &tileRenderer{
-		src:    src,
-		opt:    opt,
-		canvas: render.NewCanvas(s, s, len(opt.Colors)),
-		img:    image.NewNRGBA(image.Rect(0, 0, s, s)),
-	}
-}
-
-// render draws tile (z, x, y); nil when it has no ink.
-func (r *tileRenderer) render(z, x, y int) *image.NRGBA {
-	T := r.opt.TileSize
-	look := r.opt.Look(z)
-	r.canvas.Reset()
-	scale := float64(T) * math.Exp2(float64(z)) / dotstore.WorldSize
-	n := 1 << z
-	margin := look.Diameter/2 + 1
-	// Depth of the sub-tiles that cover the margin strip of a neighbour.
-	k := 0
-	for float64(T)/math.Exp2(float64(k+1)) >= margin && z+k+1 <= dotstore.WorldBits && k < 8 {
-		k++
-	}
-	s := 1 << k
-	// draw puts keys from the tile in column nx, which lies dx columns from
-	// this one; nx-dx differs from x by the world width across the
-	// antimeridian, which shifts those dots to the side they are seen on.
-	draw := func(keys []uint64, nx, dx int) {
-		ox := float64((nx - dx) * T)
-		oy := float64(y * T)
-		for _, key := range keys {
-			wx, wy, cat := dotstore.Split(key)
-			px := (float64(wx)+0.5)*scale - ox
-			py := (float64(wy)+0.5)*scale - oy
-			if px < -margin || py < -margin || px > float64(T)+margin || py > float64(T)+margin {
-				continue
-			}
-			r.canvas.Add(cat, px, py, look)
-		}
-	}
-	for dy := -1; dy <= 1; dy++ {
-		ny := y + dy
-		if ny < 0 || ny >= n {
-			continue
-		}
-		for dx := -1; dx <= 1; dx++ {
-			nx := (x + dx + n) % n
-			if dx == 0 && dy == 0 {
-				draw(r.src.Range(dotstore.TileRange(z, x, y)), x, 0)
-				continue
-			}
-			// Only the strip of the neighbour next to this tile can reach it.
-			sx0, sx1 := 0, s-1
-			if dx < 0 {
-				sx0 = s - 1
-			} else if dx > 0 {
-				sx1 = 0
-			}
-			sy0, sy1 := 0, s-1
-			if dy < 0 {
-				sy0 = s - 1
-			} else if dy > 0 {
-				sy1 = 0
-			}
-			for sy := sy0; sy <= sy1; sy++ {
-				for sx := sx0; sx <= sx1; sx++ {
-					keys := r.src.Range(dotstore.TileRange(z+k, nx*s+sx, ny*s+sy))
-					if len(keys) > 0 {
-						draw(keys, nx, dx)
-					}
+				if err := w.do(r, j); err != nil {
+					failed.CompareAndSwap(nil, &err)
 				}
 			}
+		}()
+	}
+	for _, j := range all {
+		if ctx.Err() != nil || failed.Load() != nil {
+			break
 		}
+		ch <- j
 	}
-	if r.canvas.Empty() {
-		return nil
+	close(ch)
+	wg.Wait()
+	if p := failed.Load(); p != nil {
+		return w.st, *p
 	}
-	r.canvas.Composite(r.opt.Colors, r.img)
-	return r.img
+	if err := ctx.Err(); err != nil {
+		return w.st, err
+	}
+	return w.st, nil
 }
 
-var dirMu sync.Mutex
-var dirsMade = map[string]bool{}
+func zoomKey(z int, suffix string) string { return strconv.Itoa(z) + suffix }
 
-// writeAtomic writes a tile to a temporary file and renames it into place,
-// so a tile path holds either nothing or a whole tile, even after a kill.
-func writeAtomic(root string, j job, data []byte) error {
-	dir := filepath.Join(root, strconv.Itoa(j.z), strconv.Itoa(j.x))
-	dirMu.Lock()
-	if !dirsMade[dir] {
+type writer struct {
+	opt       Options
+	src       Source
+	keys      []uint64
+	rel       releaser
+	read      atomic.Int64
+	man       *manifest
+	resuming  bool
+	tmp       string
+	mu        sync.Mutex
+	st        Stats
+	dirs      map[string]bool
+	left      map[string]*int64
+	zs        []string
+	zoomStats map[string]*ZoomStats
+}
+
+func (w *writer) addDone(z int, p *pass, d ZoomStats) {
+	if p.suffix == "" {
+		w.st.Tiles += d.Tiles
+		w.st.PerZoom[z] += d.Tiles
+	} else {
+		w.st.Tiles2x += d.Tiles
+	}
+	w.st.Bytes += d.Bytes
+	w.st.Empty += d.Empty
+}
+
+// finishZoom records a finished zoom in the manifest; w.mu must not be held.
+func (w *writer) finishZoom(zk string) error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	w.man.Done[zk] = *w.zoomStats[zk]
+	return w.man.save(w.opt.Dir)
+}
+
+// do renders, encodes and writes one tile.
+func (w *writer) do(r *tileRenderer, j job) error {
+	zk := zoomKey(j.z, j.p.suffix)
+	dir := filepath.Join(w.opt.Dir, strconv.Itoa(j.z), strconv.Itoa(j.x))
+	final := filepath.Join(dir, strconv.Itoa(j.y)+j.p.suffix+".png")
+	var size int64 = -1 // -1: no ink
+	kept := false
+	if w.resuming {
+		if fi, err := os.Stat(final); err == nil && fi.Mode().IsRegular() {
+			size, kept = fi.Size(), true
+		}
+	}
+	if !kept {
+		img := r.render(j)
+		if img != nil {
+			r.buf.Reset()
+			if err := r.enc.Encode(&r.buf, img); err != nil {
+				return fmt.Errorf("tiles: %d/%d/%d: %w", j.z, j.x, j.y, err)
+			}
+			if err := w.place(dir, final, j, r.buf.Bytes()); err != nil {
+				return err
+			}
+			size = int64(r.buf.Len())
+		}
+	}
+	w.mu.Lock()
+	zs := w.zoomStats[zk]
+	if size < 0 {
+		w.st.Empty++
+		zs.Empty++
+	} else {
+		if j.p.suffix == "" {
+			w.st.Tiles++
+			w.st.PerZoom[j.z]++
+		} else {
+			w.st.Tiles2x++
+		}
+		w.st.Bytes += size
+		zs.Tiles++
+		zs.Bytes += size
+		if kept {
+			w.st.Kept++
+		}
+	}
+	snap := w.st
+	w.mu.Unlock()
+	if w.opt.Progress != nil {
+		snap.PerZoom = nil // the live map is not safe to share
+		w.opt.Progress(snap)
+	}
+	if atomic.AddInt64(w.left[zk], -1) == 0 {
+		return w.finishZoom(zk)
+	}
+	return nil
+}
+
+// place writes a tile to a temporary file and renames it into place, so a
+// tile path holds either nothing or a whole tile, even after a kill.
+func (w *writer) place(dir, final string, j job, data []byte) error {
+	w.mu.Lock()
+	if !w.dirs[dir] {
 		if err := os.MkdirAll(dir, 0o755); err != nil {
-			dirMu.Unlock()
+			w.mu.Unlock()
 			return fmt.Errorf("tiles: %w", err)
 		}
-		dirsMade[dir] = true
+		w.dirs[dir] = true
 	}
-	dirMu.Unlock()
-	final := filepath.Join(dir, strconv.Itoa(j.y)+".png")
-	tmp := final + ".tmp"
+	w.mu.Unlock()
+	tmp := filepath.Join(w.tmp, fmt.Sprintf("%d-%d-%d%s.png", j.z, j.x, j.y, j.p.suffix))
 	if err := os.WriteFile(tmp, data, 0o644); err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
@@ -271,4 +331,227 @@ func writeAtomic(root string, j job, data []byte) error {
 		return fmt.Errorf("tiles: %w", err)
 	}
 	return nil
+}
+
+// noteRead counts key bytes read and lets a mapped store drop its pages now
+// and then.
+func (w *writer) noteRead(n int) {
+	if w.rel == nil {
+		return
+	}
+	if w.read.Add(int64(8*n)) > releaseEvery {
+		w.read.Store(0)
+		w.rel.Release()
+	}
+}
+
+type tileAt struct{ x, y, n int }
+
+// occupied lists the tiles at zoom z that hold dots, in Z-order.
+func occupied(keys []uint64, z int) []tileAt {
+	var out []tileAt
+	dotstore.TilesOf(keys, z, func(x, y int, k []uint64) { out = append(out, tileAt{x, y, len(k)}) })
+	return out
+}
+
+// withFringe adds to the occupied tiles (Z-ordered) their empty neighbours,
+// which a dot across the edge may ink, and returns all in Z-order.
+func withFringe(occ []tileAt, z int) []tileAt {
+	n := 1 << z
+	code := func(x, y int) uint64 { f, _ := dotstore.TileRange(z, x, y); return f }
+	has := func(x, y int) bool {
+		c := code(x, y)
+		i := sort.Search(len(occ), func(i int) bool { return code(occ[i].x, occ[i].y) >= c })
+		return i < len(occ) && occ[i].x == x && occ[i].y == y
+	}
+	var fringe []tileAt
+	for _, t := range occ {
+		for dy := -1; dy <= 1; dy++ {
+			ny := t.y + dy
+			if ny < 0 || ny >= n {
+				continue
+			}
+			for dx := -1; dx <= 1; dx++ {
+				nx := (t.x + dx + n) % n
+				if (dx != 0 || dy != 0) && !has(nx, ny) {
+					fringe = append(fringe, tileAt{nx, ny, 0})
+				}
+			}
+		}
+	}
+	out := append(slices.Clone(occ), fringe...)
+	slices.SortFunc(out, func(a, b tileAt) int {
+		ca, cb := code(a.x, a.y), code(b.x, b.y)
+		switch {
+		case ca < cb:
+			return -1
+		case ca > cb:
+			return 1
+		}
+		return 0
+	})
+	return slices.CompactFunc(out, func(a, b tileAt) bool { return a.x == b.x && a.y == b.y })
+}
+
+// tileRenderer is one worker's buffers.
+type tileRenderer struct {
+	w      *writer
+	ncat   int
+	canvas map[int]*render.Canvas // by tile size
+	img    map[int]*image.NRGBA
+	stamps map[string]*render.Stamp
+	enc    *render.Encoder
+	buf    bytes.Buffer
+}
+
+func newTileRenderer(w *writer, ncat int) *tileRenderer {
+	return &tileRenderer{w: w, ncat: ncat, canvas: map[int]*render.Canvas{}, img: map[int]*image.NRGBA{},
+		stamps: map[string]*render.Stamp{}, enc: render.NewEncoder()}
+}
+
+// render draws one tile; nil when it has no ink.
+func (r *tileRenderer) render(j job) *image.NRGBA {
+	T := j.p.size
+	c := r.canvas[T]
+	if c == nil {
+		c = render.NewCanvas(T, T, r.ncat)
+		r.canvas[T] = c
+		r.img[T] = image.NewNRGBA(image.Rect(0, 0, T, T))
+	}
+	c.Reset()
+	look := j.p.look(j.z)
+	if j.hist {
+		r.count(c, j)
+		if c.Empty() {
+			return nil
+		}
+		c.CompositeCounts(r.w.opt.Colors, look.Mass(), r.img[T])
+		return r.img[T]
+	}
+	if look.Diameter > render.MaxStampDiameter {
+		look.Diameter = render.MaxStampDiameter
+	}
+	sk := zoomKey(j.z, j.p.suffix)
+	st := r.stamps[sk]
+	if st == nil {
+		st = render.NewStamp(look)
+		r.stamps[sk] = st
+	}
+	r.discs(c, j, st)
+	if c.Empty() {
+		return nil
+	}
+	c.Composite(r.w.opt.Colors, r.img[T])
+	return r.img[T]
+}
+
+// count fills a count canvas: one per dot in the pixel holding its centre.
+func (r *tileRenderer) count(c *render.Canvas, j job) {
+	keys := tileKeys(r.w.keys, j.z, j.x, j.y)
+	r.w.noteRead(len(keys))
+	// Pixel = world coordinate >> s, minus the tile's first pixel.
+	s := dotstore.WorldBits - j.z - j.p.shift
+	ox, oy := j.x<<j.p.shift, j.y<<j.p.shift
+	if s >= 0 {
+		for _, k := range keys {
+			wx, wy, cat := dotstore.Split(k)
+			c.Count(cat, int(wx>>s)-ox, int(wy>>s)-oy)
+		}
+		return
+	}
+	for _, k := range keys {
+		wx, wy, cat := dotstore.Split(k)
+		c.Count(cat, int(wx)<<-s-ox, int(wy)<<-s-oy)
+	}
+}
+
+// subPixel is the position of a dot's centre at zoom z, in 1/Sub pixels of
+// tiles 2^shift pixels wide, from the world's top-left corner: (w + 0.5) ·
+// 2^(z+shift+4) / 2^29, computed in integers.
+func subPixel(w uint32, z, shift int) int {
+	v := 2*uint64(w) + 1
+	sh := z + shift + 4 - (dotstore.WorldBits + 1)
+	if sh >= 0 {
+		return int(v << sh)
+	}
+	return int(v >> -sh)
+}
+
+// discs draws the tile's own dots and those of its neighbours' edge strips.
+func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
+	T := j.p.size
+	n := 1 << j.z
+	margin := st.Reach() + 1 // pixels beyond the edge that can reach in
+	draw := func(keys []uint64, nx, dx int) {
+		r.w.noteRead(len(keys))
+		ox := (nx - dx) * T * render.Sub
+		oy := j.y * T * render.Sub
+		for _, k := range keys {
+			wx, wy, cat := dotstore.Split(k)
+			c.AddStamp(cat, subPixel(wx, j.z, j.p.shift)-ox, subPixel(wy, j.z, j.p.shift)-oy, st)
+		}
+	}
+	for dy := -1; dy <= 1; dy++ {
+		ny := j.y + dy
+		if ny < 0 || ny >= n {
+			continue
+		}
+		for dx := -1; dx <= 1; dx++ {
+			nx := (j.x + dx + n) % n
+			keys := tileKeys(r.w.keys, j.z, nx, ny)
+			if len(keys) == 0 {
+				continue
+			}
+			if dx == 0 && dy == 0 {
+				draw(keys, nx, 0)
+				continue
+			}
+			r.strip(keys, j.z, nx, ny, T, margin, -dx, -dy, func(k []uint64) { draw(k, nx, dx) })
+		}
+	}
+}
+
+// strip calls fn with the keys of tile (z, x, y) that may lie within margin
+// pixels of its side facing (sx, sy) (each −1, 0 or +1: left/top, none,
+// right/bottom), by descending into the quadrants along that side until a
+// quadrant is no more than twice the margin wide.
+func (r *tileRenderer) strip(keys []uint64, z, x, y, size, margin, sx, sy int, fn func([]uint64)) {
+	if len(keys) == 0 {
+		return
+	}
+	if size <= 2*margin || z >= dotstore.WorldBits {
+		fn(keys)
+		return
+	}
+	for q := 0; q < 4; q++ {
+		qx, qy := q&1, q>>1
+		if (sx < 0 && qx != 0) || (sx > 0 && qx != 1) || (sy < 0 && qy != 0) || (sy > 0 && qy != 1) {
+			continue
+		}
+		cx, cy := 2*x+qx, 2*y+qy
+		r.strip(tileKeys(keys, z+1, cx, cy), z+1, cx, cy, size/2, margin, sx, sy, fn)
+	}
+}
+
+// tileKeys returns the keys of tile (z, x, y) within sorted keys.
+func tileKeys(keys []uint64, z, x, y int) []uint64 {
+	first, last := dotstore.TileRange(z, x, y)
+	return searchRange(keys, first, last)
+}
+
+func searchRange(keys []uint64, first, last uint64) []uint64 {
+	i := sort.Search(len(keys), func(i int) bool { return keys[i] >= first })
+	j := i + sort.Search(len(keys)-i, func(k int) bool { return keys[i+k] > last })
+	return keys[i:j]
+}
+
+// Candidates lists the tiles at zoom z that may have ink: those holding dots
+// and their neighbours (a dot near an edge inks the next tile too), in
+// Z-order.
+func Candidates(src Source, z int) [][2]int {
+	var out [][2]int
+	for _, t := range withFringe(occupied(src.Keys(), z), z) {
+		out = append(out, [2]int{t.x, t.y})
+	}
+	return out
 }

@@ -2,13 +2,22 @@ package build
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
+	"encoding/json"
 	"fmt"
+	"hash"
+	"image/color"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/debug"
+	"slices"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/paulmach/orb"
@@ -23,17 +32,39 @@ import (
 // Version is stipple's version, written into every map's metadata.
 var Version = "0.1.0-dev"
 
+// sampleFormat names the dot store layout and the sampling rules behind it;
+// change it when sample places dots differently, so old stores are redone.
+const sampleFormat = "stipple-dots/1"
+
+// tileFormat names how tiles are drawn; change it when pixels change, so
+// a rerun redraws instead of keeping old tiles.
+const tileFormat = "stipple-tiles/2"
+
+// DefaultMemory is the dot store's default memory budget: 2 GiB holds 134
+// million dots in memory (16 bytes each while sorting); more spill to disk.
+const DefaultMemory = 2 << 30
+
 // Options are run settings that are not part of the map itself.
 type Options struct {
 	// Workers is the number of goroutines for sampling and tiles; 0 = all cores.
 	Workers int
-	// Log receives progress lines and the summary; nil discards them.
+	// Log receives progress lines and the summary; nil discards them. On a
+	// terminal, progress is one line redrawn in place.
 	Log io.Writer
 	// Layer, when set, is used instead of reading m.Input.File.
 	Layer *geo.Layer
 	// Input, when set, is used instead of loading the map's inputs (the
 	// CLI loads first to print the reading and join reports).
 	Input *Input
+	// Memory is the dot store's budget in bytes; 0 means DefaultMemory.
+	// Past it the store spills sorted runs to the output folder's .stipple
+	// folder and merges them.
+	Memory int64
+	// HiDPI also writes {z}/{x}/{y}@2x.png tiles of twice the pixels.
+	HiDPI bool
+	// ProgressEvery is the interval of progress lines when Log is not a
+	// terminal; 0 means 10 s, a negative value turns them off.
+	ProgressEvery time.Duration
 }
 
 // Summary is what a run did.
@@ -51,9 +82,56 @@ type Summary struct {
 	Bounds          orb.Bound
 	Metadata        *tiles.Metadata
 	OutputDir       string
+	// StoreReused is set when the dots came from the output folder's store,
+	// whose sampling fingerprint matched, instead of being placed anew.
+	StoreReused bool
+	// StoreRuns is the number of sorted runs spilled to disk (0: in memory).
+	StoreRuns int
+	// PlaceTime and TileTime split Elapsed: sampling the dots (with sorting
+	// and storing them), and writing the tiles.
+	PlaceTime, TileTime time.Duration
+	// PeakRSS is the process's peak resident memory in bytes (getrusage
+	// maxrss; 0 where not available).
+	PeakRSS int64
 }
 
+// storeInfo is written beside the dot store (dots.json): the sampling
+// fingerprint and the sampling results that the summary and metadata need,
+// so a restyled rerun need not sample again.
+type storeInfo struct {
+	Format      string     `json:"format"`
+	Fingerprint string     `json:"fingerprint"`
+	Dots        int        `json:"dots"`
+	Features    int        `json:"features"`
+	People      []float64  `json:"people"`
+	Drawn       []int      `json:"dots_drawn"`
+	NotDrawn    float64    `json:"not_drawn_people"`
+	Problems    []string   `json:"problems"`
+	Bounds      [4]float64 `json:"bounds"`
+	StoreBytes  int64      `json:"store_bytes"`
+	Placed      string     `json:"placed_by"`
+	Categories  []string   `json:"category_keys"`
+	PeoplePer   float64    `json:"people_per_dot"`
+	Seed        uint64     `json:"seed"`
+	InputPath   string     `json:"input"`
+	SpilledRuns int        `json:"spilled_runs"`
+}
+
+const (
+	storeFile = "dots.bin"
+	infoFile  = "dots.json"
+)
+
 // Run renders the map m into its output folder.
+//
+// The dots are placed once into a store in the output folder
+// (.stipple/dots.bin, with dots.json holding the sampling fingerprint: a
+// hash of the areas' geometry and counts, the id field, seed, people per dot
+// and the categories' fields). A rerun whose fingerprint matches draws from
+// the store without sampling, so changing colours, dot sizes or zooms is
+// quick. Tiles carry their own fingerprint (dots, look, colours, sizes): a
+// rerun after an interruption keeps the finished tiles and writes the rest,
+// and the result is byte for byte that of an uninterrupted run.
 func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	start := time.Now()
 	logf := func(format string, a ...any) {
@@ -61,6 +139,17 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 			fmt.Fprintf(opt.Log, format+"\n", a...)
 		}
 	}
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	budget := opt.Memory
+	if budget <= 0 {
+		budget = DefaultMemory
+	}
+	// Keep the collector from letting garbage pile up beside the budget.
+	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget + 512<<20))
+
 	in := opt.Input
 	if in == nil {
 		var err error
@@ -69,60 +158,86 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 		}
 	}
 	layer, counts := in.Layer, in.Counts
-	var rowsWithoutArea float64
-	if in.Join != nil {
-		rowsWithoutArea = in.Join.PeopleInUnmatchedTotal
-	}
-	workers := opt.Workers
-	if workers <= 0 {
-		workers = runtime.NumCPU()
-	}
-	nc := len(m.Categories)
-	sum := &Summary{RowsWithoutArea: rowsWithoutArea, Features: len(layer.Features), People: make([]float64, nc), Dots: make([]int, nc), Bounds: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
-	for i, f := range layer.Features {
-		hasPeople := false
-		for k := range m.Categories {
-			sum.People[k] += counts[i][k]
-			hasPeople = hasPeople || counts[i][k] > 0
-		}
-		if hasPeople && len(f.Geometry) > 0 {
-			sum.Bounds = sum.Bounds.Union(f.Geometry.Bound())
-		}
-	}
+	var err error
 	logf("read %d areas from %s", len(layer.Features), layer.Path)
-
-	store, results := Place(layer, counts, m, workers)
-	for i, r := range results {
-		lost := 0
-		for k := range r.Dots {
-			sum.Dots[k] += r.Dots[k]
-			lost += r.Lost[k]
-		}
-		if lost > 0 {
-			f := layer.Features[i]
-			sum.NotDrawn += float64(lost) * m.PeoplePerDot
-			sum.Problems = append(sum.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, r.Problem))
-		}
+	nc := len(m.Categories)
+	out := m.Out
+	state := filepath.Join(out, tiles.StateDir)
+	if err := os.MkdirAll(state, 0o755); err != nil {
+		return nil, fmt.Errorf("output: %w", err)
 	}
-	logf("placed %d dots (%s)", store.Len(), render.DotNote(m.PeoplePerDot))
+	fp := samplingFingerprint(layer, counts, m)
+	prog := newProgress(opt.Log, opt.ProgressEvery)
+	defer prog.stop()
+
+	sum := &Summary{Features: len(layer.Features), People: make([]float64, nc), Dots: make([]int, nc)}
+	if in.Join != nil {
+		sum.RowsWithoutArea = in.Join.PeopleInUnmatchedTotal
+	}
+	storePath := filepath.Join(state, storeFile)
+	store, info := reuseStore(state, fp, nc)
+	if store != nil {
+		sum.StoreReused = true
+		logf("reusing the dot store in %s (same areas, counts, seed and people per dot)", state)
+	} else {
+		os.Remove(filepath.Join(state, infoFile)) // the old store is gone once we start
+		expected := 0.0
+		for i := range counts {
+			for k := range counts[i] {
+				expected += counts[i][k] / m.PeoplePerDot
+			}
+		}
+		prog.startPlace(int64(expected))
+		var results []sample.Result
+		var runs int
+		store, results, runs, err = PlaceStore(ctx, layer, counts, m, PlaceOptions{
+			Workers: workers, Memory: budget, SpillDir: state, StorePath: storePath, Placed: &prog.placed,
+		})
+		prog.endPhase()
+		if err != nil {
+			return nil, err
+		}
+		info = summarizePlacement(layer, counts, m, results, store, fp)
+		info.SpilledRuns = runs
+		if fi, err := os.Stat(storePath); err == nil {
+			info.StoreBytes = fi.Size()
+		}
+		data, _ := json.MarshalIndent(info, "", "  ")
+		if err := tiles.WriteFileAtomic(filepath.Join(state, infoFile), append(data, '\n')); err != nil {
+			return nil, err
+		}
+		sum.StoreRuns = runs
+		logf("placed %d dots (%s) in %s%s", store.Len(), render.DotNote(m.PeoplePerDot), time.Since(start).Round(time.Millisecond), spillNote(runs))
+	}
+	defer store.Close()
+	sum.People, sum.Dots, sum.NotDrawn, sum.Problems = info.People, info.Drawn, info.NotDrawn, info.Problems
+	sum.Bounds = orb.Bound{Min: orb.Point{info.Bounds[0], info.Bounds[1]}, Max: orb.Point{info.Bounds[2], info.Bounds[3]}}
+	sum.PlaceTime = time.Since(start)
 	if store.Len() == 0 {
 		return nil, fmt.Errorf("%s: no dots to draw: the categories' fields hold no people at %s", m.Path, render.DotNote(m.PeoplePerDot))
 	}
 
-	out := m.Out
-	if err := os.MkdirAll(out, 0o755); err != nil {
-		return nil, fmt.Errorf("output: %w", err)
-	}
 	colors := m.RGBA()
+	look := Look(m)
+	tileStart := time.Now()
+	prog.startTiles()
 	st, err := tiles.Write(ctx, store, tiles.Options{
 		Dir: out, MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
-		Colors: colors, Look: Look(m), Workers: workers,
+		Colors: colors, Look: look, Workers: workers, HiDPI: opt.HiDPI,
+		Fingerprint: tileFingerprint(fp, m, colors, look, opt.HiDPI),
+		Progress:    prog.tile,
 	})
+	prog.endPhase()
 	if err != nil {
 		return nil, err
 	}
 	sum.Tiles = st
-	logf("wrote %d tiles (%.1f MB)", st.Tiles, float64(st.Bytes)/1e6)
+	sum.TileTime = time.Since(tileStart)
+	kept := ""
+	if st.Kept > 0 {
+		kept = fmt.Sprintf(", %d kept from an interrupted run", st.Kept)
+	}
+	logf("wrote %d tiles (%.1f MB) in %s%s", st.Tiles+st.Tiles2x, float64(st.Bytes)/1e6, sum.TileTime.Round(time.Millisecond), kept)
 
 	meta := Metadata(m, sum)
 	leg := LegendOf(meta, colors)
@@ -144,56 +259,247 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	sum.Metadata = meta
 	sum.OutputDir = out
 	sum.Elapsed = time.Since(start)
+	sum.PeakRSS = peakRSS()
+	logf("done: %d dots, %d tiles, %.1f MB in %s; peak memory %.0f MB", store.Len(), st.Tiles+st.Tiles2x,
+		float64(st.Bytes)/1e6, sum.Elapsed.Round(time.Millisecond), float64(sum.PeakRSS)/(1<<20))
 	return sum, nil
 }
 
-// Look is the map's dot schedule: full diameter at the deepest zoom, and
-// each zoom out halves the dot's area, down to the minimum diameter, so low
-// zooms read as density and high zooms as single dots. Tiles of 512 pixels
-// are high-density tiles: the same look at twice the pixels.
+func spillNote(runs int) string {
+	if runs == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" (%d sorted runs spilled to disk and merged)", runs)
+}
+
+// reuseStore opens the stored dots when their fingerprint is fp.
+func reuseStore(state, fp string, ncat int) (*dotstore.Store, *storeInfo) {
+	data, err := os.ReadFile(filepath.Join(state, infoFile))
+	if err != nil {
+		return nil, nil
+	}
+	var info storeInfo
+	if json.Unmarshal(data, &info) != nil || info.Format != sampleFormat || info.Fingerprint != fp ||
+		len(info.People) != ncat || len(info.Drawn) != ncat {
+		return nil, nil
+	}
+	s, err := dotstore.Open(filepath.Join(state, storeFile))
+	if err != nil || s.Len() != info.Dots {
+		if s != nil {
+			s.Close()
+		}
+		return nil, nil
+	}
+	return s, &info
+}
+
+func summarizePlacement(layer *geo.Layer, counts [][]float64, m *mapfile.Map, results []sample.Result, store *dotstore.Store, fp string) *storeInfo {
+	nc := len(m.Categories)
+	info := &storeInfo{Format: sampleFormat, Fingerprint: fp, Dots: store.Len(), Features: len(layer.Features),
+		People: make([]float64, nc), Drawn: make([]int, nc), Problems: []string{},
+		Placed: Version, PeoplePer: m.PeoplePerDot, Seed: m.Seed, InputPath: layer.Path}
+	for _, c := range m.Categories {
+		info.Categories = append(info.Categories, c.Key)
+	}
+	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	for i, f := range layer.Features {
+		hasPeople := false
+		for k := 0; k < nc; k++ {
+			info.People[k] += counts[i][k]
+			hasPeople = hasPeople || counts[i][k] > 0
+		}
+		if hasPeople && len(f.Geometry) > 0 {
+			b = b.Union(f.Geometry.Bound())
+		}
+	}
+	for i, r := range results {
+		lost := 0
+		for k := range r.Dots {
+			info.Drawn[k] += r.Dots[k]
+			lost += r.Lost[k]
+		}
+		if lost > 0 {
+			f := layer.Features[i]
+			info.NotDrawn += float64(lost) * m.PeoplePerDot
+			info.Problems = append(info.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, r.Problem))
+		}
+	}
+	info.Bounds = [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]}
+	return info
+}
+
+// samplingFingerprint hashes everything the placed dots depend on.
+func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) string {
+	h := sha256.New()
+	fmt.Fprintf(h, "%s\nid=%q\nseed=%d\nperdot=%x\n", sampleFormat, m.Input.ID, m.Seed, math.Float64bits(m.PeoplePerDot))
+	for _, c := range m.Categories {
+		fmt.Fprintf(h, "fields=%q\n", c.Fields)
+	}
+	var b [8]byte
+	f64 := func(w hash.Hash, v float64) { binary.LittleEndian.PutUint64(b[:], math.Float64bits(v)); w.Write(b[:]) }
+	for i, f := range layer.Features {
+		fmt.Fprintf(h, "f%d %q %d\n", f.Index, f.ID, len(f.Geometry))
+		for _, c := range counts[i] {
+			f64(h, c)
+		}
+		for _, poly := range f.Geometry {
+			fmt.Fprintf(h, "p%d", len(poly))
+			for _, ring := range poly {
+				fmt.Fprintf(h, "r%d", len(ring))
+				for _, p := range ring {
+					f64(h, p[0])
+					f64(h, p[1])
+				}
+			}
+		}
+	}
+	return hex.EncodeToString(h.Sum(nil))
+}
+
+// tileFingerprint hashes everything the tiles depend on besides the zoom.
+func tileFingerprint(dots string, m *mapfile.Map, colors []color.NRGBA, look func(int) render.Dot, hidpi bool) string {
+	h := sha256.New()
+	fmt.Fprintf(h, "%s\ndots=%s\nsize=%d\nhidpi=%v\n", tileFormat, dots, m.Tiles.Size, hidpi)
+	for _, c := range colors {
+		fmt.Fprintf(h, "color=%v\n", c)
+	}
+	for z := 0; z <= 24; z++ {
+		d := look(z)
+		fmt.Fprintf(h, "z%d %x %x\n", z, math.Float64bits(d.Diameter), math.Float64bits(d.Opacity))
+	}
+	return hex.EncodeToString(h.Sum(nil))
+}
+
+// Look is the map's dot schedule. At the deepest zoom a dot has the map's
+// diameter; each zoom out halves its area (√2 in diameter), so low zooms
+// read as density and high zooms as single dots. Below dots.min_diameter a
+// dot stops shrinking and fades instead: its opacity falls so that its ink
+// (area × opacity) keeps halving per zoom. Without that, the ink per area
+// would grow fourfold per zoom out and a national map would be solid colour
+// long before zoom 0. Tiles of 512 pixels are high-density tiles: the same
+// look at twice the pixels.
 func Look(m *mapfile.Map) func(z int) render.Dot {
 	scale := float64(m.Tiles.Size) / 256
 	return func(z int) render.Dot {
 		d := m.Dots.Diameter * math.Pow(math.Sqrt2, float64(z-m.Tiles.MaxZoom))
-		d = math.Max(d, m.Dots.MinDiameter)
-		return render.Dot{Diameter: d * scale, Opacity: m.Dots.Opacity}
+		o := m.Dots.Opacity
+		if min := m.Dots.MinDiameter; d < min {
+			o *= (d / min) * (d / min)
+			d = min
+		}
+		return render.Dot{Diameter: d * scale, Opacity: o}
 	}
 }
 
-// Place samples every feature's dots into a sorted store; results[i] says
-// what happened to feature i's people. The store is the same for any number
-// of workers.
+// PlaceOptions set how PlaceStore works.
+type PlaceOptions struct {
+	// Workers sample features in parallel; 0 means all cores.
+	Workers int
+	// Memory is the store's budget in bytes (see dotstore.BuilderOptions);
+	// 0 means no limit.
+	Memory int64
+	// SpillDir holds sorted runs past the budget.
+	SpillDir string
+	// StorePath, when set, receives the store file.
+	StorePath string
+	// Placed, when set, counts dots as they are placed (for progress).
+	Placed *atomic.Int64
+}
+
+// Place samples every feature's dots into a sorted in-memory store;
+// results[i] says what happened to feature i's people. The store is the
+// same for any number of workers.
 func Place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*dotstore.Store, []sample.Result) {
+	s, results, _, err := PlaceStore(context.Background(), layer, counts, m, PlaceOptions{Workers: workers})
+	if err != nil { // only spilling or cancelling can fail, and neither is asked for
+		panic(err)
+	}
+	return s, results
+}
+
+// PlaceStore samples every feature's dots into a sorted store within a
+// memory budget and reports how many sorted runs it spilled. Features go to
+// the workers largest first, so no worker is left with a big one at the end;
+// the store is the same for any number of workers and any budget.
+func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *mapfile.Map, opt PlaceOptions) (*dotstore.Store, []sample.Result, int, error) {
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.NumCPU()
+	}
+	expected := 0.0
+	order := make([]int, len(layer.Features))
+	size := make([]float64, len(layer.Features))
+	for i := range layer.Features {
+		order[i] = i
+		for _, c := range counts[i] {
+			size[i] += c
+		}
+		expected += size[i] / m.PeoplePerDot
+	}
+	slices.SortStableFunc(order, func(a, b int) int {
+		switch {
+		case size[a] > size[b]:
+			return -1
+		case size[a] < size[b]:
+			return 1
+		}
+		return 0
+	})
+	b := dotstore.NewBuilder(dotstore.BuilderOptions{Memory: opt.Memory, SpillDir: opt.SpillDir, Workers: workers, Expected: int(math.Min(expected, 1<<40))})
 	results := make([]sample.Result, len(layer.Features))
-	keys := make([][]uint64, workers)
-	opt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed}
 	var wg sync.WaitGroup
+	var failed atomic.Pointer[error]
+	fail := func(err error) { failed.CompareAndSwap(nil, &err) }
 	next := make(chan int, 64)
+	const block = 1 << 15
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
-		go func(w int) {
+		go func() {
 			defer wg.Done()
+			buf := make([]uint64, 0, block)
+			flush := func() {
+				if len(buf) == 0 {
+					return
+				}
+				if err := b.Add(buf); err != nil {
+					fail(err)
+				}
+				if opt.Placed != nil {
+					opt.Placed.Add(int64(len(buf)))
+				}
+				buf = buf[:0]
+			}
 			for i := range next {
-				results[i] = sample.Feature(&layer.Features[i], counts[i], opt, func(cat int, p orb.Point) {
+				if failed.Load() != nil || ctx.Err() != nil {
+					continue
+				}
+				results[i] = sample.Feature(&layer.Features[i], counts[i], sopt, func(cat int, p orb.Point) {
 					x, y := dotstore.World(p[0], p[1])
-					keys[w] = append(keys[w], dotstore.Key(x, y, cat))
+					buf = append(buf, dotstore.Key(x, y, cat))
+					if len(buf) == block {
+						flush()
+					}
 				})
 			}
-		}(w)
+			flush()
+		}()
 	}
-	for i := range layer.Features {
+	for _, i := range order {
 		next <- i
 	}
 	close(next)
 	wg.Wait()
-	n := 0
-	for _, k := range keys {
-		n += len(k)
+	if p := failed.Load(); p != nil {
+		return nil, nil, 0, *p
 	}
-	store := dotstore.New(n)
-	for _, k := range keys {
-		store.AddKeys(k)
+	if err := ctx.Err(); err != nil {
+		return nil, nil, 0, err
 	}
-	store.Sort()
-	return store, results
+	runs := b.Runs()
+	s, err := b.Finish(opt.StorePath)
+	if err != nil {
+		return nil, nil, 0, err
+	}
+	return s, results, runs, nil
 }

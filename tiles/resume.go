@@ -1,0 +1,143 @@
+package tiles
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+)
+
+// StateDir is the folder inside the output folder where stipple keeps what a
+// rerun needs: the dot store, the tile manifest and temporary files.
+const StateDir = ".stipple"
+
+const manifestName = "tiles.json"
+
+// manifest records which zooms of a pyramid are complete, for the run
+// fingerprint that made them. It is rewritten atomically after each zoom.
+type manifest struct {
+	Fingerprint string `json:"fingerprint"`
+	// Done maps "z" (or "z@2x") to the totals of a finished zoom.
+	Done map[string]ZoomStats `json:"done"`
+	// Zooms lists every zoom key a run with this fingerprint began, so a
+	// run with another fingerprint knows which folders to clear.
+	Zooms []string `json:"zooms"`
+}
+
+// ZoomStats are the totals of one zoom of one pass.
+type ZoomStats struct {
+	Tiles int64 `json:"tiles"`
+	Bytes int64 `json:"bytes"`
+	Empty int64 `json:"empty"`
+}
+
+func manifestPath(dir string) string { return filepath.Join(dir, StateDir, manifestName) }
+
+// openManifest loads the manifest for fingerprint fp. It reports resuming =
+// true when an earlier run with the same fingerprint left tiles to keep. A
+// manifest with another fingerprint has its zoom folders removed first, so
+// no tile of an old look survives beside the new ones.
+func openManifest(dir, fp string) (man *manifest, resuming bool, err error) {
+	man = &manifest{Fingerprint: fp, Done: map[string]ZoomStats{}}
+	data, err := os.ReadFile(manifestPath(dir))
+	if err == nil {
+		var old manifest
+		if json.Unmarshal(data, &old) == nil && old.Fingerprint == fp && fp != "" {
+			if old.Done == nil {
+				old.Done = map[string]ZoomStats{}
+			}
+			return &old, true, nil
+		}
+		if json.Unmarshal(data, &old) == nil {
+			for _, zk := range old.Zooms {
+				if err := removeZoom(dir, zk); err != nil {
+					return nil, false, err
+				}
+			}
+		}
+	} else if !os.IsNotExist(err) {
+		return nil, false, fmt.Errorf("tiles: %w", err)
+	}
+	return man, false, man.save(dir)
+}
+
+// removeZoom deletes the tiles of zoom key zk ("z" or "z@2x") and nothing
+// else: the other pass's files in the same folders are kept.
+func removeZoom(dir, zk string) error {
+	z, suffix, _ := strings.Cut(zk, "@")
+	if _, err := strconv.Atoi(z); err != nil {
+		return nil // not ours
+	}
+	zdir := filepath.Join(dir, z)
+	if suffix == "" {
+		return walkRemove(zdir, func(name string) bool { return strings.HasSuffix(name, ".png") && !strings.Contains(name, "@") })
+	}
+	return walkRemove(zdir, func(name string) bool { return strings.HasSuffix(name, "@"+suffix+".png") })
+}
+
+func walkRemove(zdir string, match func(string) bool) error {
+	cols, err := os.ReadDir(zdir)
+	if os.IsNotExist(err) {
+		return nil
+	}
+	if err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	for _, c := range cols {
+		if !c.IsDir() {
+			continue
+		}
+		cdir := filepath.Join(zdir, c.Name())
+		files, err := os.ReadDir(cdir)
+		if err != nil {
+			return fmt.Errorf("tiles: %w", err)
+		}
+		for _, f := range files {
+			if match(f.Name()) {
+				if err := os.Remove(filepath.Join(cdir, f.Name())); err != nil {
+					return fmt.Errorf("tiles: %w", err)
+				}
+			}
+		}
+		os.Remove(cdir) // only if now empty
+	}
+	os.Remove(zdir)
+	return nil
+}
+
+func (m *manifest) save(dir string) error {
+	data, err := json.MarshalIndent(m, "", "  ")
+	if err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	return WriteFileAtomic(manifestPath(dir), append(data, '\n'))
+}
+
+func (m *manifest) began(zk string) bool {
+	for _, z := range m.Zooms {
+		if z == zk {
+			return true
+		}
+	}
+	m.Zooms = append(m.Zooms, zk)
+	return false
+}
+
+// WriteFileAtomic writes data to a temporary file beside path and renames it
+// into place, so path holds either its old content or all of data, even if
+// the process is killed.
+func WriteFileAtomic(path string, data []byte) error {
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	tmp := path + ".tmp"
+	if err := os.WriteFile(tmp, data, 0o644); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	if err := os.Rename(tmp, path); err != nil {
+		return fmt.Errorf("tiles: %w", err)
+	}
+	return nil
+}
