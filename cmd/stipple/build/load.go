@@ -3,10 +3,12 @@ package build
 import (
 	"fmt"
 
+	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/geo/table"
+	"github.com/stipple-maps/stipple/sample"
 )
 
 // Input is what Load found in the map's inputs.
@@ -21,6 +23,13 @@ type Input struct {
 	Join *table.Report
 	// Unjoined lists features that found no table row (their counts are 0).
 	Unjoined map[int]bool
+	// Masks holds the map's mask polygons prepared for sampling; nil
+	// without masks. MaskFeatures counts the polygons read.
+	Masks        *sample.Mask
+	MaskFeatures int
+	// Dots[i][k] is the number of dots feature i gets in category k, by the
+	// map's rounding rule (sample.Allocate).
+	Dots [][]int
 }
 
 // Load reads the map's areas and returns them with their counts per
@@ -103,5 +112,26 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			in.Counts[i][k] = n
 		}
 	}
+	var polys []orb.MultiPolygon
+	for _, mf := range m.Input.Mask {
+		res, err := read.File(m.Resolve(mf), read.Options{})
+		if err != nil {
+			return nil, fmt.Errorf("%s: key input.mask: %w", m.Path, err)
+		}
+		for _, f := range res.Layer.Features {
+			if len(f.Geometry) > 0 {
+				polys = append(polys, f.Geometry)
+			}
+		}
+	}
+	if len(polys) > 0 {
+		in.Masks = sample.NewMask(polys)
+		in.MaskFeatures = len(polys)
+	}
+	idList := make([]string, len(layer.Features))
+	for i, f := range layer.Features {
+		idList[i] = f.ID
+	}
+	in.Dots = sample.Allocate(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
 	return in, nil
 }

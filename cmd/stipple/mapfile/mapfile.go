@@ -24,6 +24,10 @@ type Map struct {
 	PeoplePerDot float64 `toml:"people_per_dot"`
 	Seed         uint64  `toml:"seed"`
 	Out          string  `toml:"out"`
+	// Rounding is "random" (default: each area's dots are count/N rounded
+	// up or down at random, unbiased) or "exact" (each category gets exactly
+	// round(total/N) dots, shared out by largest remainders).
+	Rounding string `toml:"rounding"`
 
 	Input      Input      `toml:"input"`
 	Tiles      Tiles      `toml:"tiles"`
@@ -42,6 +46,9 @@ type Input struct {
 	Layer string `toml:"layer"`
 	// Table, when set, is a CSV file holding the counts, joined on ID.
 	Table *Table `toml:"table"`
+	// Mask lists polygon files of places where nobody lives (water,
+	// parks, airports); dots are kept out of them.
+	Mask []string `toml:"mask"`
 }
 
 // Table is a CSV count table joined onto the areas.
@@ -175,6 +182,13 @@ func (m *Map) check(md toml.MetaData, lines []string) error {
 		if t.SkipRows < 0 || t.KeepLast < 0 {
 			return errAt("skip_rows and keep_last cannot be negative", "input", "table")
 		}
+	}
+	switch m.Rounding {
+	case "":
+		m.Rounding = "random"
+	case "random", "exact":
+	default:
+		return errAt(fmt.Sprintf("%q; want \"random\" or \"exact\"", m.Rounding), "rounding")
 	}
 	if !(m.PeoplePerDot > 0) {
 		return errAt(fmt.Sprintf("is %v; want a positive number of people per dot", m.PeoplePerDot), "people_per_dot")
