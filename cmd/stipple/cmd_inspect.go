@@ -316,7 +316,7 @@ func StarterMap(res *read.Result, path, layer string) string {
 	}
 	for i, f := range numeric {
 		fmt.Fprintf(&b, "\n# [[category]]\n# key = %q\n# label = %q\n# color = %q\n# fields = [%q]\n",
-			f, f, render.DefaultPalette[i%len(render.DefaultPalette)], f)
+			f, f, starterPalette[i%len(starterPalette)], f)
 	}
 	return b.String()
 }
@@ -332,3 +332,7 @@ func distinct(l *geo.Layer, name string) bool {
 	}
 	return true
 }
+
+// starterPalette is the Okabe & Ito (2008) "Color Universal Design" palette,
+// ordered so that neighbouring categories differ most, black last.
+var starterPalette = []string{"#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442", "#000000"}
