@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image"
 	"image/color"
+	"math"
 	"strings"
 	"sync"
 
@@ -31,7 +32,10 @@ type Legend struct {
 	Note string
 	// Caution says that dots are placed at random within each area.
 	Caution string
-	Credit  string
+	// Credit names the source; the legend prefixes it with "Source: ".
+	Credit string
+	// NotDrawn, when set, says how many people have no dot and why.
+	NotDrawn string
 }
 
 // DotNote returns the note for a dot value: "1 dot = 25 people".
@@ -44,7 +48,87 @@ func DotNote(perDot float64) string {
 
 // Caution is the standard caution printed with every map.
 const Caution = "Each dot is placed at random inside the area its people were counted in; " +
-	"it does not mark where anyone lives. Counts for small areas, and survey estimates, carry error."
+	"it does not mark where anyone lives. Counts for small areas, and survey estimates, carry error. " +
+	"Maps of groups can be misused: this one shows how many people an area holds, not who anyone is."
+
+// CautionShort is the one-line caution that stays in view when a legend is
+// folded away.
+const CautionShort = "Dots are placed at random inside each area: a dot is not anyone's home."
+
+// OkabeIto is the colour-blind-safe palette of M. Okabe and K. Ito (2008),
+// "Color Universal Design (CUD): how to make figures and presentations that
+// are friendly to colorblind people", in the order they give it: black,
+// orange, sky blue, bluish green, yellow, blue, vermillion, reddish purple.
+var OkabeIto = []string{"#000000", "#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "#CC79A7"}
+
+// DefaultPalette is the order stipple hands the Okabe & Ito colours to a
+// new map's categories: the strongest, most distinct hues first, yellow
+// (weak on a light ground) and black (reads as ink, not as a group) last.
+var DefaultPalette = []string{"#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442", "#000000"}
+
+// ParseHex reads a #rrggbb colour.
+func ParseHex(s string) (color.NRGBA, error) {
+	if len(s) != 7 || s[0] != '#' {
+		return color.NRGBA{}, fmt.Errorf("render: colour %q: want #rrggbb", s)
+	}
+	var v [3]uint8
+	for i := range v {
+		hi, ok1 := hexDigit(s[1+2*i])
+		lo, ok2 := hexDigit(s[2+2*i])
+		if !ok1 || !ok2 {
+			return color.NRGBA{}, fmt.Errorf("render: colour %q: want #rrggbb", s)
+		}
+		v[i] = hi<<4 | lo
+	}
+	return color.NRGBA{v[0], v[1], v[2], 255}, nil
+}
+
+func hexDigit(c byte) (uint8, bool) {
+	switch {
+	case c >= '0' && c <= '9':
+		return c - '0', true
+	case c >= 'a' && c <= 'f':
+		return c - 'a' + 10, true
+	case c >= 'A' && c <= 'F':
+		return c - 'A' + 10, true
+	}
+	return 0, false
+}
+
+// Hex writes c as #rrggbb (alpha is ignored).
+func Hex(c color.NRGBA) string { return fmt.Sprintf("#%02x%02x%02x", c.R, c.G, c.B) }
+
+// Luminance is the relative luminance of an opaque sRGB colour as W3C WCAG
+// 2.x defines it: 0.2126 R + 0.7152 G + 0.0722 B of the linearised channels
+// (c/12.92 up to 0.04045, ((c+0.055)/1.055)^2.4 above).
+func Luminance(c color.NRGBA) float64 {
+	lin := func(v uint8) float64 {
+		s := float64(v) / 255
+		if s <= 0.04045 {
+			return s / 12.92
+		}
+		return math.Pow((s+0.055)/1.055, 2.4)
+	}
+	return 0.2126*lin(c.R) + 0.7152*lin(c.G) + 0.0722*lin(c.B)
+}
+
+// Contrast is the WCAG 2.x contrast ratio (L1 + 0.05) / (L2 + 0.05) of two
+// opaque colours, L1 the lighter: from 1 to 21. Body text wants 4.5 (AA).
+func Contrast(a, b color.NRGBA) float64 {
+	la, lb := Luminance(a), Luminance(b)
+	if la < lb {
+		la, lb = lb, la
+	}
+	return (la + 0.05) / (lb + 0.05)
+}
+
+// Over composites c with opacity alpha (0–1) over the opaque ground g, in
+// sRGB values as browsers blend: the colour text on a translucent panel
+// really sits on.
+func Over(c color.NRGBA, alpha float64, g color.NRGBA) color.NRGBA {
+	mix := func(a, b uint8) uint8 { return uint8(math.Round(float64(a)*alpha + float64(b)*(1-alpha))) }
+	return color.NRGBA{mix(c.R, g.R), mix(c.G, g.G), mix(c.B, g.B), 255}
+}
 
 // FormatCount writes a count with thin grouping: 1234567 → "1,234,567";
 // fractions keep up to two decimals.
@@ -89,69 +173,118 @@ func Face(size, scale float64, bold bool) font.Face {
 	return truetype.NewFace(f, &truetype.Options{Size: size * scale, DPI: 72, Hinting: font.HintingFull})
 }
 
-// Legend colours: ink #1f2328 on white has a WCAG 2.x contrast of 15.8:1,
-// the muted #57606a 6.4:1 (both above the 4.5:1 AA level; checked in tests).
+// Legend colours, shared by the PNG and SVG legends: ink and muted text on
+// the paper card. Their WCAG 2.x contrast on the card is checked in tests
+// (at least 4.5:1, the AA level for body text).
 var (
-	legendInk   = color.NRGBA{0x1f, 0x23, 0x28, 0xff}
-	legendMuted = color.NRGBA{0x57, 0x60, 0x6a, 0xff}
+	LegendPaper = color.NRGBA{0xff, 0xfe, 0xfb, 0xff}
+	LegendInk   = color.NRGBA{0x1c, 0x22, 0x27, 0xff}
+	LegendMuted = color.NRGBA{0x4a, 0x53, 0x5c, 0xff}
+	// LegendRing outlines each swatch so that light colours (yellow) still
+	// show on the card.
+	LegendRing = color.NRGBA{0x1c, 0x22, 0x27, 0x66}
 )
 
-// DrawLegend draws the legend as an image width pixels wide at scale 1 (the
-// result is width*scale wide), on a white card.
-func DrawLegend(l Legend, width int, scale float64) image.Image {
-	const pad, rowH, sw = 14.0, 24.0, 12.0
+// Legend layout, in CSS pixels at scale 1.
+const (
+	legendPad    = 14.0
+	legendSwatch = 12.0
+	legendRowH   = 24.0
+)
+
+// legendItem is one thing the legend draws: a line of text with its
+// baseline at (X, Y), or (Swatch) a disc of radius R centred at (X, Y).
+type legendItem struct {
+	X, Y   float64
+	Text   string
+	Size   float64
+	Bold   bool
+	Color  color.NRGBA
+	Right  bool // Text ends at X
+	Swatch bool
+	R      float64
+}
+
+// legendLayout places everything the legend shows; DrawLegend (PNG) and
+// LegendSVG draw the same layout, so the two agree line for line.
+func legendLayout(l Legend, width int) (items []legendItem, height float64) {
 	W := float64(width)
 	measure := gg.NewContext(1, 1)
-	measure.SetFontFace(Face(11, 1, false))
-	caution := measure.WordWrap(l.Caution, W-2*pad)
-	credit := measure.WordWrap(l.Credit, W-2*pad)
-	measure.SetFontFace(Face(15, 1, true))
-	title := measure.WordWrap(l.Title, W-2*pad)
-
-	h := pad + float64(len(title))*20 + 6 + float64(len(l.Entries))*rowH + 8 + 18 +
-		float64(len(caution))*15 + 6 + float64(len(credit))*15 + pad
-	dc := gg.NewContext(int(W*scale+0.5), int(h*scale+0.5))
-	dc.Scale(scale, scale)
-	dc.SetColor(color.White)
-	dc.Clear()
-	y := pad
-	dc.SetColor(legendInk)
-	dc.SetFontFace(Face(15, scale, true))
-	dc.Scale(1/scale, 1/scale) // text is drawn with a scaled face in device pixels
-	text := func(s string, x, y float64, ax float64) {
-		dc.DrawStringAnchored(s, x*scale, y*scale, ax, 0.8)
+	wrap := func(s string, size float64, bold bool, w float64) []string {
+		if s == "" {
+			return nil
+		}
+		measure.SetFontFace(Face(size, 1, bold))
+		// Leave room for fonts a little wider than Go's, which the SVG may
+		// be shown in.
+		return measure.WordWrap(s, w*0.94)
 	}
-	for _, line := range title {
-		text(line, pad, y, 0)
-		y += 20
+	textW := func(s string, size float64) float64 {
+		measure.SetFontFace(Face(size, 1, false))
+		w, _ := measure.MeasureString(s)
+		return w
 	}
+	y := legendPad
+	lines := func(ss []string, size, lh float64, bold bool, c color.NRGBA) {
+		for _, s := range ss {
+			items = append(items, legendItem{X: legendPad, Y: y + lh*0.5 + size*0.36, Text: s, Size: size, Bold: bold, Color: c})
+			y += lh
+		}
+	}
+	lines(wrap(l.Title, 15, true, W-2*legendPad), 15, 20, true, LegendInk)
 	y += 6
-	dc.SetFontFace(Face(12, scale, false))
 	for _, e := range l.Entries {
-		dc.SetColor(e.Color)
-		dc.DrawCircle((pad+sw/2)*scale, (y+rowH/2-4)*scale, sw/2*scale)
-		dc.Fill()
-		dc.SetColor(legendInk)
-		text(e.Label, pad+sw+8, y+rowH/2-10, 0)
-		dc.SetColor(legendMuted)
-		text(FormatCount(e.People), W-pad, y+rowH/2-10, 1)
+		count := FormatCount(e.People)
+		labelX := legendPad + legendSwatch + 8
+		label := wrap(e.Label, 12, false, W-legendPad-labelX-textW(count, 12)-10)
+		if len(label) == 0 {
+			label = []string{""}
+		}
+		rowH := legendRowH + 15*float64(len(label)-1)
+		items = append(items, legendItem{X: legendPad + legendSwatch/2, Y: y + legendRowH/2, Swatch: true, R: legendSwatch / 2, Color: e.Color})
+		for i, s := range label {
+			items = append(items, legendItem{X: labelX, Y: y + legendRowH/2 + 4.3 + 15*float64(i), Text: s, Size: 12, Color: LegendInk})
+		}
+		items = append(items, legendItem{X: W - legendPad, Y: y + legendRowH/2 + 4.3, Text: count, Size: 12, Color: LegendMuted, Right: true})
 		y += rowH
 	}
-	y += 8
-	dc.SetColor(legendInk)
-	dc.SetFontFace(Face(12, scale, true))
-	text(l.Note, pad, y, 0)
-	y += 18
-	dc.SetColor(legendMuted)
-	dc.SetFontFace(Face(11, scale, false))
-	for _, line := range caution {
-		text(line, pad, y, 0)
-		y += 15
-	}
 	y += 6
-	for _, line := range credit {
-		text(line, pad, y, 0)
-		y += 15
+	lines(wrap(l.Note, 12, true, W-2*legendPad), 12, 18, true, LegendInk)
+	lines(wrap(l.NotDrawn, 11, false, W-2*legendPad), 11, 15, false, LegendInk)
+	y += 2
+	lines(wrap(l.Caution, 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
+	y += 6
+	if l.Credit != "" {
+		lines(wrap("Source: "+l.Credit, 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
+	}
+	return items, y + legendPad
+}
+
+// DrawLegend draws the legend as an image width pixels wide at scale 1 (the
+// result is width*scale wide), on the paper card.
+func DrawLegend(l Legend, width int, scale float64) image.Image {
+	items, h := legendLayout(l, width)
+	dc := gg.NewContext(int(float64(width)*scale+0.5), int(h*scale+0.5))
+	dc.SetColor(LegendPaper)
+	dc.Clear()
+	for _, it := range items {
+		if it.Swatch {
+			dc.DrawCircle(it.X*scale, it.Y*scale, it.R*scale)
+			dc.SetColor(it.Color)
+			dc.FillPreserve()
+			dc.SetColor(LegendRing)
+			dc.SetLineWidth(scale)
+			dc.Stroke()
+			continue
+		}
+		dc.SetFontFace(Face(it.Size, scale, it.Bold))
+		dc.SetColor(it.Color)
+		x := it.X * scale
+		if it.Right {
+			w, _ := dc.MeasureString(it.Text)
+			x -= w
+		}
+		dc.DrawString(it.Text, x, it.Y*scale)
 	}
 	return dc.Image()
 }

@@ -6,42 +6,146 @@ import (
 	"encoding/json"
 	"fmt"
 	"html/template"
+	"net/url"
+	"os"
+	"path"
 	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
 
 	"github.com/stipple-maps/stipple/render"
 )
 
-//go:embed viewer/index.html viewer/viewer.js viewer/viewer.css
+//go:embed viewer/page.html viewer/viewer.js viewer/viewer.css
 var viewerFiles embed.FS
 
-// WriteViewer writes the web viewer for m into dir: index.html, viewer.js,
-// viewer.css and map-data.js (the metadata as a script, so the viewer also
-// works when opened from file://, where pages may not fetch files). Every
-// text from the map file is escaped by html/template or encoding/json.
+// Files the viewer writes beside the tiles.
+const (
+	ViewerPage = "index.html"  // the full-page viewer
+	EmbedPage  = "embed.html"  // the same map for an iframe, no page chrome
+	AltFile    = "alt.txt"     // plain-text description (AltText)
+	DataScript = "map-data.js" // viewer data, as a script (works from file://)
+	IndexDir   = "tile-index"  // which tiles exist, one script per tile set and zoom
+	viewerJS   = "viewer.js"   //
+	viewerCSS  = "viewer.css"  //
+	dataFormat = "stipple-viewer/1"
+)
+
+// ViewerLayer is one map a viewer shows.
+type ViewerLayer struct {
+	// Dir is the folder that holds the layer's map.json and tiles, relative
+	// to the viewer's folder, with forward slashes; "" is the viewer's own
+	// folder.
+	Dir string
+	// Meta is the layer's metadata; its Tiles and Outline templates are
+	// relative to Dir.
+	Meta *Metadata
+}
+
+// WriteViewer writes the viewer for a single map whose tiles are in dir
+// itself. It is WriteViewerLayers(dir, []ViewerLayer{{Meta: m}}).
 func WriteViewer(dir string, m *Metadata) error {
-	page, err := template.ParseFS(viewerFiles, "viewer/index.html")
+	return WriteViewerLayers(dir, []ViewerLayer{{Meta: m}})
+}
+
+// WriteViewerLayers writes, into dir, a viewer over one or more maps:
+// index.html (full page), embed.html (for an iframe), viewer.js, viewer.css,
+// map-data.js, alt.txt and tile-index/ (which tiles exist, so the viewer
+// never asks for a tile that was not written). The layers' tiles must be
+// written first: their folders are read to build the index.
+//
+// With two or more layers the viewer shows a layer switch and a compare
+// mode (two layers side by side with a draggable divider). Layer keys
+// (Metadata.Layer, or "1", "2", … when empty) must be unique.
+//
+// Every text from the map file is escaped where it lands: html/template for
+// the pages (the legend is written into the HTML, not built by script),
+// encoding/json for map-data.js, which carries no map-file text but keys.
+func WriteViewerLayers(dir string, layers []ViewerLayer) error {
+	if len(layers) == 0 {
+		return fmt.Errorf("tiles: viewer: no layers")
+	}
+	data := viewerData{Format: dataFormat}
+	pages := pageData{Title: layers[0].Meta.Title, Multi: len(layers) > 1, CautionShort: render.CautionShort}
+	keys := map[string]bool{}
+	var sets []tileSet
+	for i, l := range layers {
+		m := l.Meta
+		if m == nil {
+			return fmt.Errorf("tiles: viewer: layer %d has no metadata", i+1)
+		}
+		prefix, err := layerPrefix(l.Dir)
+		if err != nil {
+			return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
+		}
+		key := m.Layer
+		if key == "" {
+			key = strconv.Itoa(i + 1)
+		}
+		if keys[key] {
+			return fmt.Errorf("tiles: viewer: layer %d: key %q is also another layer's", i+1, key)
+		}
+		keys[key] = true
+		label := m.LayerLabel
+		if label == "" {
+			label = key
+		}
+		vl := viewerLayerData{
+			Key: key, Bounds: m.Bounds, Center: m.Center, MinZoom: m.MinZoom, MaxZoom: m.MaxZoom, Outline: -1,
+		}
+		dots, err := indexSet(dir, l.Dir, prefix, m.Tiles, len(sets), m.MinZoom, m.MaxZoom)
+		if err != nil {
+			return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
+		}
+		vl.Dots = len(sets)
+		sets = append(sets, dots)
+		if m.Outline != "" {
+			ol, err := indexSet(dir, l.Dir, prefix, m.Outline, len(sets), 0, 24)
+			if err != nil {
+				return fmt.Errorf("tiles: viewer: layer %d outline: %w", i+1, err)
+			}
+			if len(ol.zooms) > 0 {
+				vl.Outline = len(sets)
+				sets = append(sets, ol)
+				pages.Outlines = true
+			}
+		}
+		data.Layers = append(data.Layers, vl)
+		pages.Layers = append(pages.Layers, pageLayer(i, key, label, m))
+	}
+	for _, s := range sets {
+		data.Sets = append(data.Sets, s.public())
+		for z, idx := range s.index {
+			b, err := json.Marshal(idx)
+			if err != nil {
+				return fmt.Errorf("tiles: viewer: %w", err)
+			}
+			js := fmt.Sprintf("stippleTileIndex(%d,%d,%s);\n", s.id, z, b)
+			if err := writeFile(filepath.Join(dir, IndexDir, fmt.Sprintf("%d-%d.js", s.id, z)), []byte(js)); err != nil {
+				return err
+			}
+		}
+	}
+
+	tmpl, err := template.ParseFS(viewerFiles, "viewer/page.html")
 	if err != nil {
 		return fmt.Errorf("tiles: viewer template: %w", err)
 	}
-	type cat struct {
-		Category
-		PeopleText string
+	for _, p := range []struct {
+		name  string
+		embed bool
+	}{{ViewerPage, false}, {EmbedPage, true}} {
+		pages.Embed = p.embed
+		var buf bytes.Buffer
+		if err := tmpl.Execute(&buf, pages); err != nil {
+			return fmt.Errorf("tiles: viewer: %w", err)
+		}
+		if err := writeFile(filepath.Join(dir, p.name), buf.Bytes()); err != nil {
+			return err
+		}
 	}
-	data := struct {
-		*Metadata
-		Categories []cat
-	}{Metadata: m}
-	for _, c := range m.Categories {
-		data.Categories = append(data.Categories, cat{c, render.FormatCount(c.People)})
-	}
-	var buf bytes.Buffer
-	if err := page.Execute(&buf, data); err != nil {
-		return fmt.Errorf("tiles: viewer: %w", err)
-	}
-	if err := writeFile(filepath.Join(dir, "index.html"), buf.Bytes()); err != nil {
-		return err
-	}
-	for _, name := range []string{"viewer.js", "viewer.css"} {
+	for _, name := range []string{viewerJS, viewerCSS} {
 		b, err := viewerFiles.ReadFile("viewer/" + name)
 		if err != nil {
 			return fmt.Errorf("tiles: %w", err)
@@ -50,9 +154,258 @@ func WriteViewer(dir string, m *Metadata) error {
 			return err
 		}
 	}
-	js, err := json.Marshal(m)
+	js, err := json.Marshal(data)
 	if err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
-	return writeFile(filepath.Join(dir, "map-data.js"), append(append([]byte("window.stippleMap = "), js...), ";\n"...))
+	if err := writeFile(filepath.Join(dir, DataScript), []byte("window.stippleMap = "+string(js)+";\n")); err != nil {
+		return err
+	}
+	metas := make([]*Metadata, len(layers))
+	for i, l := range layers {
+		metas[i] = l.Meta
+	}
+	return writeFile(filepath.Join(dir, AltFile), []byte(AltText(metas...)))
+}
+
+// viewerData is map-data.js: numbers, keys and paths only. Everything the
+// viewer shows as text is in the HTML.
+type viewerData struct {
+	Format string            `json:"format"`
+	Layers []viewerLayerData `json:"layers"`
+	Sets   []tileSetData     `json:"sets"`
+}
+
+type viewerLayerData struct {
+	Key     string     `json:"key"`
+	Bounds  [4]float64 `json:"bounds"`
+	Center  [3]float64 `json:"center"`
+	MinZoom int        `json:"min_zoom"`
+	MaxZoom int        `json:"max_zoom"`
+	Dots    int        `json:"dots"`    // number of the dot tile set
+	Outline int        `json:"outline"` // number of the outline tile set, -1 for none
+}
+
+type tileSetData struct {
+	// Tiles is the URL template relative to the viewer, e.g. "2010/{z}/{x}/{y}.png".
+	Tiles string `json:"tiles"`
+	// Index is the URL template of the index scripts, with {z}.
+	Index string `json:"index"`
+	Zooms []int  `json:"zooms"` // zooms that have tiles, ascending
+}
+
+// tileIndex lists the tiles of one zoom that exist: rows y0, y0+1, … each
+// as alternating run lengths of absent and present columns from x0.
+type tileIndex struct {
+	X0   int     `json:"x0"`
+	Y0   int     `json:"y0"`
+	Rows [][]int `json:"rows"`
+}
+
+type tileSet struct {
+	id    int
+	tiles string
+	zooms []int
+	index map[int]tileIndex
+}
+
+func (s tileSet) public() tileSetData {
+	return tileSetData{Tiles: s.tiles, Index: IndexDir + "/" + strconv.Itoa(s.id) + "-{z}.js", Zooms: s.zooms}
+}
+
+// layerPrefix checks a layer folder and returns it as an escaped URL path
+// prefix ("" or "a%20b/").
+func layerPrefix(dir string) (string, error) {
+	if dir == "" || dir == "." {
+		return "", nil
+	}
+	if strings.Contains(dir, `\`) || path.IsAbs(dir) || filepath.IsAbs(dir) {
+		return "", fmt.Errorf("folder %q: want a relative path with forward slashes", dir)
+	}
+	clean := path.Clean(dir)
+	if clean == ".." || strings.HasPrefix(clean, "../") {
+		return "", fmt.Errorf("folder %q is outside the viewer's folder", dir)
+	}
+	var parts []string
+	for _, p := range strings.Split(clean, "/") {
+		parts = append(parts, url.PathEscape(p))
+	}
+	return strings.Join(parts, "/") + "/", nil
+}
+
+// splitTemplate splits "P{z}/{x}/{y}.EXT" into P and .EXT.
+func splitTemplate(t string) (prefix, ext string, err error) {
+	i := strings.Index(t, "{z}/{x}/{y}")
+	if i < 0 || strings.Count(t, "{z}") != 1 || strings.Contains(t[i+11:], "/") || strings.Contains(t[i+11:], "{") {
+		return "", "", fmt.Errorf("tile template %q: want PREFIX{z}/{x}/{y}.png", t)
+	}
+	prefix = t[:i]
+	if strings.Contains(prefix, "..") || strings.HasPrefix(prefix, "/") || strings.Contains(prefix, "{") {
+		return "", "", fmt.Errorf("tile template %q: want a path relative to map.json", t)
+	}
+	return prefix, t[i+11:], nil
+}
+
+// indexSet reads which tiles of template t (relative to layer folder
+// layerDir in viewer folder dir) exist, for zooms minZ..maxZ.
+func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, error) {
+	prefix, ext, err := splitTemplate(t)
+	if err != nil {
+		return tileSet{}, err
+	}
+	var parts []string
+	for _, p := range strings.Split(strings.TrimSuffix(prefix, "/"), "/") {
+		if p != "" {
+			parts = append(parts, url.PathEscape(p))
+		}
+	}
+	urlT := urlPrefix + strings.Join(parts, "/")
+	if len(parts) > 0 {
+		urlT += "/"
+	}
+	set := tileSet{id: id, tiles: urlT + "{z}/{x}/{y}" + url.PathEscape(ext), index: map[int]tileIndex{}}
+	root := filepath.Join(dir, filepath.FromSlash(layerDir), filepath.FromSlash(prefix))
+	for z := minZ; z <= maxZ; z++ {
+		idx, ok, err := scanZoom(filepath.Join(root, strconv.Itoa(z)), z, ext)
+		if err != nil {
+			return tileSet{}, err
+		}
+		if ok {
+			set.zooms = append(set.zooms, z)
+			set.index[z] = idx
+		}
+	}
+	if set.zooms == nil {
+		set.zooms = []int{}
+	}
+	return set, nil
+}
+
+// scanZoom lists zdir/{x}/{y}EXT; ok is false when there are none.
+func scanZoom(zdir string, z int, ext string) (tileIndex, bool, error) {
+	xs, err := os.ReadDir(zdir)
+	if os.IsNotExist(err) {
+		return tileIndex{}, false, nil
+	}
+	if err != nil {
+		return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
+	}
+	n := 1 << z
+	rows := map[int][]int{}
+	for _, xe := range xs {
+		x, err := strconv.Atoi(xe.Name())
+		if err != nil || !xe.IsDir() || x < 0 || x >= n {
+			continue
+		}
+		ys, err := os.ReadDir(filepath.Join(zdir, xe.Name()))
+		if err != nil {
+			return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
+		}
+		for _, ye := range ys {
+			name, found := strings.CutSuffix(ye.Name(), ext)
+			if !found || ye.IsDir() {
+				continue
+			}
+			y, err := strconv.Atoi(name)
+			if err != nil || y < 0 || y >= n {
+				continue
+			}
+			rows[y] = append(rows[y], x)
+		}
+	}
+	if len(rows) == 0 {
+		return tileIndex{}, false, nil
+	}
+	return encodeIndex(rows), true, nil
+}
+
+// encodeIndex turns the present columns of each row into run lengths.
+func encodeIndex(rows map[int][]int) tileIndex {
+	y0, y1, x0 := int(^uint(0)>>1), -1, int(^uint(0)>>1)
+	for y, xs := range rows {
+		y0, y1 = min(y0, y), max(y1, y)
+		x0 = min(x0, slices.Min(xs))
+	}
+	idx := tileIndex{X0: x0, Y0: y0, Rows: make([][]int, y1-y0+1)}
+	for y := y0; y <= y1; y++ {
+		xs := slices.Clone(rows[y])
+		slices.Sort(xs)
+		xs = slices.Compact(xs)
+		runs := []int{}
+		at := x0 // next column not yet described
+		for i := 0; i < len(xs); {
+			j := i
+			for j+1 < len(xs) && xs[j+1] == xs[j]+1 {
+				j++
+			}
+			runs = append(runs, xs[i]-at, j-i+1)
+			at = xs[j] + 1
+			i = j + 1
+		}
+		idx.Rows[y-y0] = runs
+	}
+	return idx
+}
+
+// pageData feeds viewer/page.html.
+type pageData struct {
+	Title        string
+	Embed        bool
+	Multi        bool
+	Outlines     bool
+	CautionShort string
+	Layers       []legendData
+}
+
+type legendData struct {
+	N                                int
+	Key, Label, Title, Note, Caution string
+	Credit, NotDrawn, Total          string
+	Rows                             []legendRow
+}
+
+type legendRow struct {
+	Label, Color, People, Share string
+}
+
+func pageLayer(i int, key, label string, m *Metadata) legendData {
+	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: m.Credit}
+	total := 0.0
+	for _, c := range m.Categories {
+		total += c.People
+	}
+	for _, c := range m.Categories {
+		share := ""
+		if total > 0 {
+			share = fmt.Sprintf("%.1f%%", 100*c.People/total)
+		}
+		d.Rows = append(d.Rows, legendRow{Label: c.Label, Color: safeColor(c.Color), People: render.FormatCount(c.People), Share: share})
+	}
+	d.Total = render.FormatCount(total)
+	d.NotDrawn = NotDrawnText(m)
+	return d
+}
+
+// safeColor passes a #rrggbb colour and turns anything else into grey, so a
+// hand-edited map.json cannot put markup or CSS into a swatch.
+func safeColor(c string) string {
+	if _, err := render.ParseHex(c); err != nil {
+		return "#808080"
+	}
+	return strings.ToLower(c)
+}
+
+// NotDrawnText says, in one sentence for a legend, how many people have no
+// dot on the map; "" when everyone is drawn.
+func NotDrawnText(m *Metadata) string {
+	var parts []string
+	if m.NotDrawn.People > 0 {
+		parts = append(parts, fmt.Sprintf("%s people (%d dots) are not drawn; map.json lists the areas and why.",
+			render.FormatCount(m.NotDrawn.People), m.NotDrawn.Dots))
+	}
+	if m.NotDrawn.RowsWithoutArea > 0 {
+		parts = append(parts, fmt.Sprintf("%s people are in count rows that match no area and are not on the map.",
+			render.FormatCount(m.NotDrawn.RowsWithoutArea)))
+	}
+	return strings.Join(parts, " ")
 }

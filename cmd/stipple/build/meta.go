@@ -7,6 +7,7 @@ import (
 	"image/png"
 	"math"
 	"os"
+	"path/filepath"
 	"sort"
 	"strings"
 
@@ -69,11 +70,33 @@ func dotstoreWorld(lon, lat float64, z int) [2]float64 {
 
 // LegendOf is the legend for the metadata.
 func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
-	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit}
+	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit, NotDrawn: tiles.NotDrawnText(md)}
 	for k, c := range md.Categories {
 		l.Entries = append(l.Entries, render.LegendEntry{Label: c.Label, Color: colors[k], People: c.People, Dots: c.DotsDrawn})
 	}
 	return l
+}
+
+// WriteLegends writes the map's legend into dir as legend.png (300 px
+// wide), legend@2x.png (the same at twice the pixels) and legend.svg (text
+// kept as text, for print and CMS workflows), and lists them in md.Legend.
+func WriteLegends(dir string, md *tiles.Metadata, colors []color.NRGBA) error {
+	leg := LegendOf(md, colors)
+	md.Legend = md.Legend[:0]
+	for _, s := range []struct {
+		name  string
+		scale float64
+	}{{"legend.png", 1}, {"legend@2x.png", 2}} {
+		if err := writePNG(filepath.Join(dir, s.name), render.DrawLegend(leg, 300, s.scale)); err != nil {
+			return err
+		}
+		md.Legend = append(md.Legend, s.name)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "legend.svg"), render.LegendSVG(leg, 300), 0o644); err != nil {
+		return fmt.Errorf("output: %w", err)
+	}
+	md.Legend = append(md.Legend, "legend.svg")
+	return nil
 }
 
 func writePNG(path string, img image.Image) error {
