@@ -81,8 +81,14 @@ var pdfDate = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
 // embedded Go fonts; the dots are a raster at the page's DPI or vector
 // circles, as mode says.
 func (p *Page) WritePDF(w io.Writer, mode DotMode) error {
-	s := p.spec.Size
-	pdf := fpdf.NewCustom(&fpdf.InitType{UnitStr: "mm", Size: fpdf.SizeType{Wd: s.W, Ht: s.H}})
+	// fpdf writes the MediaBox in points with two decimals but places
+	// marks against the unrounded height; a page height rounded to 0.01 pt
+	// first (A4: 841.89 pt = 297.0004 mm) keeps the two in step, so that
+	// the dot raster lands on whole device pixels and a renderer draws it
+	// 1:1 instead of resampling it.
+	wpt, hpt := p.spec.Size.Points()
+	wpt, hpt = round(wpt, 2), round(hpt, 2)
+	pdf := fpdf.NewCustom(&fpdf.InitType{UnitStr: "mm", Size: fpdf.SizeType{Wd: wpt * mmPerPt, Ht: hpt * mmPerPt}})
 	pdf.SetCreationDate(pdfDate)
 	pdf.SetModificationDate(pdfDate)
 	pdf.SetCatalogSort(true)
