@@ -26,8 +26,8 @@ var Groups = []Group{
 	{"other", "Other languages", "#56B4E9"},
 }
 
-// Bounds of the city in lon/lat degrees: open ocean, about 1,600 km from the
-// nearest island.
+// Bounds of the city in lon/lat degrees: open South Pacific, about 1,000 km
+// from the nearest island (Pitcairn, from memory).
 var Bounds = orb.Bound{Min: orb.Point{-128.56, -34.36}, Max: orb.Point{-128.24, -34.09}}
 
 // Districts are the invented district names, west to east then south to
