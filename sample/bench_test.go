@@ -205,3 +205,23 @@ func BenchmarkFillThreshold(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkMethodByEdges draws dots from coastlines of growing vertex
+// count (fill about 0.6) by box rejection and by triangles: past some size
+// box rejection's containment test costs more than a triangle draw.
+func BenchmarkMethodByEdges(b *testing.B) {
+	for _, n := range []int{64, 512, 2048, 8192, 50000} {
+		g := orb.MultiPolygon{coastline(rand.New(rand.NewPCG(1, uint64(n))), n)}
+		for _, m := range []method{byBox, byTriangles} {
+			b.Run(fmt.Sprintf("v%d/%v", n, m), func(b *testing.B) {
+				s := newShape(g, m)
+				b.ReportAllocs()
+				b.ResetTimer()
+				for i := 0; i < b.N; i++ {
+					p := stream(1, 2, 0, uint64(i))
+					s.Point(&p, DefaultMaxAttempts)
+				}
+			})
+		}
+	}
+}

@@ -23,6 +23,7 @@ const slabMinEdges = 32
 // edgeIndex holds a part's edges grouped by slab, four float64 per entry
 // (x0, y0, x1, y1), slab s in seg[4*start[s] : 4*start[s+1]].
 type edgeIndex struct {
+	edges      int // edges of the rings, horizontal ones included
 	minY, invH float64
 	slabs      int
 	start      []int32
@@ -53,7 +54,7 @@ func newEdgeIndex(rings [][]float64) *edgeIndex {
 			minY, maxY = math.Min(minY, r[i]), math.Max(maxY, r[i])
 		}
 	}
-	ix := &edgeIndex{minY: minY, slabs: 1}
+	ix := &edgeIndex{edges: edges, minY: minY, slabs: 1}
 	if edges >= slabMinEdges && maxY > minY {
 		// About four edges per slab on a ring of short edges; halved while
 		// long edges listed in many slabs make the index more than eight

@@ -131,8 +131,19 @@ func bounds(rings [][]float64) (minX, minY, maxX, maxY float64) {
 	maxX, maxY = math.Inf(-1), math.Inf(-1)
 	for _, r := range rings {
 		for i := 0; i+1 < len(r); i += 2 {
-			minX, maxX = math.Min(minX, r[i]), math.Max(maxX, r[i])
-			minY, maxY = math.Min(minY, r[i+1]), math.Max(maxY, r[i+1])
+			x, y := r[i], r[i+1]
+			if x < minX {
+				minX = x
+			}
+			if x > maxX {
+				maxX = x
+			}
+			if y < minY {
+				minY = y
+			}
+			if y > maxY {
+				maxY = y
+			}
 		}
 	}
 	return

@@ -10,13 +10,23 @@ import (
 const degToRad = math.Pi / 180
 
 // boxFill is the fill ratio (part area / box area) from which a simple part
-// is sampled by rejection against its box instead of by triangles. Measured
-// by BenchmarkFillThreshold (see BENCHMARKS.part.md): on a 64-vertex ring,
-// preparing and drawing 100 dots, box rejection is as fast as triangulation
-// plus triangle draws near a fill of 0.35 and faster above; 0.5 keeps
-// rejection's worst case at 2 proposals per dot and spares the
-// triangulation of big, compact parts with few dots.
-const boxFill = 0.5
+// is sampled by rejection against its box instead of by triangles, and
+// boxMaxEdges the most edges such a part may have. Measured here (2 noisy
+// cores, medians of 3, BENCHMARKS.part.md):
+//   - BenchmarkFillThreshold, 64-vertex parallelogram, prepare + 100 dots:
+//     box 127/66/68/40/41/36/47 µs against triangles 59/64/61/51/52/77/51 µs
+//     at fill 0.1/0.2/0.3/0.4/0.5/0.6/0.8: box rejection pays from about
+//     0.4, and 0.5 keeps its worst case at 2 proposals per dot;
+//   - BenchmarkMethodByEdges, coastlines of fill ≈ 0.6, per dot: box
+//     175/236/278/267/336 ns against triangles 116/101/90/113/130 ns at
+//     64/512/2048/8192/50000 vertices: triangle draws cost the same at
+//     any size while the containment test grows with the number of edges
+//     a horizontal line meets, so big rings go to triangles whatever
+//     their fill (their triangulation costs about as much as checkRings).
+const (
+	boxFill     = 0.5
+	boxMaxEdges = 2048
+)
 
 // method is how a part draws proposals.
 type method uint8
@@ -123,7 +133,7 @@ func newPart(poly orb.Polygon, force method) (part, bool) {
 		}
 		if m == autoMethod {
 			m = byTriangles
-			if pt.area >= boxFill*box {
+			if pt.area >= boxFill*box && pt.ix.edges <= boxMaxEdges {
 				m = byBox
 			}
 		}
