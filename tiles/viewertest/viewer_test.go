@@ -248,7 +248,9 @@ func TestCompareDividerMoves(t *testing.T) {
 	if st.Right != "quarter" || st.Split != 0.5 {
 		t.Fatalf("compare: %+v", st)
 	}
-	clip := func() string { return eval[string](tb, `document.querySelector('.st-stack[data-side="b"]').style.clipPath`) }
+	clip := func() string {
+		return eval[string](tb, `document.querySelector('.st-stack[data-side="b"]').style.clipPath`)
+	}
 	if c := clip(); c != "inset(0px 0px 0px 640px)" {
 		t.Errorf("right map clipped at %q; want 640px", c)
 	}
@@ -485,7 +487,7 @@ func TestHostileTextStaysText(t *testing.T) {
 		tb.open(srv.URL + "/" + page + fmt.Sprintf("#z=13.00&lat=%.5f&lon=%.5f&layer=%s", dotAt[1], dotAt[0], strings.ReplaceAll(url.QueryEscape(evilKey), "+", "%20")))
 		type seen struct {
 			Title, Label, Credit, Heading string
-			Radios, Options                []string
+			Radios, Options               []string
 			Scripts, Images, Svgs, Links  int
 			Pwned                         bool
 			Layer                         string
