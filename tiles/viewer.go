@@ -66,15 +66,17 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 	if len(layers) == 0 {
 		return fmt.Errorf("tiles: viewer: no layers")
 	}
+	for i, l := range layers {
+		if l.Meta == nil {
+			return fmt.Errorf("tiles: viewer: layer %d has no metadata", i+1)
+		}
+	}
 	data := viewerData{Format: dataFormat}
 	pages := pageData{Title: layers[0].Meta.Title, Multi: len(layers) > 1, CautionShort: render.CautionShort}
 	keys := map[string]bool{}
 	var sets []tileSet
 	for i, l := range layers {
 		m := l.Meta
-		if m == nil {
-			return fmt.Errorf("tiles: viewer: layer %d has no metadata", i+1)
-		}
 		prefix, err := layerPrefix(l.Dir)
 		if err != nil {
 			return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
