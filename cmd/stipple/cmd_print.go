@@ -241,7 +241,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	spec := page.Spec{
 		Size: size, DPI: o.dpi, Margin: margin,
 		Title: m.Title, Subtitle: o.subtitle,
-		Note: render.DotNote(m.PeoplePerDot), Caution: PrintCaution, Credit: m.Credit,
+		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution, Credit: credit(m.Credit),
 		Projection: pr, Extent: extent, DotMM: o.dotMM, Opacity: m.Dots.Opacity,
 	}
 	if o.title != "" {
@@ -342,6 +342,14 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	return &printJob{page: p, areas: areas, people: people, notDrawn: notDrawn}, nil
 }
 
+// credit is the page's source line, worded as the legend words it.
+func credit(c string) string {
+	if c == "" {
+		return ""
+	}
+	return "Source: " + c
+}
+
 func subtitle(people float64, areas int) string {
 	return fmt.Sprintf("%s people in %s areas", render.FormatCount(people), render.FormatCount(float64(areas)))
 }
@@ -352,10 +360,6 @@ func notDrawnNote(people float64) string {
 	}
 	return fmt.Sprintf("Not drawn: %s people, in areas too small or too thin to hold their dots.", render.FormatCount(people))
 }
-
-// PrintCaution is the caution printed on every page: the map caution,
-// and a word on what maps of groups can be used for.
-const PrintCaution = render.Caution + " A map of where groups of people live can be misused to single them out; share it with care."
 
 // storeDots yields the store's dots at their cells' centres in
 // longitude/latitude: the inverse of Web Mercator (IOGP GN7-2, method
