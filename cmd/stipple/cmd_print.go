@@ -230,7 +230,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 		extent = boundOf(layer, counts, nil, true)
 	}
 	if extent.Min[0] > extent.Max[0] {
-		return nil, fmt.Errorf("%s: no area has people to print", m.Path)
+		return nil, fmt.Errorf("%s: nothing to print: no area of the extent has both geometry and people", m.Path)
 	}
 	pr, err := page.Projection(o.projection, extent)
 	if err != nil {

@@ -21,6 +21,7 @@ import (
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles"
 	"golang.org/x/image/draw"
 )
 
@@ -121,6 +122,39 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	}
 	if job.areas != len(layer.Features) {
 		t.Errorf("%d areas on the page, %d in the map", job.areas, len(layer.Features))
+	}
+}
+
+// The dots build.Place gives the page are the tile run's own: render the
+// demo, open the dot store it keeps (tiles.StateDir/dots.bin), and
+// compare key for key.
+func TestPrintDotsAreTheTileStore(t *testing.T) {
+	dir := t.TempDir()
+	var out, errOut bytes.Buffer
+	if code := run(context.Background(), []string{"demo", dir}, &out, &errOut); code != 0 {
+		t.Fatalf("demo: exit %d: %s", code, errOut.String())
+	}
+	tileStore, err := dotstore.Open(filepath.Join(dir, tiles.StateDir, "dots.bin"))
+	if err != nil {
+		t.Fatalf("the tile run's dot store is not where this test looks (update the path if build moved it): %v", err)
+	}
+	m, err := mapfile.Read(filepath.Join(dir, "source", "quillmere.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	layer, counts, err := build.Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	printStore, _ := build.Place(layer, counts, m, 2)
+	a, b := tileStore.Range(0, math.MaxUint64), printStore.Range(0, math.MaxUint64)
+	if len(a) != len(b) {
+		t.Fatalf("tile run %d dots, print %d", len(a), len(b))
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			t.Fatalf("dot %d: tile run key %x, print %x", i, a[i], b[i])
+		}
 	}
 }
 

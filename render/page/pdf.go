@@ -64,6 +64,7 @@ func (m DotMode) Resolve(n int) DotMode {
 	return DotsRaster
 }
 
+// String names the mode as ParseDotMode reads it.
 func (m DotMode) String() string {
 	switch m {
 	case DotsRaster:
