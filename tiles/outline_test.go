@@ -225,3 +225,19 @@ func BenchmarkOutlinePenTile(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkOutlinePenTileReference is the naive baseline: the reference
+// coverage, every pixel against every edge.
+func BenchmarkOutlinePenTileReference(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	segs := make([][4]float64, 400)
+	for i := range segs {
+		x, y := rng.Float64()*256, rng.Float64()*256
+		segs[i] = [4]float64{x, y, x + rng.Float64()*40 - 20, y + rng.Float64()*40 - 20}
+	}
+	p := newOutlinePen(1)
+	b.ReportAllocs()
+	for b.Loop() {
+		refCoverage(p, 256, 256, segs)
+	}
+}
