@@ -323,7 +323,6 @@
       });
     } catch (e) { return false; }
     var z = parseFloat(q.z), lat = parseFloat(q.lat), lon = parseFloat(q.lon);
-    if (!isFinite(z) || !isFinite(lat) || !isFinite(lon)) return false;
     var l = q.layer !== undefined ? layerByKey(q.layer) : 0;
     setLayer(l >= 0 ? l : 0);
     var r = q.right !== undefined ? layerByKey(q.right) : -1;
@@ -331,6 +330,8 @@
     var sp = parseFloat(q.split);
     if (isFinite(sp)) st.split = clamp(sp, 0.05, 0.95);
     setOutline(q.areas === "1");
+    // A hash may name only the layers: then the start view is the map's.
+    if (!isFinite(z) || !isFinite(lat) || !isFinite(lon)) return false;
     st.z = z;
     st.x = lonToX(lon);
     st.y = latToY(lat);

@@ -98,3 +98,17 @@ func TestKeyFoldsAndOutlinesToggle(t *testing.T) {
 	}
 	tb.clean()
 }
+
+func TestHashMayNameOnlyTheLayers(t *testing.T) {
+	f := demoTwo(t)
+	srv := serve(t, f.Dir)
+	tb := newTab(t, 1280, 800)
+	plain := tb.open(srv.URL + "/index.html")
+	other := newTab(t, 1280, 800)
+	st := other.open(srv.URL + "/index.html#layer=quarter&right=ten&split=0.3")
+	if st.Layer != "quarter" || st.Right != "ten" || st.Split != 0.3 || st.Z != plain.Z || st.Lon != plain.Lon {
+		t.Errorf("hash with layers only: %+v; want layers from the hash and the start view %+v", st, plain)
+	}
+	tb.clean()
+	other.clean()
+}
