@@ -1,0 +1,179 @@
+package sink
+
+import (
+	"context"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"sync"
+)
+
+// Dir is a sink in a local folder. Put writes a temporary file in the
+// target's folder and renames it into place (rename is atomic within a
+// file system, POSIX rename(2)); content types are not stored.
+type Dir struct {
+	root string
+	made sync.Map // folders known to exist
+}
+
+// NewDir returns the sink for folder root; nothing is created until Put.
+func NewDir(root string) *Dir { return &Dir{root: root} }
+
+// Root is the folder.
+func (d *Dir) Root() string { return d.root }
+
+func (d *Dir) String() string { return d.root }
+
+func (d *Dir) full(p string) (string, error) {
+	if err := CheckPath(p); err != nil {
+		return "", err
+	}
+	return filepath.Join(d.root, filepath.FromSlash(p)), nil
+}
+
+// Put implements Sink.
+func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cacheControl string) error {
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	full, err := d.full(p)
+	if err != nil {
+		return err
+	}
+	dir := filepath.Dir(full)
+	if _, ok := d.made.Load(dir); !ok {
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return fmt.Errorf("sink: %w", err)
+		}
+		d.made.Store(dir, true)
+	}
+	f, err := os.CreateTemp(dir, ".put-*")
+	if err != nil {
+		return fmt.Errorf("sink: %w", err)
+	}
+	tmp := f.Name()
+	_, werr := f.Write(data)
+	cerr := f.Close()
+	if werr == nil {
+		werr = cerr
+	}
+	if werr == nil {
+		// CreateTemp makes 0600 files; tiles are meant to be served.
+		werr = os.Chmod(tmp, 0o644)
+	}
+	if werr == nil {
+		werr = os.Rename(tmp, full)
+	}
+	if werr != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("sink: %w", werr)
+	}
+	return nil
+}
+
+// Exists implements Sink.
+func (d *Dir) Exists(ctx context.Context, p string) (int64, bool, error) {
+	full, err := d.full(p)
+	if err != nil {
+		return 0, false, err
+	}
+	fi, err := os.Stat(full)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return 0, false, nil
+		}
+		return 0, false, fmt.Errorf("sink: %w", err)
+	}
+	if !fi.Mode().IsRegular() {
+		return 0, false, nil
+	}
+	return fi.Size(), true, nil
+}
+
+// Get implements Sink.
+func (d *Dir) Get(ctx context.Context, p string) ([]byte, error) {
+	full, err := d.full(p)
+	if err != nil {
+		return nil, err
+	}
+	b, err := os.ReadFile(full)
+	if err != nil {
+		return nil, fmt.Errorf("sink: %w", err)
+	}
+	return b, nil
+}
+
+// List implements Sink. Temporary files of unfinished Puts are skipped.
+func (d *Dir) List(ctx context.Context, prefix string, fn func(path string, size int64) error) error {
+	// Walk only the folder the prefix names, not the whole tree.
+	base := prefix
+	if i := strings.LastIndex(base, "/"); i >= 0 {
+		base = base[:i]
+	} else {
+		base = ""
+	}
+	start := filepath.Join(d.root, filepath.FromSlash(base))
+	type ent struct {
+		p    string
+		size int64
+	}
+	var all []ent
+	err := filepath.WalkDir(start, func(full string, de fs.DirEntry, err error) error {
+		if err != nil {
+			if os.IsNotExist(err) && full == start {
+				return fs.SkipAll
+			}
+			return err
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		if de.IsDir() || strings.HasPrefix(de.Name(), ".put-") {
+			return nil
+		}
+		rel, err := filepath.Rel(d.root, full)
+		if err != nil {
+			return err
+		}
+		rel = filepath.ToSlash(rel)
+		if !strings.HasPrefix(rel, prefix) {
+			return nil
+		}
+		fi, err := de.Info()
+		if err != nil {
+			return err
+		}
+		if fi.Mode().IsRegular() {
+			all = append(all, ent{rel, fi.Size()})
+		}
+		return nil
+	})
+	if err != nil {
+		return fmt.Errorf("sink: %w", err)
+	}
+	sort.Slice(all, func(i, j int) bool { return all[i].p < all[j].p })
+	for _, e := range all {
+		if err := fn(e.p, e.size); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// Delete implements Sink.
+func (d *Dir) Delete(ctx context.Context, p string) error {
+	full, err := d.full(p)
+	if err != nil {
+		return err
+	}
+	if err := os.Remove(full); err != nil && !os.IsNotExist(err) {
+		return fmt.Errorf("sink: %w", err)
+	}
+	return nil
+}
+
+// Close implements Sink; a folder holds nothing open.
+func (d *Dir) Close() error { return nil }

@@ -1,0 +1,143 @@
+package sink
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+)
+
+func openAll(t *testing.T) map[string]Sink {
+	t.Helper()
+	ctx := context.Background()
+	locs := map[string]string{
+		"dir":      filepath.Join(t.TempDir(), "out"),
+		"file-url": "file://" + filepath.ToSlash(filepath.Join(t.TempDir(), "bucket")),
+	}
+	for k, v := range bucketLocations(t) {
+		locs[k] = v
+	}
+	out := map[string]Sink{}
+	for name, loc := range locs {
+		s, err := Open(ctx, loc)
+		if err != nil {
+			t.Fatalf("%s: Open(%q): %v", name, loc, err)
+		}
+		t.Cleanup(func() { s.Close() })
+		out[name] = s
+	}
+	return out
+}
+
+// TestSinksRoundTrip runs the same sequence against every kind of sink.
+func TestSinksRoundTrip(t *testing.T) {
+	ctx := context.Background()
+	for name, s := range openAll(t) {
+		t.Run(name, func(t *testing.T) {
+			files := map[string][]byte{
+				"map.json":          []byte(`{"format":"stipple-map/1"}` + "\n"),
+				"9/261/170.png":     bytes.Repeat([]byte{0x89, 'P', 'N', 'G'}, 100),
+				"9/261/171.png":     {1, 2, 3},
+				"9/262/170@2x.png":  {},
+				".stipple/tiles.js": []byte("{}"),
+			}
+			for p, d := range files {
+				if err := PutFile(ctx, s, p, d); err != nil {
+					t.Fatal(err)
+				}
+			}
+			for p, d := range files {
+				got, err := s.Get(ctx, p)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if !bytes.Equal(got, d) {
+					t.Errorf("%s: got %d bytes, want %d", p, len(got), len(d))
+				}
+				n, ok, err := s.Exists(ctx, p)
+				if err != nil || !ok || n != int64(len(d)) {
+					t.Errorf("Exists(%s) = %d, %v, %v; want %d, true", p, n, ok, err, len(d))
+				}
+			}
+			if _, ok, err := s.Exists(ctx, "9/1/1.png"); ok || err != nil {
+				t.Errorf("Exists of a missing path = %v, %v", ok, err)
+			}
+			if _, err := s.Get(ctx, "9/1/1.png"); !errors.Is(err, ErrNotExist) {
+				t.Errorf("Get of a missing path: %v; want ErrNotExist", err)
+			}
+			var listed []string
+			if err := s.List(ctx, "9/", func(p string, size int64) error {
+				listed = append(listed, fmt.Sprintf("%s:%d", p, size))
+				return nil
+			}); err != nil {
+				t.Fatal(err)
+			}
+			want := []string{"9/261/170.png:400", "9/261/171.png:3", "9/262/170@2x.png:0"}
+			if !slices.Equal(listed, want) {
+				t.Errorf("List(9/) = %v; want %v", listed, want)
+			}
+			// Overwrite, then delete (twice: the second is no error).
+			if err := PutFile(ctx, s, "9/261/171.png", []byte("new")); err != nil {
+				t.Fatal(err)
+			}
+			if got, _ := s.Get(ctx, "9/261/171.png"); string(got) != "new" {
+				t.Errorf("overwrite: got %q", got)
+			}
+			for i := 0; i < 2; i++ {
+				if err := s.Delete(ctx, "9/261/171.png"); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if _, ok, _ := s.Exists(ctx, "9/261/171.png"); ok {
+				t.Error("deleted path still exists")
+			}
+			for _, bad := range []string{"", "/abs.png", "../up.png", "a/../b.png", "a//b.png", `a\b.png`, "./a.png"} {
+				if err := s.Put(ctx, bad, nil, "", ""); err == nil {
+					t.Errorf("Put(%q) accepted", bad)
+				}
+			}
+		})
+	}
+}
+
+// TestDirPutIsAtomic: a cancelled Put leaves the old file, and no
+// temporary file stays behind.
+func TestDirPutIsAtomic(t *testing.T) {
+	root := t.TempDir()
+	d := NewDir(root)
+	ctx := context.Background()
+	if err := d.Put(ctx, "1/0/0.png", []byte("old"), "", ""); err != nil {
+		t.Fatal(err)
+	}
+	cctx, cancel := context.WithCancel(ctx)
+	cancel()
+	if err := d.Put(cctx, "1/0/0.png", []byte("new"), "", ""); err == nil {
+		t.Error("Put with a cancelled context succeeded")
+	}
+	if b, _ := os.ReadFile(filepath.Join(root, "1", "0", "0.png")); string(b) != "old" {
+		t.Errorf("file holds %q; want the old content", b)
+	}
+	entries, _ := os.ReadDir(filepath.Join(root, "1", "0"))
+	if len(entries) != 1 {
+		t.Errorf("folder holds %d entries; want 1", len(entries))
+	}
+	if fi, _ := os.Stat(filepath.Join(root, "1", "0", "0.png")); fi.Mode().Perm() != 0o644 {
+		t.Errorf("mode %v; want 0644", fi.Mode().Perm())
+	}
+}
+
+func TestOpenErrors(t *testing.T) {
+	ctx := context.Background()
+	for _, loc := range []string{"", "nosuch://bucket", "s3://%zz", "file://otherhost/x"} {
+		if _, err := Open(ctx, loc); err == nil {
+			t.Errorf("Open(%q) succeeded", loc)
+		} else if !strings.HasPrefix(err.Error(), "sink: ") {
+			t.Errorf("Open(%q): %v; want a sink: error", loc, err)
+		}
+	}
+}
