@@ -315,7 +315,7 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Ex
 			return nil, at("margin", fmt.Sprintf("is %v; want a share of the extent's size from 0 to 10", e.Margin))
 		}
 	}
-	if extentHas(lines, i, "print") || extentTable(lines, i, "print") {
+	if extentHas(lines, i, "print") || extentTable(lines, i, "print") > 0 {
 		switch primitiveKind(md, r.Print) {
 		case "bool":
 			var on bool
@@ -340,7 +340,11 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Ex
 			}
 			merged := mergePrintTable(f.Print, p, r.Print, md)
 			if err := checkPrint(merged); err != nil {
-				return nil, at("print", err.Error())
+				line := extentTable(lines, i, "print")
+				if line == 0 {
+					line = extentLine(lines, i, "print")
+				}
+				return nil, &mapfile.Error{Path: f.Path, Line: line, Key: fmt.Sprintf("extent[%d].print", i+1), Msg: err.Error()}
 			}
 			e.Print = &merged
 		default:
@@ -368,20 +372,20 @@ func primitiveKind(md toml.MetaData, p toml.Primitive) string {
 	return "other"
 }
 
-// extentTable reports whether the i-th [[extent]] has an [extent.NAME]
-// sub-table.
-func extentTable(lines []string, i int, name string) bool {
+// extentTable returns the header line of the i-th [[extent]]'s
+// [extent.NAME] sub-table, 0 when it has none.
+func extentTable(lines []string, i int, name string) int {
 	n := -1
-	for _, l := range lines {
+	for j, l := range lines {
 		h, arr := header(l)
 		switch {
 		case h == "extent" && arr:
 			n++
 		case n == i && h == "extent."+name:
-			return true
+			return j + 1
 		}
 	}
-	return false
+	return 0
 }
 
 // mergePrint takes the keys the [print] table sets over the defaults.
@@ -431,7 +435,7 @@ func apply(out *Print, set Print, def func(string) bool) {
 
 func checkPrint(p Print) error {
 	if _, err := page.ParseSize(p.Page); err != nil {
-		return fmt.Errorf("page: %v", err)
+		return err
 	}
 	switch strings.ToLower(p.Orientation) {
 	case "", "portrait", "landscape":
