@@ -20,14 +20,31 @@ type Canvas struct {
 	NCat int
 	// Cov holds coverage as Cov[(y*W+x)*NCat+cat].
 	Cov []uint32
-	// rows[y] is set once coverage lands on row y.
+	// rows[y] is set once coverage lands on row y, and x0[y] ≤ x < x1[y]
+	// bounds the pixels it touched there.
 	rows    []bool
+	x0, x1  []int32
 	touched bool
 }
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
-	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), rows: make([]bool, h)}
+	c := &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), rows: make([]bool, h), x0: make([]int32, h), x1: make([]int32, h)}
+	for y := range c.x0 {
+		c.x0[y] = int32(w)
+	}
+	return c
+}
+
+// mark records that pixels x0 ≤ x < x1 of row y received coverage.
+func (c *Canvas) mark(y, x0, x1 int) {
+	c.rows[y] = true
+	if int32(x0) < c.x0[y] {
+		c.x0[y] = int32(x0)
+	}
+	if int32(x1) > c.x1[y] {
+		c.x1[y] = int32(x1)
+	}
 }
 
 // Reset clears the canvas for reuse.
@@ -38,8 +55,9 @@ func (c *Canvas) Reset() {
 	n := c.W * c.NCat
 	for y, used := range c.rows {
 		if used {
-			clear(c.Cov[y*n : (y+1)*n])
+			clear(c.Cov[y*n+int(c.x0[y])*c.NCat : y*n+int(c.x1[y])*c.NCat])
 			c.rows[y] = false
+			c.x0[y], c.x1[y] = int32(c.W), 0
 		}
 	}
 	c.touched = false
@@ -98,7 +116,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 				continue
 			}
 			c.Cov[(row+px)*n+cat] += w
-			c.rows[py] = true
+			c.mark(py, px, px+1)
 			c.touched = true
 		}
 	}
@@ -122,7 +140,7 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*c.NCat+cat] += v
-		c.rows[py] = true
+		c.mark(py, px, px+1)
 		c.touched = true
 	}
 }
@@ -135,6 +153,12 @@ func (c *Canvas) Count(cat, px, py int) {
 		c.Cov[i]++
 	}
 	c.rows[py] = true
+	if int32(px) < c.x0[py] {
+		c.x0[py] = int32(px)
+	}
+	if int32(px) >= c.x1[py] {
+		c.x1[py] = int32(px) + 1
+	}
 	c.touched = true
 }
 
@@ -179,7 +203,10 @@ func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) 
 			continue
 		}
 		cov := c.Cov[py*c.W*n : (py+1)*c.W*n]
-		for px := 0; px < c.W; px++ {
+		x0, x1 := int(c.x0[py]), int(c.x1[py])
+		clear(row[:4*x0])
+		clear(row[4*x1:])
+		for px := x0; px < x1; px++ {
 			cell := cov[px*n : px*n+n]
 			var sum, r, g, b uint64
 			for k, w := range cell {

@@ -159,7 +159,19 @@ func (st *encState) palettize(img *image.NRGBA, w, h int) bool {
 	for y := 0; y < h; y++ {
 		src := img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
 		dst := st.ind[y*w : (y+1)*w]
-		for x := range dst {
+		for x := 0; x < len(dst); x++ {
+			if have && last == 0 {
+				// Skip transparent runs a word at a time: most of a dot
+				// tile is empty.
+				n := zeroPixels(src[4*x:])
+				for i := x; i < x+n; i++ {
+					dst[i] = lastIdx
+				}
+				x += n
+				if x == len(dst) {
+					break
+				}
+			}
 			p := src[4*x : 4*x+4 : 4*x+4]
 			c := uint32(p[0])<<24 | uint32(p[1])<<16 | uint32(p[2])<<8 | uint32(p[3])
 			if have && c == last {
@@ -184,6 +196,22 @@ func (st *encState) palettize(img *image.NRGBA, w, h int) bool {
 	return true
 }
 
+// zeroPixels counts the leading all-zero 4-byte pixels of p.
+func zeroPixels(p []byte) int {
+	i := 0
+	for ; i+8 <= len(p); i += 8 {
+		if binary.LittleEndian.Uint64(p[i:]) != 0 {
+			break
+		}
+	}
+	for ; i+4 <= len(p); i += 4 {
+		if binary.LittleEndian.Uint32(p[i:]) != 0 {
+			break
+		}
+	}
+	return i / 4
+}
+
 // packRows writes the palette indices as scanlines of the given bit depth,
 // each led by filter type 0, most significant bits first (PNG spec §7.2).
 func (st *encState) packRows(w, h int, depth uint8) {
@@ -200,10 +228,25 @@ func (st *encState) packRows(w, h int, depth uint8) {
 		}
 		out := r[1:]
 		clear(out)
+		switch depth {
+		case 4:
+			for x := 0; x+1 < len(src); x += 2 {
+				out[x>>1] = src[x]<<4 | src[x+1]
+			}
+		case 2:
+			for x := 0; x+3 < len(src); x += 4 {
+				out[x>>2] = src[x]<<6 | src[x+1]<<4 | src[x+2]<<2 | src[x+3]
+			}
+		case 1:
+			for x := 0; x+7 < len(src); x += 8 {
+				s := src[x : x+8 : x+8]
+				out[x>>3] = s[0]<<7 | s[1]<<6 | s[2]<<5 | s[3]<<4 | s[4]<<3 | s[5]<<2 | s[6]<<1 | s[7]
+			}
+		}
+		// The last, partly filled byte.
 		d := uint(depth)
-		for x, v := range src {
-			shift := 8 - d*uint(x%per+1)
-			out[x/per] |= v << shift
+		for x := len(src) / per * per; x < len(src); x++ {
+			out[x/per] |= src[x] << (8 - d*uint(x%per+1))
 		}
 	}
 }

@@ -84,7 +84,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 			c.Cov[base+(int(e.dy)*c.W+int(e.dx))*n] += e.w
 		}
 		for py := iy - R; py <= iy+R; py++ {
-			c.rows[py] = true
+			c.mark(py, ix-R, ix+R+1)
 		}
 		c.touched = true
 		return
@@ -95,7 +95,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*n+cat] += e.w
-		c.rows[py] = true
+		c.mark(py, px, px+1)
 		c.touched = true
 	}
 }

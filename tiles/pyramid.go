@@ -138,6 +138,9 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
 			zk := zoomKey(z, p.suffix)
 			occ := occupied(w.keys, z)
+			if w.rel != nil {
+				w.rel.Release() // the binary searches touched pages all over
+			}
 			if done, ok := man.Done[zk]; ok {
 				w.addDone(z, p, done)
 				continue
@@ -183,8 +186,30 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	all := append(hist, disc...)
 
 	ch := make(chan job, 4*workers)
-	var wg sync.WaitGroup
+	var wg, iowg sync.WaitGroup
 	var failed atomic.Pointer[error]
+	// Creating a file costs tens to hundreds of microseconds of kernel time
+	// here, and more when the disk is busy; separate writers let the
+	// renderers go on meanwhile.
+	w.io = make(chan tileFile, 8*workers)
+	for i := 0; i < 2*workers+2; i++ {
+		iowg.Add(1)
+		go func() {
+			defer iowg.Done()
+			for f := range w.io {
+				if failed.Load() != nil {
+					continue
+				}
+				err := w.place(f.dir, f.final, f.j, f.data)
+				if err == nil {
+					err = w.account(f.j, int64(len(f.data)), false)
+				}
+				if err != nil {
+					failed.CompareAndSwap(nil, &err)
+				}
+			}
+		}()
+	}
 	for i := 0; i < workers; i++ {
 		wg.Add(1)
 		go func() {
@@ -208,6 +233,8 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	}
 	close(ch)
 	wg.Wait()
+	close(w.io)
+	iowg.Wait()
 	if p := failed.Load(); p != nil {
 		return w.st, *p
 	}
@@ -234,6 +261,7 @@ type writer struct {
 	left      map[string]*int64
 	zs        []string
 	zoomStats map[string]*ZoomStats
+	io        chan tileFile
 }
 
 func (w *writer) addDone(z int, p *pass, d ZoomStats) {
@@ -255,31 +283,38 @@ func (w *writer) finishZoom(zk string) error {
 	return w.man.save(w.opt.Dir)
 }
 
-// do renders, encodes and writes one tile.
+// do renders and encodes one tile and hands it to the writers (w.io).
 func (w *writer) do(r *tileRenderer, j job) error {
-	zk := zoomKey(j.z, j.p.suffix)
 	dir := filepath.Join(w.opt.Dir, strconv.Itoa(j.z), strconv.Itoa(j.x))
 	final := filepath.Join(dir, strconv.Itoa(j.y)+j.p.suffix+".png")
-	var size int64 = -1 // -1: no ink
-	kept := false
 	if w.resuming {
 		if fi, err := os.Stat(final); err == nil && fi.Mode().IsRegular() {
-			size, kept = fi.Size(), true
+			return w.account(j, fi.Size(), true)
 		}
 	}
-	if !kept {
-		img := r.render(j)
-		if img != nil {
-			r.buf.Reset()
-			if err := r.enc.Encode(&r.buf, img); err != nil {
-				return fmt.Errorf("tiles: %d/%d/%d: %w", j.z, j.x, j.y, err)
-			}
-			if err := w.place(dir, final, j, r.buf.Bytes()); err != nil {
-				return err
-			}
-			size = int64(r.buf.Len())
-		}
+	img := r.render(j)
+	if img == nil {
+		return w.account(j, -1, false)
 	}
+	r.buf.Reset()
+	if err := r.enc.Encode(&r.buf, img); err != nil {
+		return fmt.Errorf("tiles: %d/%d/%d: %w", j.z, j.x, j.y, err)
+	}
+	w.io <- tileFile{j: j, dir: dir, final: final, data: bytes.Clone(r.buf.Bytes())}
+	return nil
+}
+
+// tileFile is an encoded tile on its way to disk.
+type tileFile struct {
+	j          job
+	dir, final string
+	data       []byte
+}
+
+// account adds one finished tile (size −1: no ink) to the totals and marks
+// its zoom done when it was the zoom's last.
+func (w *writer) account(j job, size int64, kept bool) error {
+	zk := zoomKey(j.z, j.p.suffix)
 	w.mu.Lock()
 	zs := w.zoomStats[zk]
 	if size < 0 {
@@ -448,7 +483,7 @@ func (r *tileRenderer) render(j job) *image.NRGBA {
 // count fills a count canvas: one per dot in the pixel holding its centre.
 func (r *tileRenderer) count(c *render.Canvas, j job) {
 	keys := tileKeys(r.w.keys, j.z, j.x, j.y)
-	r.w.noteRead(len(keys))
+	r.w.noteRead(len(keys) + searchCost)
 	// Pixel = world coordinate >> s, minus the tile's first pixel.
 	s := dotstore.WorldBits - j.z - j.p.shift
 	ox, oy := j.x<<j.p.shift, j.y<<j.p.shift
@@ -499,6 +534,7 @@ func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
 		for dx := -1; dx <= 1; dx++ {
 			nx := (j.x + dx + n) % n
 			keys := tileKeys(r.w.keys, j.z, nx, ny)
+			r.w.noteRead(searchCost)
 			if len(keys) == 0 {
 				continue
 			}
@@ -538,6 +574,10 @@ func tileKeys(keys []uint64, z, x, y int) []uint64 {
 	first, last := dotstore.TileRange(z, x, y)
 	return searchRange(keys, first, last)
 }
+
+// searchCost is what one binary search over the whole store is charged in
+// keys read: the few pages it brings in below the hot upper levels.
+const searchCost = 2048
 
 func searchRange(keys []uint64, first, last uint64) []uint64 {
 	i := sort.Search(len(keys), func(i int) bool { return keys[i] >= first })

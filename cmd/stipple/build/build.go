@@ -16,6 +16,8 @@ import (
 	"runtime"
 	"runtime/debug"
 	"slices"
+	"strconv"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -148,7 +150,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 		budget = DefaultMemory
 	}
 	// Keep the collector from letting garbage pile up beside the budget.
-	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget + 512<<20))
+	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget + 256<<20))
 
 	in := opt.Input
 	if in == nil {
@@ -165,6 +167,13 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	state := filepath.Join(out, tiles.StateDir)
 	if err := os.MkdirAll(state, 0o755); err != nil {
 		return nil, fmt.Errorf("output: %w", err)
+	}
+	// Leftovers of a killed run: half-written files and unmerged runs.
+	for _, pat := range []string{"*.tmp", "run-*.bin"} {
+		old, _ := filepath.Glob(filepath.Join(state, pat))
+		for _, f := range old {
+			os.Remove(f)
+		}
 	}
 	fp := samplingFingerprint(layer, counts, m)
 	prog := newProgress(opt.Log, opt.ProgressEvery)
@@ -197,6 +206,9 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 		if err != nil {
 			return nil, err
 		}
+		// The sort buffers are garbage now; hand them back before the
+		// mapped store's pages come in.
+		debug.FreeOSMemory()
 		info = summarizePlacement(layer, counts, m, results, store, fp)
 		info.SpilledRuns = runs
 		if fi, err := os.Stat(storePath); err == nil {
@@ -331,7 +343,7 @@ func summarizePlacement(layer *geo.Layer, counts [][]float64, m *mapfile.Map, re
 // samplingFingerprint hashes everything the placed dots depend on.
 func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) string {
 	h := sha256.New()
-	fmt.Fprintf(h, "%s\nid=%q\nseed=%d\nperdot=%x\n", sampleFormat, m.Input.ID, m.Seed, math.Float64bits(m.PeoplePerDot))
+	fmt.Fprintf(h, "%s\nid=%q\nseed=%d\nperdot=%x\nrounding=%q\nmask=%q\n", sampleFormat, m.Input.ID, m.Seed, math.Float64bits(m.PeoplePerDot), m.Rounding, m.Input.Mask)
 	for _, c := range m.Categories {
 		fmt.Fprintf(h, "fields=%q\n", c.Fields)
 	}
@@ -502,4 +514,25 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 		return nil, nil, 0, err
 	}
 	return s, results, runs, nil
+}
+
+// ParseSize reads a byte count such as "2GiB", "512MiB", "1.5G" or
+// "1000000" (binary units for both spellings, as memory is counted).
+func ParseSize(s string) (int64, error) {
+	t := strings.TrimSpace(strings.ToUpper(s))
+	mult := 1.0
+	for _, u := range []struct {
+		suffix string
+		m      float64
+	}{{"TIB", 1 << 40}, {"GIB", 1 << 30}, {"MIB", 1 << 20}, {"KIB", 1 << 10}, {"TB", 1 << 40}, {"GB", 1 << 30}, {"MB", 1 << 20}, {"KB", 1 << 10}, {"T", 1 << 40}, {"G", 1 << 30}, {"M", 1 << 20}, {"K", 1 << 10}, {"B", 1}} {
+		if strings.HasSuffix(t, u.suffix) {
+			t, mult = strings.TrimSpace(strings.TrimSuffix(t, u.suffix)), u.m
+			break
+		}
+	}
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil || !(v > 0) || v*mult > 1<<50 {
+		return 0, fmt.Errorf("size %q: want a positive amount like 2GiB or 512MiB", s)
+	}
+	return int64(v * mult), nil
 }
