@@ -70,6 +70,8 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	switch args[0] {
 	case "render":
 		return cmdRender(ctx, args[1:], stdout, stderr)
+	case "bench":
+		return cmdBench(ctx, args[1:], stdout, stderr)
 	case "demo":
 		return cmdDemo(ctx, args[1:], stdout, stderr)
 	case "inspect":
