@@ -35,6 +35,7 @@ func newCellGrid(rings [][]float64, ix *edgeIndex, minX, minY, maxX, maxY float6
 		edges += len(r)/2 - 1
 	}
 	target := max(minGridCells, min(maxGridCells, 4*edges))
+	prev := 2.0
 	var g *cellGrid
 	for {
 		g = gridOf(rings, minX, minY, maxX, maxY, target)
@@ -46,9 +47,15 @@ func newCellGrid(rings [][]float64, ix *edgeIndex, minX, minY, maxX, maxY float6
 				inside++
 			}
 		}
-		if boundary <= inside || target >= maxGridCells {
+		// Stop when at least half the proposal area is inside cells, at the
+		// cap, or when refining no longer helps (a part of almost no area,
+		// degenerate coordinates): halving the cells' size should about
+		// halve the boundary share.
+		frac := float64(boundary) / float64(max(1, boundary+inside))
+		if boundary <= inside || target >= maxGridCells || frac > 0.9*prev {
 			return g
 		}
+		prev = frac
 		target = min(maxGridCells, 4*target)
 	}
 }
@@ -140,27 +147,48 @@ func (g *cellGrid) propose(p *rand.PCG, ix *edgeIndex) (x, y float64, ok bool) {
 func (g *cellGrid) weight() float64 { return float64(len(g.cells)) * g.cw * g.ch }
 
 // area estimates the rings' even-odd area: inside cells whole, boundary
-// cells by the share of a 4 × 4 lattice of points in them that is inside.
+// cells by the share of a lattice of test points in them that is inside
+// (4 × 4 per cell, fewer when there are many boundary cells, at most about
+// 2^18 tests in all; then every stride-th boundary cell stands for stride).
 func (g *cellGrid) area(ix *edgeIndex) float64 {
-	in := 0.0
+	boundary := 0
+	for _, c := range g.cells {
+		if c&boundaryBit != 0 {
+			boundary++
+		}
+	}
+	side, stride := 4, 1
+	switch {
+	case boundary*16 <= 1<<18:
+	case boundary*4 <= 1<<18:
+		side = 2
+	default:
+		side, stride = 1, max(1, boundary>>18)
+	}
+	in, seen := 0.0, 0
 	for _, c := range g.cells {
 		if c&boundaryBit == 0 {
-			in += 16
+			in += 1
+			continue
+		}
+		if seen++; seen%stride != 0 {
 			continue
 		}
 		k := int(c &^ boundaryBit)
 		i, j := k%g.nx, k/g.nx
-		for a := 0; a < 4; a++ {
-			for b := 0; b < 4; b++ {
-				x := g.minX + (float64(i)+(float64(a)+0.5)/4)*g.cw
-				y := g.minY + (float64(j)+(float64(b)+0.5)/4)*g.ch
+		hits := 0
+		for a := 0; a < side; a++ {
+			for b := 0; b < side; b++ {
+				x := g.minX + (float64(i)+(float64(a)+0.5)/float64(side))*g.cw
+				y := g.minY + (float64(j)+(float64(b)+0.5)/float64(side))*g.ch
 				if ix.contains(x, y) {
-					in++
+					hits++
 				}
 			}
 		}
+		in += float64(stride*hits) / float64(side*side)
 	}
-	return in / 16 * g.cw * g.ch
+	return in * g.cw * g.ch
 }
 
 // pick returns an integer uniform in [0, n) (n > 0) by Lemire's

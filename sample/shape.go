@@ -239,10 +239,20 @@ func (s *Shape) Contains(q orb.Point) bool {
 	y := math.Sin(q[1] * degToRad)
 	for k := range s.parts {
 		pt := &s.parts[k]
-		for _, x := range [3]float64{q[0], q[0] + 360, q[0] - 360} {
-			if x >= pt.minX && x <= pt.maxX && y >= pt.minY && y <= pt.maxY && pt.ix.contains(x, y) {
+		if y < pt.minY || y > pt.maxY {
+			continue
+		}
+		// Unwrapped parts may lie anywhere in x: try each shift of q by
+		// 360° that lands in the part's box.
+		x := q[0] + 360*math.Ceil((pt.minX-q[0])/360)
+		for n := 0; x <= pt.maxX && n < 4096; n++ {
+			if x >= pt.minX && pt.ix.contains(x, y) {
 				return true
 			}
+			x += 360
+		}
+		if q[0] >= pt.minX && q[0] <= pt.maxX && pt.ix.contains(q[0], y) {
+			return true
 		}
 	}
 	return false
