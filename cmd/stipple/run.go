@@ -18,6 +18,7 @@ import (
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles"
 )
 
 // usageError marks a wrong command line (exit code 2).
@@ -248,6 +249,7 @@ func printSummary(w io.Writer, s *build.Summary) {
 	}
 	fmt.Fprintf(w, "  %d tiles, %.1f MB, zooms %d–%d, in %s\n", s.Tiles.Tiles, float64(s.Tiles.Bytes)/1e6, md.MinZoom, md.MaxZoom, s.Elapsed.Round(time.Millisecond))
 	fmt.Fprintf(w, "  open %s in a browser, or: stipple serve %s\n", filepath.Join(s.OutputDir, "index.html"), s.OutputDir)
+	fmt.Fprintf(w, "\nTo embed in a story, publish the folder and paste (with src set to embed.html's published address):\n%s\n", tiles.EmbedSnippet(md, "embed.html"))
 }
 
 func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -348,11 +350,33 @@ func cmdServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return fmt.Errorf("serve: %w", err)
 	}
-	srv := &http.Server{Handler: http.FileServer(http.Dir(dir)), ReadHeaderTimeout: 10 * time.Second}
+	root, err := os.OpenRoot(dir)
+	if err != nil {
+		return fmt.Errorf("serve: %w", err)
+	}
+	defer root.Close()
+	srv := &http.Server{Handler: folderHandler(root), ReadHeaderTimeout: 10 * time.Second}
 	fmt.Fprintf(stdout, "serving %s at http://%s/ (Ctrl-C to stop)\n", dir, ln.Addr())
 	go func() { <-ctx.Done(); srv.Close() }()
 	if err := srv.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
 		return fmt.Errorf("serve: %w", err)
 	}
 	return nil
+}
+
+// folderHandler serves only what lies inside root: os.Root refuses paths
+// and symlinks that lead outside it, and dot-files and dot-folders (such as
+// the dot store in .stipple/) are not served at all.
+func folderHandler(root *os.Root) http.Handler {
+	files := http.FileServerFS(root.FS())
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		for _, part := range strings.Split(r.URL.Path, "/") {
+			if strings.HasPrefix(part, ".") {
+				http.NotFound(w, r)
+				return
+			}
+		}
+		w.Header().Set("X-Content-Type-Options", "nosniff")
+		files.ServeHTTP(w, r)
+	})
 }
