@@ -22,10 +22,10 @@ type Options struct {
 	Masks *Mask
 }
 
-// DefaultMaxAttempts bounds the proposals per dot. Every sampling method
-// accepts at least half of its proposals on a part with area (see the
-// package documentation), so only masks that cover (nearly) all of a
-// feature exhaust it: the chance that 10 000 proposals all land in masks
+// DefaultMaxAttempts bounds the proposals per dot. The box and grid methods
+// accept at least half of their proposals on ordinary parts and triangles
+// all of them (see the package documentation), so in practice only masks
+// that cover (nearly) all of a feature exhaust it: the chance that 10 000 proposals all land in masks
 // covering 99.9% of a feature is about e^-10, and 0.5^10000 without masks.
 const DefaultMaxAttempts = 10000
 
