@@ -20,6 +20,9 @@ type Canvas struct {
 	NCat int
 	// Cov holds coverage as Cov[(y*W+x)*NCat+cat].
 	Cov []uint32
+	// tot[y*W+x] is the pixel's coverage summed over categories
+	// (saturating), so compositing skips empty pixels with one load.
+	tot []uint32
 	// rows[y] is set once coverage lands on row y, and x0[y] ≤ x < x1[y]
 	// bounds the pixels it touched there.
 	rows    []bool
@@ -29,7 +32,7 @@ type Canvas struct {
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
-	c := &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), rows: make([]bool, h), x0: make([]int32, h), x1: make([]int32, h)}
+	c := &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), tot: make([]uint32, w*h), rows: make([]bool, h), x0: make([]int32, h), x1: make([]int32, h)}
 	for y := range c.x0 {
 		c.x0[y] = int32(w)
 	}
@@ -56,6 +59,7 @@ func (c *Canvas) Reset() {
 	for y, used := range c.rows {
 		if used {
 			clear(c.Cov[y*n+int(c.x0[y])*c.NCat : y*n+int(c.x1[y])*c.NCat])
+			clear(c.tot[y*c.W+int(c.x0[y]) : y*c.W+int(c.x1[y])])
 			c.rows[y] = false
 			c.x0[y], c.x1[y] = int32(c.W), 0
 		}
@@ -116,6 +120,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 				continue
 			}
 			c.Cov[(row+px)*n+cat] += w
+			c.addTot(row+px, w)
 			c.mark(py, px, px+1)
 			c.touched = true
 		}
@@ -140,17 +145,30 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*c.NCat+cat] += v
+		c.addTot(py*c.W+px, v)
 		c.mark(py, px, px+1)
 		c.touched = true
+	}
+}
+
+func (c *Canvas) addTot(p int, w uint32) {
+	if t := c.tot[p] + w; t >= w {
+		c.tot[p] = t
+	} else {
+		c.tot[p] = math.MaxUint32
 	}
 }
 
 // Count adds one dot of category cat to pixel (px, py) of a count canvas,
 // saturating at the largest uint32.
 func (c *Canvas) Count(cat, px, py int) {
-	i := (py*c.W+px)*c.NCat + cat
+	p := py*c.W + px
+	i := p*c.NCat + cat
 	if c.Cov[i] != math.MaxUint32 {
 		c.Cov[i]++
+	}
+	if c.tot[p] != math.MaxUint32 {
+		c.tot[p]++
 	}
 	c.rows[py] = true
 	if int32(px) < c.x0[py] {
@@ -203,15 +221,27 @@ func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) 
 			continue
 		}
 		cov := c.Cov[py*c.W*n : (py+1)*c.W*n]
+		tot := c.tot[py*c.W : (py+1)*c.W]
 		x0, x1 := int(c.x0[py]), int(c.x1[py])
 		clear(row[:4*x0])
 		clear(row[4*x1:])
 		for px := x0; px < x1; px++ {
+			o := row[4*px : 4*px+4 : 4*px+4]
+			t := tot[px]
+			if t == 0 {
+				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
+				continue
+			}
 			cell := cov[px*n : px*n+n]
 			var sum, r, g, b uint64
+			single := -1
 			for k, w := range cell {
 				if w == 0 {
 					continue
+				}
+				if w == t && single < 0 && t != math.MaxUint32 {
+					single = k // the pixel holds one category only
+					break
 				}
 				ww := uint64(w)
 				sum += ww
@@ -219,10 +249,8 @@ func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) 
 				g += ww * cg[k]
 				b += ww * cb[k]
 			}
-			o := row[4*px : 4*px+4 : 4*px+4]
-			if sum == 0 {
-				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
-				continue
+			if single >= 0 {
+				sum = uint64(t)
 			}
 			var a uint64 = 255
 			if sum < sat {
@@ -232,9 +260,13 @@ func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) 
 				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
 				continue
 			}
-			o[0] = uint8((r + sum/2) / sum)
-			o[1] = uint8((g + sum/2) / sum)
-			o[2] = uint8((b + sum/2) / sum)
+			if single >= 0 {
+				o[0], o[1], o[2] = uint8(cr[single]), uint8(cg[single]), uint8(cb[single])
+			} else {
+				o[0] = uint8((r + sum/2) / sum)
+				o[1] = uint8((g + sum/2) / sum)
+				o[2] = uint8((b + sum/2) / sum)
+			}
 			o[3] = uint8(a)
 		}
 	}

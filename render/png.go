@@ -23,7 +23,10 @@ import (
 type Encoder struct {
 	// Level is the zlib level; 0 means zlib.BestSpeed.
 	Level int
-	pool  sync.Pool // *encState
+	// Filter is the PNG filter type used on truecolour rows (0 None, 1 Sub,
+	// 2 Up); indexed rows are never filtered.
+	Filter int
+	pool   sync.Pool // *encState
 }
 
 // NewEncoder returns an Encoder tuned for dot tiles.
@@ -31,16 +34,17 @@ func NewEncoder() *Encoder { return &Encoder{} }
 
 type encState struct {
 	// An open-addressing colour table; slot i is in use when gen[i] == cur.
-	keys [paletteSlots]uint32
-	idx  [paletteSlots]uint8
-	gen  [paletteSlots]uint32
-	cur  uint32
-	pal  []uint32 // RGBA, big-endian packed, in order of first appearance
-	ind  []uint8  // palette index of every pixel
-	raw  []byte   // filtered scanlines
-	z    bytes.Buffer
-	zw   *zlib.Writer
-	out  bytes.Buffer
+	keys   [paletteSlots]uint32
+	idx    [paletteSlots]uint8
+	gen    [paletteSlots]uint32
+	cur    uint32
+	pal    []uint32 // RGBA, big-endian packed, in order of first appearance
+	ind    []uint8  // palette index of every pixel
+	raw    []byte   // filtered scanlines
+	z      bytes.Buffer
+	zw     *zlib.Writer
+	out    bytes.Buffer
+	filter int
 }
 
 const paletteSlots = 1024 // 4 × 256: short probe chains
@@ -61,6 +65,7 @@ func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
 			return err
 		}
 		st.zw = zw
+		st.filter = e.Filter
 	}
 	defer e.pool.Put(st)
 	data, err := st.encode(img)
@@ -113,13 +118,7 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 		}
 		st.packRows(w, h, depth)
 	} else {
-		rowLen := 1 + 4*w
-		st.raw = grow(st.raw, rowLen*h)
-		for y := 0; y < h; y++ {
-			r := st.raw[y*rowLen : (y+1)*rowLen]
-			r[0] = 0
-			copy(r[1:], img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w])
-		}
+		st.rgbaRows(img, w, h)
 	}
 	st.z.Reset()
 	st.zw.Reset(&st.z)
@@ -132,6 +131,36 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 	st.chunk("IDAT", st.z.Bytes())
 	st.chunk("IEND", nil)
 	return st.out.Bytes(), nil
+}
+
+// rgbaRows fills st.raw with truecolour scanlines of the chosen filter.
+func (st *encState) rgbaRows(img *image.NRGBA, w, h int) {
+	b := img.Bounds()
+	rowLen := 1 + 4*w
+	st.raw = grow(st.raw, rowLen*h)
+	for y := 0; y < h; y++ {
+		r := st.raw[y*rowLen : (y+1)*rowLen]
+		src := img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
+		r[0] = byte(st.filter)
+		switch st.filter {
+		case 1: // Sub: each byte minus the same channel of the pixel to its left
+			copy(r[1:5], src[:4])
+			for i := 4; i < len(src); i++ {
+				r[1+i] = src[i] - src[i-4]
+			}
+		case 2: // Up: each byte minus the byte above
+			if y == 0 {
+				copy(r[1:], src)
+			} else {
+				up := img.Pix[(b.Min.Y-img.Rect.Min.Y+y-1)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
+				for i := range src {
+					r[1+i] = src[i] - up[i]
+				}
+			}
+		default:
+			copy(r[1:], src)
+		}
+	}
 }
 
 func grow(b []byte, n int) []byte {

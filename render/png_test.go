@@ -57,7 +57,12 @@ func testImage(w, h, ncolors int, seed uint64) *image.NRGBA {
 // truecolour path, decodes them with image/png (an independent decoder) and
 // compares every pixel's non-premultiplied RGBA.
 func TestEncodeDecodesValueForValue(t *testing.T) {
-	enc := NewEncoder()
+	for _, filter := range []int{0, 1, 2} {
+		testEncodeValues(t, &Encoder{Filter: filter})
+	}
+}
+
+func testEncodeValues(t *testing.T, enc *Encoder) {
 	for _, tc := range []struct {
 		ncolors, w, h int
 		wantType      byte // IHDR colour type
@@ -66,7 +71,7 @@ func TestEncodeDecodesValueForValue(t *testing.T) {
 		{1, 17, 5, 3, 1}, {2, 9, 9, 3, 1}, {3, 33, 7, 3, 2}, {4, 256, 256, 3, 2},
 		{16, 31, 3, 3, 4}, {17, 64, 64, 3, 8}, {256, 256, 256, 3, 8}, {0, 256, 256, 6, 8}, {0, 3, 1, 3, 2}, // 3 pixels: at most 3 colours
 	} {
-		t.Run(fmt.Sprintf("%d-colours-%dx%d", tc.ncolors, tc.w, tc.h), func(t *testing.T) {
+		t.Run(fmt.Sprintf("filter-%d/%d-colours-%dx%d", enc.Filter, tc.ncolors, tc.w, tc.h), func(t *testing.T) {
 			img := testImage(tc.w, tc.h, tc.ncolors, uint64(tc.w))
 			var buf bytes.Buffer
 			if err := enc.Encode(&buf, img); err != nil {
@@ -165,6 +170,10 @@ func BenchmarkEncode(b *testing.B) {
 		}
 		e := NewEncoder()
 		run("stipple", func(w *bytes.Buffer) error { return e.Encode(w, img) })
+		for f := 1; f <= 2; f++ {
+			ef := &Encoder{Filter: f}
+			run(fmt.Sprintf("stipple-filter-%d", f), func(w *bytes.Buffer) error { return ef.Encode(w, img) })
+		}
 		std := &png.Encoder{}
 		run("image-png-default", func(w *bytes.Buffer) error { return std.Encode(w, img) })
 		fast := &png.Encoder{CompressionLevel: png.BestSpeed}

@@ -79,9 +79,12 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 	n := c.NCat
 	R := s.reach
 	if ix >= R && iy >= R && ix+R < c.W && iy+R < c.H {
-		base := (iy*c.W+ix)*n + cat
+		pix := iy*c.W + ix
+		base := pix*n + cat
 		for _, e := range cells {
-			c.Cov[base+(int(e.dy)*c.W+int(e.dx))*n] += e.w
+			off := int(e.dy)*c.W + int(e.dx)
+			c.Cov[base+off*n] += e.w
+			c.addTot(pix+off, e.w)
 		}
 		for py := iy - R; py <= iy+R; py++ {
 			c.mark(py, ix-R, ix+R+1)
@@ -95,6 +98,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*n+cat] += e.w
+		c.addTot(py*c.W+px, e.w)
 		c.mark(py, px, px+1)
 		c.touched = true
 	}
