@@ -547,3 +547,48 @@ max_zoom = 10
 		}
 	}
 }
+
+// With sample = "near" only the areas near the extents get dots: the
+// totals are those of sample = "all", tiles shared by extents are still the
+// same bytes, and tiles well inside an extent are the same as with "all".
+func TestSampleNear(t *testing.T) {
+	allDir, nearDir := t.TempDir(), t.TempDir()
+	fa := writeBatch(t, allDir, overlapping)
+	fn := writeBatch(t, nearDir, "sample = \"near\"\n"+overlapping)
+	ra, err := Run(context.Background(), fa, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rn, err := Run(context.Background(), fn, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range ra.Results {
+		a, n := ra.Results[i], rn.Results[i]
+		if n.Status != Done || fmt.Sprint(a.People, a.Dots, a.NotDrawn, a.Features) != fmt.Sprint(n.People, n.Dots, n.NotDrawn, n.Features) {
+			t.Errorf("%s: near %s %v %v; all %v %v", a.Slug, n.Status, n.People, n.Dots, a.People, a.Dots)
+		}
+	}
+	sa, sn := tileFiles(t, filepath.Join(fa.Out, "south-bank")), tileFiles(t, filepath.Join(fn.Out, "south-bank"))
+	md, _ := tiles.ReadMetadata(filepath.Join(fn.Out, "south-bank"))
+	b := md.Bounds
+	z := 12
+	inside := 0
+	for _, tl := range Cover(withMargin(boundOf(b), -0.2), z) {
+		k := fmt.Sprintf("%d/%d/%d.png", z, tl[0], tl[1])
+		if _, ok := sa[k]; !ok {
+			continue
+		}
+		inside++
+		if !bytes.Equal(sa[k], sn[k]) {
+			t.Errorf("south-bank tile %s differs between sample = all and near", k)
+		}
+	}
+	if inside < 4 {
+		t.Errorf("only %d inner tiles compared", inside)
+	}
+	if len(sn) >= len(sa) && len(sn) > 0 {
+		// Low zooms hold fewer dots, never more tiles.
+		t.Logf("near: %d tiles; all: %d", len(sn), len(sa))
+	}
+}

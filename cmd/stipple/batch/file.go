@@ -39,6 +39,11 @@ type File struct {
 	Margin float64
 	// HiDPI also writes @2x tiles.
 	HiDPI bool
+	// Sample is "all" (every area's dots, so low-zoom tiles show the whole
+	// map round an extent) or "near" (only the areas whose bounds meet an
+	// extent's box plus margin: much less to place for a few small extents
+	// of a big input, but low-zoom tiles then show those areas alone).
+	Sample string
 	// Print holds the page defaults for extents that ask for a page.
 	Print Print
 	// Extents are in file order.
@@ -108,6 +113,7 @@ type rawFile struct {
 	Out     string      `toml:"out"`
 	Margin  *float64    `toml:"margin"`
 	HiDPI   bool        `toml:"hidpi"`
+	Sample  string      `toml:"sample"`
 	Print   *Print      `toml:"print"`
 	Extents []rawExtent `toml:"extent"`
 }
@@ -146,7 +152,7 @@ func Parse(path string, data []byte) (*File, error) {
 		return nil, decodeError(path, err)
 	}
 	lines := strings.Split(string(data), "\n")
-	f := &File{Path: path, Margin: DefaultMargin, HiDPI: raw.HiDPI}
+	f := &File{Path: path, Margin: DefaultMargin, HiDPI: raw.HiDPI, Sample: "all"}
 	if md.IsDefined("input") {
 		// A map file with extents: the map is read from the same text with
 		// the extent tables blanked (line numbers kept), so its own checks
@@ -175,6 +181,14 @@ func Parse(path string, data []byte) (*File, error) {
 		f.Out = resolve(path, "out")
 		if raw.Out != "" {
 			f.Out = resolve(path, raw.Out)
+		}
+		switch raw.Sample {
+		case "", "all":
+		case "near":
+			f.Sample = "near"
+		default:
+			return nil, &mapfile.Error{Path: path, Line: topLine(lines, "sample"), Key: "sample",
+				Msg: fmt.Sprintf("%q; want \"all\" (every area's dots) or \"near\" (only areas near an extent)", raw.Sample)}
 		}
 		if raw.Margin != nil {
 			f.Margin = *raw.Margin

@@ -10,8 +10,10 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/sample/dotstore"
@@ -63,9 +65,14 @@ func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m
 		Subtitle: fmt.Sprintf("%s people in %s areas", render.FormatCount(total), render.FormatCount(float64(len(p.Features)))),
 		Note:     render.DotNote(e.PeoplePerDot), Caution: PrintCaution, Credit: m.Credit,
 		Projection: pr, Extent: p.Bound, DotMM: ps.DotMM, Opacity: m.Dots.Opacity,
-		Footnotes: []string{
-			"People: " + p.Rule + ". Dots: every dot inside the frame, those of neighbouring areas included.",
-		},
+	}
+	var keep func(lon, lat float64) bool
+	if e.Select == ByBox {
+		spec.Footnotes = append(spec.Footnotes, "People: "+p.Rule+". Dots: every dot inside the frame, those of areas whose centre lies outside the box included.")
+	} else {
+		// Like the tiles' legend, the page shows the extent's own areas.
+		keep = insideAny(in.Layer, p.Features)
+		spec.Footnotes = append(spec.Footnotes, "People and dots: "+p.Rule+".")
 	}
 	if tot.NotDrawn > 0 {
 		spec.Footnotes = append(spec.Footnotes, fmt.Sprintf("Not drawn: %s people, in areas too small or too thin to hold their dots.", render.FormatCount(tot.NotDrawn)))
@@ -85,7 +92,7 @@ func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m
 	if err != nil {
 		return nil, err
 	}
-	pg, err := lay.Place(frameDots(pl.store, lay.FrameBound()))
+	pg, err := lay.Place(frameDots(pl.store, lay.FrameBound(), keep))
 	if err != nil {
 		return nil, err
 	}
@@ -107,8 +114,9 @@ func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m
 // frameDots yields the store's dots inside lon/lat box b (the frame's
 // box), at their world cells' centres: the inverse of Web Mercator (IOGP
 // GN7-2, method 1024: φ = π/2 − 2 atan(e^(−N/R)), λ = E/R). It reads only
-// the tiles under the box, at a zoom where they are few.
-func frameDots(s *dotstore.Store, b orb.Bound) page.DotSource {
+// the tiles under the box, at a zoom where they are few. keep, when not
+// nil, picks the dots to show.
+func frameDots(s *dotstore.Store, b orb.Bound, keep func(lon, lat float64) bool) page.DotSource {
 	return func(yield func(lon, lat float64, cat int) bool) {
 		if b.Min[0] < -180 || b.Max[0] > 180 {
 			b.Min[0], b.Max[0] = -180, 180 // across the antimeridian: read every column
@@ -123,11 +131,40 @@ func frameDots(s *dotstore.Store, b orb.Bound) page.DotSource {
 			for _, k := range rangeOf(keys, first, last) {
 				x, y, cat := dotstore.Split(k)
 				lon, lat := cellLonLat(x, y)
+				if keep != nil && !keep(lon, lat) {
+					continue
+				}
 				if !yield(lon, lat, cat) {
 					return
 				}
 			}
 		}
+	}
+}
+
+// insideAny reports whether a point lies inside one of the features idx
+// (orb's planar test in lon/lat, after a bound check). A dot was placed
+// inside its own area and its cell centre is within 4 cm of that place, so
+// it lands in another area only where areas overlap.
+func insideAny(layer *geo.Layer, idx []int) func(lon, lat float64) bool {
+	type area struct {
+		b orb.Bound
+		g orb.MultiPolygon
+	}
+	areas := make([]area, 0, len(idx))
+	for _, i := range idx {
+		if g := layer.Features[i].Geometry; len(g) > 0 {
+			areas = append(areas, area{g.Bound(), g})
+		}
+	}
+	return func(lon, lat float64) bool {
+		pt := orb.Point{lon, lat}
+		for _, a := range areas {
+			if a.b.Contains(pt) && planar.MultiPolygonContains(a.g, pt) {
+				return true
+			}
+		}
+		return false
 	}
 }
 

@@ -21,6 +21,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
 )
@@ -233,6 +234,9 @@ func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int
 				return err
 			}
 		}
+		if f.Sample == "near" {
+			gin = nearInput(gin, groups[pd])
+		}
 		p, err := place(ctx, storeDir(f.Out, pd), gin, &mg, workers, memory)
 		if err != nil {
 			return err
@@ -429,7 +433,71 @@ func extentFingerprint(f *File, e *Extent, inputs string) string {
 		fmt.Fprintf(h, "cat %q %q %q\n", c.Key, c.Label, c.Color)
 	}
 	fmt.Fprintf(h, "inputs:\n%s", inputs)
+	if f.Sample == "near" {
+		// The store holds the areas near every extent of this dot value,
+		// and low-zoom tiles show them all: the others are part of this
+		// extent's definition.
+		fmt.Fprintf(h, "sample=near\n")
+		for _, o := range f.Extents {
+			if o.PeoplePerDot == e.PeoplePerDot {
+				d, _ := json.Marshal(o)
+				fmt.Fprintf(h, "%s\n", d)
+			}
+		}
+	}
 	return hex.EncodeToString(h.Sum(nil))
+}
+
+// nearInput keeps the areas whose bounds meet some extent's box plus
+// margin, and renumbers the extents' picked areas to match.
+func nearInput(in *build.Input, group []*job) *build.Input {
+	var boxes []orb.Bound
+	for _, j := range group {
+		boxes = append(boxes, withMargin(j.picked.Bound, j.e.Margin))
+	}
+	sub := &build.Input{Read: in.Read, Join: in.Join, Masks: in.Masks, MaskFeatures: in.MaskFeatures, Unjoined: map[int]bool{}}
+	l := in.Layer
+	sub.Layer = &geo.Layer{Path: l.Path, Name: l.Name, CRS: l.CRS, Fields: l.Fields}
+	picked := map[int]bool{}
+	for _, j := range group {
+		for _, i := range j.picked.Features {
+			picked[i] = true
+		}
+	}
+	renum := map[int]int{}
+	for i, f := range l.Features {
+		if len(f.Geometry) == 0 && !picked[i] {
+			continue
+		}
+		var fb orb.Bound
+		if len(f.Geometry) > 0 {
+			fb = f.Geometry.Bound()
+		}
+		for _, b := range boxes {
+			if picked[i] || fb.Intersects(b) {
+				renum[i] = len(sub.Layer.Features)
+				sub.Layer.Features = append(sub.Layer.Features, f)
+				sub.Counts = append(sub.Counts, in.Counts[i])
+				if in.Dots != nil {
+					sub.Dots = append(sub.Dots, in.Dots[i])
+				}
+				if in.Unjoined[i] {
+					sub.Unjoined[renum[i]] = true
+				}
+				break
+			}
+		}
+	}
+	for _, j := range group {
+		var fs []int
+		for _, i := range j.picked.Features {
+			if k, ok := renum[i]; ok {
+				fs = append(fs, k)
+			}
+		}
+		j.picked.Features = fs
+	}
+	return sub
 }
 
 // inputStats lists the map's input files with their sizes and modification

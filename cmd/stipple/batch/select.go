@@ -161,3 +161,8 @@ func Sum(layer *geo.Layer, features []int, counts [][]float64, dots, lost [][]in
 	}
 	return t
 }
+
+// boundOf turns [west, south, east, north] into a bound.
+func boundOf(b [4]float64) orb.Bound {
+	return orb.Bound{Min: orb.Point{b[0], b[1]}, Max: orb.Point{b[2], b[3]}}
+}
