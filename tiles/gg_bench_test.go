@@ -27,7 +27,9 @@ func benchTileSet() (keySource, func(int) render.Dot) {
 		wx, wy := worldAt(10, 300*256+768+r*math.Cos(a), 400*256+768+r*math.Sin(a))
 		keys[i] = dotstore.Key(wx, wy, rng.IntN(5))
 	}
-	look := func(z int) render.Dot { return render.Dot{Diameter: 3 * math.Pow(math.Sqrt2, float64(z-12)), Opacity: 0.9} }
+	look := func(z int) render.Dot {
+		return render.Dot{Diameter: 3 * math.Pow(math.Sqrt2, float64(z-12)), Opacity: 0.9}
+	}
 	return sorted(keys), look
 }
 
