@@ -44,8 +44,8 @@ func BenchmarkTileSet(b *testing.B) {
 	type tl struct{ z, x, y int }
 	var set []tl
 	for z := minZ; z <= maxZ; z++ {
-		for _, t := range withFringe(occupied(src, z), z) {
-			set = append(set, tl{z, t.x, t.y})
+		for _, t := range Candidates(src, z) {
+			set = append(set, tl{z, t[0], t[1]})
 		}
 	}
 	b.Run("stipple", func(b *testing.B) {

@@ -130,60 +130,49 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			return d
 		}})
 	}
-	// Plan: every zoom not yet done, with its candidate tiles.
-	var hist, disc []job
+	// Plan: every zoom not yet done. Count tiles are listed (low zooms,
+	// few tiles); disc tiles are streamed from the store zoom by zoom, so
+	// memory does not grow with the number of tiles.
+	var hist []job
+	type discZoom struct {
+		p *pass
+		z int
+	}
+	var disc []discZoom
 	w.left = map[string]*int64{}
+	w.zoomStats = map[string]*ZoomStats{}
 	for _, p := range passes {
 		p.shift = bits.TrailingZeros(uint(p.size))
 		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
 			zk := zoomKey(z, p.suffix)
-			occ := occupied(w.keys, z)
-			if w.rel != nil {
-				w.rel.Release() // the binary searches touched pages all over
-			}
 			if done, ok := man.Done[zk]; ok {
 				w.addDone(z, p, done)
 				continue
 			}
-			w.st.Planned += int64(len(occ))
-			isHist := p.look(z).Diameter < 1
-			var jobs []job
-			if isHist {
-				for _, t := range occ {
-					jobs = append(jobs, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
-				}
-				hist = append(hist, jobs...)
-			} else {
-				for _, t := range withFringe(occ, z) {
-					jobs = append(jobs, job{p: p, z: z, x: t.x, y: t.y, n: t.n})
-				}
-				disc = append(disc, jobs...)
-			}
-			n := int64(len(jobs))
-			w.left[zk] = &n
-			w.zs = append(w.zs, zk)
+			// The dispatcher holds one count of every zoom until all of the
+			// zoom's tiles are queued; the last tile to finish marks it done.
+			one := int64(1)
+			w.left[zk], w.zoomStats[zk] = &one, &ZoomStats{}
 			man.began(zk)
+			if p.look(z).Diameter < 1 {
+				for _, t := range occupied(w.keys, z) {
+					hist = append(hist, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
+					w.st.Planned++
+				}
+			} else {
+				dotstore.TilesOf(w.keys, z, func(int, int, []uint64) { w.st.Planned++ })
+				disc = append(disc, discZoom{p, z})
+			}
+			if w.rel != nil {
+				w.rel.Release() // the binary searches touched pages all over
+			}
 		}
 	}
 	if err := man.save(opt.Dir); err != nil {
 		return Stats{}, err
 	}
-	w.zoomStats = map[string]*ZoomStats{}
-	for _, zk := range w.zs {
-		w.zoomStats[zk] = &ZoomStats{}
-	}
-	// Zero-job zooms are done at once.
-	for zk, n := range w.left {
-		if *n == 0 {
-			if err := w.finishZoom(zk); err != nil {
-				return w.st, err
-			}
-		}
-	}
-	// Longest processing time first for the count tiles; disc tiles by zoom
-	// and in Z-order, so reads sweep the store.
+	// Longest processing time first for the count tiles.
 	slices.SortStableFunc(hist, func(a, b job) int { return b.n - a.n })
-	all := append(hist, disc...)
 
 	ch := make(chan job, 4*workers)
 	var wg, iowg sync.WaitGroup
@@ -225,11 +214,37 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			}
 		}()
 	}
-	for _, j := range all {
-		if ctx.Err() != nil || failed.Load() != nil {
-			break
+	stop := func() bool { return ctx.Err() != nil || failed.Load() != nil }
+	queue := func(j job) {
+		if stop() {
+			return
 		}
+		atomic.AddInt64(w.left[zoomKey(j.z, j.p.suffix)], 1)
 		ch <- j
+	}
+	// release drops the dispatcher's hold on a zoom.
+	release := func(zk string) {
+		if atomic.AddInt64(w.left[zk], -1) == 0 {
+			if err := w.finishZoom(zk); err != nil {
+				failed.CompareAndSwap(nil, &err)
+			}
+		}
+	}
+	for _, j := range hist {
+		queue(j)
+	}
+	for _, p := range passes {
+		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
+			if zk := zoomKey(z, p.suffix); w.left[zk] != nil && p.look(z).Diameter < 1 && !stop() {
+				release(zk)
+			}
+		}
+	}
+	for _, d := range disc {
+		eachCandidate(w.keys, d.z, func(x, y, n int) { queue(job{p: d.p, z: d.z, x: x, y: y, n: n}) })
+		if !stop() {
+			release(zoomKey(d.z, d.p.suffix))
+		}
 	}
 	close(ch)
 	wg.Wait()
@@ -259,7 +274,6 @@ type writer struct {
 	st        Stats
 	dirs      map[string]bool
 	left      map[string]*int64
-	zs        []string
 	zoomStats map[string]*ZoomStats
 	io        chan tileFile
 }
@@ -389,43 +403,52 @@ func occupied(keys []uint64, z int) []tileAt {
 	return out
 }
 
-// withFringe adds to the occupied tiles (Z-ordered) their empty neighbours,
-// which a dot across the edge may ink, and returns all in Z-order.
-func withFringe(occ []tileAt, z int) []tileAt {
+// eachCandidate calls fn for every tile at zoom z that may have ink: each
+// tile holding dots (n of them), and each empty neighbour of one, which a
+// dot across the edge may ink. An empty neighbour is named once, by its
+// occupied neighbour that comes first in Z-order. Only binary searches in
+// the store are used, so memory does not grow with the number of tiles.
+func eachCandidate(keys []uint64, z int, fn func(x, y, n int)) {
 	n := 1 << z
 	code := func(x, y int) uint64 { f, _ := dotstore.TileRange(z, x, y); return f }
-	has := func(x, y int) bool {
-		c := code(x, y)
-		i := sort.Search(len(occ), func(i int) bool { return code(occ[i].x, occ[i].y) >= c })
-		return i < len(occ) && occ[i].x == x && occ[i].y == y
-	}
-	var fringe []tileAt
-	for _, t := range occ {
+	has := func(x, y int) bool { return len(tileKeys(keys, z, x, y)) > 0 }
+	var near [8][2]int
+	neighbours := func(x, y int) [][2]int {
+		out := near[:0]
 		for dy := -1; dy <= 1; dy++ {
-			ny := t.y + dy
+			ny := y + dy
 			if ny < 0 || ny >= n {
 				continue
 			}
 			for dx := -1; dx <= 1; dx++ {
-				nx := (t.x + dx + n) % n
-				if (dx != 0 || dy != 0) && !has(nx, ny) {
-					fringe = append(fringe, tileAt{nx, ny, 0})
+				nx := (x + dx + n) % n
+				if (nx == x && ny == y) || slices.Contains(out, [2]int{nx, ny}) {
+					continue
 				}
+				out = append(out, [2]int{nx, ny})
 			}
 		}
+		return out
 	}
-	out := append(slices.Clone(occ), fringe...)
-	slices.SortFunc(out, func(a, b tileAt) int {
-		ca, cb := code(a.x, a.y), code(b.x, b.y)
-		switch {
-		case ca < cb:
-			return -1
-		case ca > cb:
-			return 1
+	dotstore.TilesOf(keys, z, func(x, y int, k []uint64) {
+		fn(x, y, len(k))
+		mine := code(x, y)
+		for _, e := range slices.Clone(neighbours(x, y)) {
+			if has(e[0], e[1]) {
+				continue
+			}
+			first := true
+			for _, o := range neighbours(e[0], e[1]) {
+				if code(o[0], o[1]) < mine && has(o[0], o[1]) {
+					first = false
+					break
+				}
+			}
+			if first {
+				fn(e[0], e[1], 0)
+			}
 		}
-		return 0
 	})
-	return slices.CompactFunc(out, func(a, b tileAt) bool { return a.x == b.x && a.y == b.y })
 }
 
 // tileRenderer is one worker's buffers.
@@ -586,12 +609,10 @@ func searchRange(keys []uint64, first, last uint64) []uint64 {
 }
 
 // Candidates lists the tiles at zoom z that may have ink: those holding dots
-// and their neighbours (a dot near an edge inks the next tile too), in
-// Z-order.
+// and their neighbours (a dot near an edge inks the next tile too), each
+// once.
 func Candidates(src Source, z int) [][2]int {
 	var out [][2]int
-	for _, t := range withFringe(occupied(src.Keys(), z), z) {
-		out = append(out, [2]int{t.x, t.y})
-	}
+	eachCandidate(src.Keys(), z, func(x, y, _ int) { out = append(out, [2]int{x, y}) })
 	return out
 }

@@ -365,3 +365,48 @@ func mapsEqual(a, b map[int]int64) bool {
 }
 
 func itoa(i int) string { return strconv.Itoa(i) }
+
+// TestCandidatesAreOccupiedTilesAndTheirNeighbours compares the streamed
+// candidates with a plain set: every tile holding dots and its eight
+// neighbours (wrapping east–west, not north–south), each listed once.
+func TestCandidatesAreOccupiedTilesAndTheirNeighbours(t *testing.T) {
+	rng := rand.New(rand.NewPCG(17, 17))
+	var keys []uint64
+	for i := 0; i < 3000; i++ {
+		wx, wy := uint32(rng.IntN(dotstore.WorldSize)), uint32(rng.IntN(dotstore.WorldSize/64))
+		if i%3 == 0 {
+			wx = uint32(dotstore.WorldSize - 1 - rng.IntN(1000)) // by the antimeridian
+		}
+		keys = append(keys, dotstore.Key(wx, wy, 0))
+	}
+	src := sorted(keys)
+	for _, z := range []int{0, 1, 2, 5, 9} {
+		n := 1 << z
+		want := map[[2]int]bool{}
+		for _, k := range src {
+			x, y, _ := dotstore.Split(k)
+			tx, ty := int(x>>(dotstore.WorldBits-z)), int(y>>(dotstore.WorldBits-z))
+			for dy := -1; dy <= 1; dy++ {
+				for dx := -1; dx <= 1; dx++ {
+					if ty+dy >= 0 && ty+dy < n {
+						want[[2]int{(tx + dx + n) % n, ty + dy}] = true
+					}
+				}
+			}
+		}
+		got := Candidates(src, z)
+		seen := map[[2]int]bool{}
+		for _, c := range got {
+			if seen[c] {
+				t.Fatalf("z%d: %v listed twice", z, c)
+			}
+			seen[c] = true
+			if !want[c] {
+				t.Fatalf("z%d: %v is no candidate", z, c)
+			}
+		}
+		if len(seen) != len(want) {
+			t.Errorf("z%d: %d candidates; want %d", z, len(seen), len(want))
+		}
+	}
+}
