@@ -35,6 +35,7 @@ const usage = `stipple turns people counted per area into dot-density maps.
   stipple serve DIR [--port 8080]   serve a rendered folder on 127.0.0.1 for a quick look
   stipple print MAP.toml [flags]    print the map on a page (PNG and PDF, equal-area projection)
   stipple batch FILE [flags]        render many extents (boxes, id lists, field values) from one sampling
+  stipple plan MAP.toml --shards N  size a render cut into N parts: work per part, tiles, bytes, core-hours
   stipple version                   print the version
 
 Run "stipple render -h" for the flags that override a map file.
@@ -83,6 +84,8 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdServe(ctx, args[1:], stdout, stderr)
 	case "print":
 		return cmdPrint(ctx, args[1:], stdout, stderr)
+	case "plan":
+		return cmdPlan(ctx, args[1:], stdout, stderr)
 	case "batch":
 		return cmdBatch(ctx, args[1:], stdout, stderr)
 	case "version":

@@ -12,8 +12,10 @@ import (
 )
 
 // Dir is a sink in a local folder. Put writes a temporary file in the
-// target's folder and renames it into place (rename is atomic within a
-// file system, POSIX rename(2)); content types are not stored.
+// folder's TempDir and renames it into place (rename is atomic within a
+// file system, POSIX rename(2)); content types are not stored. A process
+// killed mid-Put leaves at most a temporary file in TempDir, never in the
+// map's own folders, so a published folder holds only whole files.
 type Dir struct {
 	root string
 	made sync.Map // folders known to exist
@@ -26,6 +28,11 @@ func NewDir(root string) *Dir { return &Dir{root: root} }
 func (d *Dir) Root() string { return d.root }
 
 func (d *Dir) String() string { return d.root }
+
+// TempDir is where Put writes before renaming: inside stipple's state
+// folder (.stipple, which is never published), on the same file system as
+// the tiles. Several processes may share it: names are unique.
+const TempDir = ".stipple/put"
 
 func (d *Dir) full(p string) (string, error) {
 	if err := CheckPath(p); err != nil {
@@ -44,13 +51,16 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 		return err
 	}
 	dir := filepath.Dir(full)
-	if _, ok := d.made.Load(dir); !ok {
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			return fmt.Errorf("sink: %w", err)
+	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
+	for _, m := range []string{dir, tmpDir} {
+		if _, ok := d.made.Load(m); !ok {
+			if err := os.MkdirAll(m, 0o755); err != nil {
+				return fmt.Errorf("sink: %w", err)
+			}
+			d.made.Store(m, true)
 		}
-		d.made.Store(dir, true)
 	}
-	f, err := os.CreateTemp(dir, ".put-*")
+	f, err := os.CreateTemp(tmpDir, "put-*")
 	if err != nil {
 		return fmt.Errorf("sink: %w", err)
 	}
@@ -131,7 +141,10 @@ func (d *Dir) List(ctx context.Context, prefix string, fn func(path string, size
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		if de.IsDir() || strings.HasPrefix(de.Name(), ".put-") {
+		if de.IsDir() {
+			if rel, _ := filepath.Rel(d.root, full); filepath.ToSlash(rel) == TempDir {
+				return fs.SkipDir
+			}
 			return nil
 		}
 		rel, err := filepath.Rel(d.root, full)

@@ -1,0 +1,119 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"text/tabwriter"
+
+	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
+	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles/shard"
+)
+
+// cmdPlan is "stipple plan MAP.toml --shards N": how a render of the map
+// would be cut into N parts, the work of each, and the expected tiles,
+// bytes and core-hours, without placing a dot.
+func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("plan", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	var o overrides
+	o.register(fs)
+	n := fs.Int("shards", 1, "number of parts")
+	hidpi := fs.Bool("hidpi", false, "count @2x tiles too")
+	asJSON := fs.Bool("json", false, "print the plan as JSON")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usageError{"plan takes one map file"}
+	}
+	if *n < 1 {
+		return usageError{"--shards must be at least 1"}
+	}
+	m, err := mapfile.Read(pos[0])
+	if err != nil {
+		return err
+	}
+	if err := o.apply(m); err != nil {
+		return err
+	}
+	sm, err := planShards(m, *n, *hidpi)
+	if err != nil {
+		return err
+	}
+	p := makePlan(sm)
+	if *asJSON {
+		b, _ := json.MarshalIndent(p, "", "  ")
+		_, err := fmt.Fprintf(stdout, "%s\n", b)
+		return err
+	}
+	printPlan(stdout, m, p)
+	return nil
+}
+
+// shardPlan is the plan command's result.
+type shardPlan struct {
+	Layout *shard.Layout   `json:"layout"`
+	Shards []shardWork     `json:"shards"`
+	Est    shard.Estimate  `json:"estimate"`
+	Final  shard.FinalWork `json:"final_step"`
+	Rates  shard.Rates     `json:"rates"`
+	Dots   float64         `json:"dots"`
+	Areas  int             `json:"areas"`
+}
+
+type shardWork struct {
+	shard.ShardWork
+	Share float64 `json:"share_of_dots"`
+}
+
+func makePlan(sm *shardedMap) *shardPlan {
+	areas := areasOf(sm.m, sm.in)
+	rates := shard.MeasuredRates
+	est := shard.EstimateTiles(areas, sm.layout, rates)
+	p := &shardPlan{Layout: sm.layout, Est: est, Rates: rates, Areas: len(areas)}
+	for _, a := range areas {
+		p.Dots += a.Dots
+	}
+	for _, w := range shard.Work(areas, sm.layout, est, rates) {
+		p.Shards = append(p.Shards, shardWork{ShardWork: w, Share: w.OwnDots / max(p.Dots, 1)})
+	}
+	p.Final = shard.Final(sm.layout, est, rates)
+	return p
+}
+
+func printPlan(w io.Writer, m *mapfile.Map, p *shardPlan) {
+	l := p.Layout
+	fmt.Fprintf(w, "%s: %d areas, about %s dots (%s), zooms %d–%d, %d px tiles\n", m.Path, p.Areas, render.FormatCount(math.Round(p.Dots)), render.DotNote(m.PeoplePerDot), l.MinZoom, l.MaxZoom, m.Tiles.Size)
+	fmt.Fprintf(w, "split zoom %d: %d blocks with people, margin %d world cells; largest part %.3f× the mean (estimated); layout %s\n",
+		l.Split, l.Blocks, l.Margin, l.Imbalance(), l.Fingerprint()[:12])
+	tw := tabwriter.NewWriter(w, 2, 8, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "part\tdots (own)\tshare\tareas sampled\tdots sampled\ttiles\tMB\tcore-hours\t")
+	for _, s := range p.Shards {
+		fmt.Fprintf(tw, "%d/%d\t%s\t%.1f%%\t%d\t%s\t%s\t%.1f\t%.3f\t\n", s.Shard, l.Shards, render.FormatCount(math.Round(s.OwnDots)), 100*s.Share, s.Areas,
+			render.FormatCount(math.Round(s.SampledDots)), render.FormatCount(math.Round(s.Tiles)), s.Bytes/1e6, s.CoreHours)
+	}
+	f := p.Final
+	fmt.Fprintf(tw, "final\t%s pixels\t\t\t\t%s\t%.1f\t%.3f\t\n", render.FormatCount(math.Round(f.Cells)), render.FormatCount(math.Round(f.Tiles)), f.Bytes/1e6, f.CoreHours)
+	tw.Flush()
+	fmt.Fprintln(w, "expected tiles per zoom (1× tiles; estimates from the areas' shapes and dots, ±20% is typical):")
+	tw = tabwriter.NewWriter(w, 2, 8, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "zoom\tkind\ttiles\tMB\tpart\t")
+	for _, z := range p.Est.Zooms {
+		kind, who := "count", "parts"
+		if z.Disc {
+			kind = "disc"
+		}
+		if z.Zoom < l.Split {
+			who = "final"
+		}
+		fmt.Fprintf(tw, "%d\t%s\t%s\t%.1f\t%s\t\n", z.Zoom, kind, render.FormatCount(math.Round(z.Tiles)), z.Bytes/1e6, who)
+	}
+	tw.Flush()
+	fmt.Fprintf(w, "total: about %s tiles, %.0f MB, %.2f core-hours (rates measured on %s)\n", render.FormatCount(math.Round(p.Est.Tiles)), p.Est.Bytes/1e6, p.Est.CoreHours, p.Rates.Source)
+}

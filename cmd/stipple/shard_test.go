@@ -1,0 +1,243 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io/fs"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"os/signal"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+)
+
+// TestShardHelperProcess is not a test: the sharded-render test runs it as
+// a child process (the os/exec helper-process pattern) to render one part,
+// until "stipple render" itself takes --shard.
+func TestShardHelperProcess(t *testing.T) {
+	if os.Getenv("STIPPLE_SHARD_HELPER") != "1" {
+		return
+	}
+	args := os.Args
+	for i, a := range args {
+		if a == "--" {
+			args = args[i+1:]
+			break
+		}
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	err := cmdShardRender(ctx, args, os.Stdout, os.Stderr)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "stipple: "+err.Error())
+		os.Exit(1)
+	}
+	os.Exit(0)
+}
+
+// buildStipple builds the command into a temporary folder.
+func buildStipple(t *testing.T) string {
+	t.Helper()
+	bin := filepath.Join(t.TempDir(), "stipple")
+	cmd := exec.Command("go", "build", "-o", bin, ".")
+	cmd.Env = append(os.Environ(), "CGO_ENABLED=0")
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	return bin
+}
+
+// shardRunner makes the command for one part of a sharded render: the
+// built binary's "render --shard" once it has that flag, else this test
+// binary as a helper process running the same code (cmdShardRender).
+type shardRunner struct {
+	bin        string
+	integrated bool
+}
+
+func newShardRunner(t *testing.T, bin string) shardRunner {
+	out, _ := exec.Command(bin, "render", "-h").CombinedOutput()
+	r := shardRunner{bin: bin, integrated: strings.Contains(string(out), "-shard")}
+	if r.integrated {
+		t.Log("parts run as: stipple render MAP --shard I/N")
+	} else {
+		t.Log("\"stipple render\" has no --shard flag yet: parts run as helper processes of this test binary (cmdShardRender)")
+	}
+	return r
+}
+
+func (r shardRunner) cmd(args ...string) *exec.Cmd {
+	if r.integrated {
+		return exec.Command(r.bin, append([]string{"render"}, args...)...)
+	}
+	c := exec.Command(os.Args[0], append([]string{"-test.run=^TestShardHelperProcess$", "--"}, args...)...)
+	c.Env = append(os.Environ(), "STIPPLE_SHARD_HELPER=1")
+	return c
+}
+
+func runOK(t *testing.T, c *exec.Cmd) string {
+	t.Helper()
+	var out bytes.Buffer
+	c.Stdout, c.Stderr = &out, &out
+	if err := c.Run(); err != nil {
+		t.Fatalf("%s: %v\n%s", strings.Join(c.Args, " "), err, out.String())
+	}
+	return out.String()
+}
+
+// publicFiles lists a render's files outside its .stipple state folder,
+// with their bytes.
+func publicFiles(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	files := map[string][]byte{}
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		if d.IsDir() {
+			if rel == ".stipple" {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		b, err := os.ReadFile(p)
+		files[filepath.ToSlash(rel)] = b
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return files
+}
+
+// TestShardedRenderMatchesSingleMachine renders the demo city once on one
+// machine and once as 4 parts in separate processes and folders, one of
+// them killed with SIGKILL mid-run and rerun; the union of the parts plus
+// the final step must equal the single render file for file, byte for byte.
+func TestShardedRenderMatchesSingleMachine(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the command and renders the demo six times")
+	}
+	bin := buildStipple(t)
+	runner := newShardRunner(t, bin)
+	root := t.TempDir()
+	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	mapPath := m.Path
+	const n = 4
+	single := filepath.Join(root, "single")
+	runOK(t, exec.Command(bin, "render", mapPath, "--out", single, "--workers", "2"))
+
+	// Plan first: the plan command prints the layout the parts will use.
+	plan := runOK(t, exec.Command(bin, "plan", mapPath, "--shards", fmt.Sprint(n)))
+	t.Logf("plan:\n%s", plan)
+
+	parts := make([]string, n)
+	for i := range parts {
+		parts[i] = filepath.Join(root, fmt.Sprintf("part%d", i))
+	}
+	seed := uint64(time.Now().UnixNano())
+	t.Logf("kill seed %d", seed)
+	rng := rand.New(rand.NewPCG(seed, 8))
+	for i := 0; i < n; i++ {
+		args := []string{mapPath, "--shard", fmt.Sprintf("%d/%d", i, n), "--out", parts[i], "--workers", "2"}
+		if i == 2 {
+			// Kill this part with SIGKILL after a random delay, then rerun.
+			c := runner.cmd(args...)
+			var out bytes.Buffer
+			c.Stdout, c.Stderr = &out, &out
+			if err := c.Start(); err != nil {
+				t.Fatal(err)
+			}
+			delay := time.Duration(100+rng.IntN(900)) * time.Millisecond
+			time.Sleep(delay)
+			c.Process.Kill() // SIGKILL on Unix: no cleanup runs
+			werr := c.Wait()
+			t.Logf("part %d killed after %s (%v); it had printed:\n%s", i, delay, werr, out.String())
+		}
+		t.Log(runOK(t, runner.cmd(args...)))
+	}
+
+	// The union of the parts' folders: tiles, and the reports under
+	// .stipple/shards for the final step. No file may come from two parts.
+	union := filepath.Join(root, "union")
+	from := map[string]int{}
+	for i, p := range parts {
+		err := filepath.WalkDir(p, func(path string, d fs.DirEntry, err error) error {
+			if err != nil {
+				return err
+			}
+			rel, _ := filepath.Rel(p, path)
+			rel = filepath.ToSlash(rel)
+			if d.IsDir() {
+				if rel == ".stipple" || strings.HasPrefix(rel, ".stipple/") && rel != ".stipple/shards" {
+					if rel != ".stipple" {
+						return filepath.SkipDir
+					}
+				}
+				return nil
+			}
+			if strings.HasPrefix(rel, ".stipple/") && !strings.HasPrefix(rel, ".stipple/shards/") {
+				return nil
+			}
+			if j, dup := from[rel]; dup {
+				t.Errorf("%s written by parts %d and %d", rel, j, i)
+			}
+			from[rel] = i
+			b, err := os.ReadFile(path)
+			if err != nil {
+				return err
+			}
+			dst := filepath.Join(union, filepath.FromSlash(rel))
+			os.MkdirAll(filepath.Dir(dst), 0o755)
+			return os.WriteFile(dst, b, 0o644)
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	t.Log(runOK(t, runner.cmd(mapPath, "--shard", fmt.Sprintf("final/%d", n), "--out", union, "--workers", "2")))
+
+	want, got := publicFiles(t, single), publicFiles(t, union)
+	var missing, extra, differ []string
+	for p, b := range want {
+		g, ok := got[p]
+		switch {
+		case !ok:
+			missing = append(missing, p)
+		case !bytes.Equal(g, b):
+			differ = append(differ, p)
+		}
+	}
+	for p := range got {
+		if _, ok := want[p]; !ok {
+			extra = append(extra, p)
+		}
+	}
+	slices.Sort(missing)
+	slices.Sort(extra)
+	slices.Sort(differ)
+	short := func(s []string) []string { return s[:min(len(s), 10)] }
+	if len(missing)+len(extra)+len(differ) > 0 {
+		t.Fatalf("sharded render differs from the single one (%d files): %d missing %v, %d extra %v, %d differ %v",
+			len(want), len(missing), short(missing), len(extra), short(extra), len(differ), short(differ))
+	}
+	tilesN := 0
+	for p := range want {
+		if strings.HasSuffix(p, ".png") && strings.Count(p, "/") == 2 {
+			tilesN++
+		}
+	}
+	if tilesN < 100 {
+		t.Fatalf("only %d tiles compared; the demo should give hundreds", tilesN)
+	}
+	t.Logf("%d files identical, %d of them tiles", len(want), tilesN)
+}

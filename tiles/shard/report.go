@@ -1,0 +1,148 @@
+package shard
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/sink"
+)
+
+// ReportFormat names the layout of Report files.
+const ReportFormat = "stipple-shard/1"
+
+// ReportDir is the folder, inside the output, that holds the shards'
+// reports and summaries.
+const ReportDir = tiles.StateDir + "/shards"
+
+// Report is what one finished shard tells the final step. It is written
+// after the shard's tiles and summary, so a report present means the shard
+// is complete.
+type Report struct {
+	Format string `json:"format"`
+	// Layout is the layout's fingerprint; Look fingerprints everything the
+	// tiles depend on. All shards of one render must agree on both.
+	Layout string `json:"layout"`
+	Look   string `json:"look"`
+	Shard  int    `json:"shard"`
+	Shards int    `json:"shards"`
+	// Zooms holds the tiles the shard wrote, per zoom key ("z", "z@2x").
+	Zooms map[string]tiles.ZoomStats `json:"zooms"`
+	// Areas are the sampling results of the areas this shard owns
+	// (Layout.AreaOwner), in input order.
+	Areas []AreaResult `json:"areas"`
+	// Work done, for balance measurements.
+	AreasSampled int     `json:"areas_sampled"`
+	DotsSampled  int64   `json:"dots_sampled"`
+	DotsKept     int64   `json:"dots_kept"`
+	DotsOwned    int64   `json:"dots_owned"`
+	SummaryCells int     `json:"summary_cells"`
+	PlaceSeconds float64 `json:"place_seconds"`
+	TileSeconds  float64 `json:"tile_seconds"`
+	// EstimatedDots is the layout's estimate for this shard.
+	EstimatedDots float64 `json:"estimated_dots"`
+}
+
+// AreaResult is what happened to one area's people.
+type AreaResult struct {
+	Index int   `json:"i"`
+	Drawn []int `json:"drawn"` // dots per category
+	Lost  int   `json:"lost,omitempty"`
+	// Problem is the line the render summary prints for lost dots.
+	Problem string `json:"problem,omitempty"`
+}
+
+// Name is the base name of shard i's files: "0003-of-0016".
+func Name(i, n int) string { return fmt.Sprintf("%04d-of-%04d", i, n) }
+
+// ReportPath and SummaryPath are where shard i of n keeps its files.
+func ReportPath(i, n int) string  { return ReportDir + "/" + Name(i, n) + ".json" }
+func SummaryPath(i, n int) string { return ReportDir + "/" + Name(i, n) + ".cells" }
+
+// WriteReport stores the shard's summary, then its report.
+func WriteReport(ctx context.Context, out sink.Sink, r *Report, s *Summary) error {
+	b, err := s.MarshalBinary()
+	if err != nil {
+		return err
+	}
+	if err := out.Put(ctx, SummaryPath(r.Shard, r.Shards), b, "application/octet-stream", sink.CacheState); err != nil {
+		return err
+	}
+	r.Format = ReportFormat
+	j, err := json.MarshalIndent(r, "", "  ")
+	if err != nil {
+		return fmt.Errorf("shard: %w", err)
+	}
+	return out.Put(ctx, ReportPath(r.Shard, r.Shards), append(j, '\n'), "application/json", sink.CacheState)
+}
+
+// ReadReport loads shard i's report and summary; ok is false when the
+// shard has not finished (no report).
+func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Summary, ok bool, err error) {
+	j, err := out.Get(ctx, ReportPath(i, n))
+	if errors.Is(err, sink.ErrNotExist) {
+		return nil, nil, false, nil
+	}
+	if err != nil {
+		return nil, nil, false, err
+	}
+	r = &Report{}
+	if err := json.Unmarshal(j, r); err != nil || r.Format != ReportFormat {
+		return nil, nil, false, fmt.Errorf("shard: %s/%s: not a shard report (%v)", out, ReportPath(i, n), err)
+	}
+	if r.Shard != i || r.Shards != n {
+		return nil, nil, false, fmt.Errorf("shard: %s/%s is the report of shard %d/%d", out, ReportPath(i, n), r.Shard, r.Shards)
+	}
+	b, err := out.Get(ctx, SummaryPath(i, n))
+	if err != nil {
+		return nil, nil, false, err
+	}
+	s = &Summary{}
+	if err := s.UnmarshalBinary(b); err != nil {
+		return nil, nil, false, fmt.Errorf("%s/%s: %w", out, SummaryPath(i, n), err)
+	}
+	return r, s, true, nil
+}
+
+// Collect reads the reports of all n shards, checks that they belong to
+// one layout and look, and merges their summaries. A missing shard is an
+// error that lists every missing index, so the job can rerun just those.
+func Collect(ctx context.Context, out sink.Sink, l *Layout, look string) ([]*Report, *Summary, error) {
+	n := l.Shards
+	var reps []*Report
+	var sums []*Summary
+	var missing []string
+	for i := 0; i < n; i++ {
+		r, s, ok, err := ReadReport(ctx, out, i, n)
+		if err != nil {
+			return nil, nil, err
+		}
+		if !ok {
+			missing = append(missing, fmt.Sprint(i))
+			continue
+		}
+		if r.Layout != l.Fingerprint() {
+			return nil, nil, fmt.Errorf("shard: shard %d/%d was rendered with another layout (%s, here %s): the input or the map's tile settings changed; rerun it", i, n, r.Layout, l.Fingerprint())
+		}
+		if r.Look != look {
+			return nil, nil, fmt.Errorf("shard: shard %d/%d was rendered with another look or dots (fingerprint %.12s…, here %.12s…); rerun it", i, n, r.Look, look)
+		}
+		reps = append(reps, r)
+		sums = append(sums, s)
+	}
+	if len(missing) > 0 {
+		return nil, nil, fmt.Errorf("shard: %d of %d shards have not finished (no report in %s/%s): %s", len(missing), n, out, ReportDir, strings.Join(missing, " "))
+	}
+	merged, err := Merge(sums...)
+	if err != nil {
+		return nil, nil, err
+	}
+	if l.Split > l.MinZoom && merged.Level != l.Level() && len(merged.Keys) > 0 {
+		return nil, nil, fmt.Errorf("shard: summaries of level %d; the layout needs %d", merged.Level, l.Level())
+	}
+	merged.Level = l.Level()
+	return reps, merged, nil
+}
