@@ -1,0 +1,68 @@
+package main
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestParseShard(t *testing.T) {
+	env := func(kv ...string) func(string) string {
+		m := map[string]string{}
+		for i := 0; i+1 < len(kv); i += 2 {
+			m[kv[i]] = kv[i+1]
+		}
+		return func(k string) string { return m[k] }
+	}
+	for _, c := range []struct {
+		v    string
+		env  func(string) string
+		want string // spec, or "error: part of the message"
+	}{
+		{"0/4", env(), "0/4"},
+		{"3/4", env(), "3/4"},
+		{" 2/16 ", env(), "2/16"},
+		{"final/4", env(), "final/4"},
+		{"final", env("STIPPLE_SHARDS", "8"), "final/8"},
+		// Kubernetes Indexed Job: the index is JOB_COMPLETION_INDEX; the
+		// count is the Job's completions, given in the flag.
+		{"auto/16", env("JOB_COMPLETION_INDEX", "5"), "5/16"},
+		{"auto", env("SLURM_ARRAY_TASK_ID", "2", "SLURM_ARRAY_TASK_COUNT", "3"), "2/3"},
+		{"auto/10", env("AWS_BATCH_JOB_ARRAY_INDEX", "9"), "9/10"},
+		{"auto/2", env("STIPPLE_SHARD_INDEX", "1"), "1/2"},
+		// Kubernetes wins over a stray variable of another scheduler.
+		{"auto/4", env("JOB_COMPLETION_INDEX", "0", "SLURM_ARRAY_TASK_ID", "3"), "0/4"},
+		{"4/4", env(), "error: outside 0…3"},
+		{"-1/4", env(), "error: outside"},
+		{"1/0", env(), "error: count"},
+		{"x/4", env(), "error: whole number"},
+		{"1", env(), "error: no shard count"},
+		{"auto/4", env(), "error: JOB_COMPLETION_INDEX"},
+		{"auto/4", env("JOB_COMPLETION_INDEX", "4"), "error: JOB_COMPLETION_INDEX=4 is outside 0…3"},
+		{"auto/4", env("JOB_COMPLETION_INDEX", "one"), "error: not a shard index"},
+	} {
+		got, err := parseShard(c.v, c.env)
+		if msg, isErr := strings.CutPrefix(c.want, "error: "); isErr {
+			if err == nil || !strings.Contains(err.Error(), msg) {
+				t.Errorf("parseShard(%q) = %v, %v; want an error with %q", c.v, got, err, msg)
+			}
+			continue
+		}
+		if err != nil || got.String() != c.want {
+			t.Errorf("parseShard(%q) = %v, %v; want %s", c.v, got, err, c.want)
+		}
+	}
+}
+
+func TestTilePath(t *testing.T) {
+	for p, want := range map[string][3]int{"9/261/170.png": {9, 261, 170}, "12/0/4095@2x.png": {12, 0, 4095}} {
+		z, x, y, ok := tilePath(p)
+		if !ok || [3]int{z, x, y} != want {
+			t.Errorf("tilePath(%q) = %d %d %d %v", p, z, x, y, ok)
+		}
+	}
+	for _, p := range []string{"map.json", "legend.png", "9/x/1.png", "9/1/1.jpg", ".stipple/shards/0000-of-0004.json"} {
+		if _, _, _, ok := tilePath(p); ok {
+			t.Errorf("tilePath(%q) accepted", p)
+		}
+	}
+}
