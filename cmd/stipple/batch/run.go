@@ -79,7 +79,8 @@ type Result struct {
 	// Seconds is the extent's own work (linking tiles, legend, metadata,
 	// viewer, thumbnail, print page) plus its share of the tiles drawn for
 	// it (a tile several extents use is shared out between them); the
-	// sampling is not shared out.
+	// sampling is not shared out. A skipped extent keeps the figure of the
+	// run that drew it.
 	Seconds float64  `json:"seconds"`
 	Print   []string `json:"print,omitempty"`
 	MinZoom int      `json:"min_zoom"`
