@@ -42,9 +42,14 @@ const sampleFormat = "stipple-dots/1"
 // a rerun redraws instead of keeping old tiles.
 const tileFormat = "stipple-tiles/2"
 
-// DefaultMemory is the dot store's default memory budget: 2 GiB holds 134
-// million dots in memory (16 bytes each while sorting); more spill to disk.
+// DefaultMemory is the default memory budget of a run: with it, 126 million
+// dots fit in memory (16 bytes each while sorting); more spill to disk.
 const DefaultMemory = 2 << 30
+
+// memoryReserve is the part of the budget kept for everything but the dot
+// store's buffers (areas, samplers, runtime; while tiles are written, the
+// mapped store's window and the tile buffers).
+const memoryReserve = 128 << 20
 
 // Options are run settings that are not part of the map itself.
 type Options struct {
@@ -58,9 +63,9 @@ type Options struct {
 	// Input, when set, is used instead of loading the map's inputs (the
 	// CLI loads first to print the reading and join reports).
 	Input *Input
-	// Memory is the dot store's budget in bytes; 0 means DefaultMemory.
-	// Past it the store spills sorted runs to the output folder's .stipple
-	// folder and merges them.
+	// Memory is the run's memory budget in bytes; 0 means DefaultMemory.
+	// The dot store gets all but 128 MiB of it; past that it spills sorted
+	// runs to the output folder's .stipple folder and merges them.
 	Memory int64
 	// HiDPI also writes {z}/{x}/{y}@2x.png tiles of twice the pixels.
 	HiDPI bool
@@ -149,8 +154,11 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	if budget <= 0 {
 		budget = DefaultMemory
 	}
-	// Keep the collector from letting garbage pile up beside the budget.
-	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget + 256<<20))
+	// The budget is for the whole process: the store's buffers get all but
+	// a reserve for the areas, the samplers and the runtime, and the
+	// collector is told the budget so garbage cannot pile up beside them.
+	storeBudget := max(budget-memoryReserve, 64<<20)
+	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget))
 
 	in := opt.Input
 	if in == nil {
@@ -200,7 +208,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 		var results []sample.Result
 		var runs int
 		store, results, runs, err = PlaceStore(ctx, layer, counts, m, PlaceOptions{
-			Workers: workers, Memory: budget, SpillDir: state, StorePath: storePath, Placed: &prog.placed,
+			Workers: workers, Memory: storeBudget, SpillDir: state, StorePath: storePath, Placed: &prog.placed,
 		})
 		prog.endPhase()
 		if err != nil {
