@@ -592,3 +592,40 @@ func TestSampleNear(t *testing.T) {
 		t.Logf("near: %d tiles; all: %d", len(sn), len(sa))
 	}
 }
+
+// The same batch with one worker and with four writes the same files
+// (all but the summary tables and records, which hold timings).
+func TestSameOutputForAnyWorkerCount(t *testing.T) {
+	trees := []map[string][]byte{}
+	for _, w := range []int{1, 4} {
+		f := writeBatch(t, t.TempDir(), overlapping)
+		if _, err := Run(context.Background(), f, Options{Workers: w}); err != nil {
+			t.Fatal(err)
+		}
+		tree := map[string][]byte{}
+		filepath.WalkDir(f.Out, func(p string, d fs.DirEntry, err error) error {
+			if err != nil || d.IsDir() {
+				if d != nil && d.Name() == tiles.StateDir {
+					return filepath.SkipDir
+				}
+				return err
+			}
+			rel, _ := filepath.Rel(f.Out, p)
+			if rel == SummaryCSV || rel == SummaryJSON || rel == IndexPage {
+				return nil
+			}
+			b, _ := os.ReadFile(p)
+			tree[rel] = b
+			return nil
+		})
+		trees = append(trees, tree)
+	}
+	if len(trees[0]) != len(trees[1]) || len(trees[0]) < 100 {
+		t.Fatalf("%d and %d files", len(trees[0]), len(trees[1]))
+	}
+	for k, v := range trees[0] {
+		if !bytes.Equal(v, trees[1][k]) {
+			t.Errorf("%s differs between 1 and 4 workers", k)
+		}
+	}
+}

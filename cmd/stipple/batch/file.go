@@ -143,8 +143,9 @@ func Read(path string) (*File, error) {
 
 // Parse reads a batch file's text; path names it in errors and anchors
 // relative paths. A file with an [input] table is a map file whose
-// [[extent]] tables make the batch: the map is its own base, the extents go
-// to its out folder.
+// [[extent]] tables make the batch: the map is its own base, the batch goes
+// to OUT/extents (OUT being the map's out folder, where "stipple render"
+// writes the whole map).
 func Parse(path string, data []byte) (*File, error) {
 	var raw rawFile
 	md, err := toml.Decode(string(data), &raw)
@@ -162,7 +163,8 @@ func Parse(path string, data []byte) (*File, error) {
 			return nil, err
 		}
 		f.Map, f.MapPath = m, path
-		f.Out = m.Resolve(m.Out)
+		// Beside, not over, what "stipple render" writes for the map.
+		f.Out = filepath.Join(m.Resolve(m.Out), "extents")
 	} else {
 		if raw.Map == "" {
 			return nil, &mapfile.Error{Path: path, Key: "map", Msg: "missing: name the base map file, e.g. map = \"city.toml\""}

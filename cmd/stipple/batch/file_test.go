@@ -124,7 +124,7 @@ func TestMapFileWithExtents(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if f.MapPath != path || f.Out != filepath.Join(dir, "rendered") || len(f.Extents) != 1 || f.Extents[0].Print.DPI != 100 || len(f.Map.Categories) != 5 {
+	if f.MapPath != path || f.Out != filepath.Join(dir, "rendered", "extents") || len(f.Extents) != 1 || f.Extents[0].Print.DPI != 100 || len(f.Map.Categories) != 5 {
 		t.Errorf("map file batch: out %q, %d extents, map %q", f.Out, len(f.Extents), f.MapPath)
 	}
 	bad := strings.Replace(text, "people_per_dot = 10", "people_per_dot = -1", 1)
