@@ -407,7 +407,7 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 	if err := os.MkdirAll(filepath.Join(work, tiles.StateDir), 0o755); err != nil {
 		return nil, fmt.Errorf("output: %w", err)
 	}
-	rep := &shard.Report{Layout: l.Fingerprint(), Look: sm.look, Shard: i, Shards: n, EstimatedDots: l.Weight[i]}
+	rep := &shard.Report{Layout: l.Fingerprint(), Look: sm.look, Shard: i, Shards: n, EstimatedDots: l.Dots[i]}
 
 	// Dots: reuse the kept dots of an earlier, killed run of this part.
 	keptPath := filepath.Join(work, tiles.StateDir, "kept.bin")
@@ -482,7 +482,19 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 	}); err != nil {
 		return nil, err
 	}
-	cs, err := sink.Copy(ctx, out, local, sink.CopyOptions{Skip: func(p string) bool {
+	// Tiles the output already holds are kept only if this same render
+	// (same look and layout) put them there, as a killed earlier run of
+	// this part would have: the start marker says so.
+	marker := shard.ReportDir + "/" + shard.Name(i, n) + ".started"
+	stamp := []byte(sm.look + " " + rep.Layout + "\n")
+	prev, err := out.Get(ctx, marker)
+	resume := err == nil && bytes.Equal(prev, stamp)
+	if !resume {
+		if err := out.Put(ctx, marker, stamp, "text/plain; charset=utf-8", sink.CacheState); err != nil {
+			return nil, err
+		}
+	}
+	cs, err := sink.Copy(ctx, out, local, sink.CopyOptions{Overwrite: !resume, Skip: func(p string) bool {
 		return strings.HasPrefix(p, tiles.StateDir+"/") || !owned(p)
 	}})
 	if err != nil {
@@ -657,11 +669,28 @@ func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptio
 	// Metadata, legends and viewer: written into a local folder (the
 	// output itself, or a temporary one that is then copied to a bucket).
 	dir := m.Out
+	placeholders := map[string]bool{}
 	if sink.IsBucketURL(m.Out) {
 		if dir, err = os.MkdirTemp("", "stipple-final-"); err != nil {
 			return nil, fmt.Errorf("output: %w", err)
 		}
 		defer os.RemoveAll(dir)
+		// The viewer indexes the tiles it finds in its folder by name
+		// (tiles.WriteViewer): give it an empty file for every tile in the
+		// bucket. The placeholders are not copied back.
+		if err := out.List(ctx, "", func(p string, _ int64) error {
+			if _, _, _, ok := tilePath(p); !ok {
+				return nil
+			}
+			full := filepath.Join(dir, filepath.FromSlash(p))
+			if err := os.MkdirAll(filepath.Dir(full), 0o755); err != nil {
+				return err
+			}
+			placeholders[p] = true
+			return os.WriteFile(full, nil, 0o644)
+		}); err != nil {
+			return nil, fmt.Errorf("output: %w", err)
+		}
 	}
 	meta := build.Metadata(m, s)
 	leg := build.LegendOf(meta, colors)
@@ -685,7 +714,8 @@ func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptio
 		return nil, err
 	}
 	if sink.IsBucketURL(m.Out) {
-		if _, err := sink.Copy(ctx, out, sink.NewDir(dir), sink.CopyOptions{Skip: sink.SkipState}); err != nil {
+		skip := func(p string) bool { return sink.SkipState(p) || placeholders[p] }
+		if _, err := sink.Copy(ctx, out, sink.NewDir(dir), sink.CopyOptions{Skip: skip, Overwrite: true}); err != nil {
 			return nil, err
 		}
 	}

@@ -28,15 +28,18 @@ type Rates struct {
 }
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
-// synthetic counts) on a 2-core machine: see BENCHMARKS.part.md.
+// synthetic counts, 1 dot = 10 people: 30.9 million dots, zooms 0–12,
+// 296 000 tiles) on a 2-core machine, as wall time × cores of a whole
+// render, so they include reading the input, the file system and idle
+// moments: see BENCHMARKS.part.md.
 var MeasuredRates = Rates{
-	Source:         "the us-counties benchmark, 2 cores (BENCHMARKS.part.md)",
-	SampleNsPerDot: 95,
-	CountNsPerDot:  6,
-	DiscNsPerDot:   40,
-	TileNs:         1.2e6,
-	CountBytes:     24000,
-	DiscBytes:      9000,
+	Source:         "the national benchmark, 2 cores (tiles/shard/BENCHMARKS.part.md)",
+	SampleNsPerDot: 560,
+	CountNsPerDot:  27,
+	DiscNsPerDot:   560,
+	TileNs:         1.16e6,
+	CountBytes:     6400,
+	DiscBytes:      3800,
 }
 
 // ZoomEstimate is the expected output of one zoom (1× tiles; @2x tiles
@@ -117,16 +120,16 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 	coreNs := total * r.SampleNsPerDot
 	for z := p.MinZoom; z <= p.MaxZoom; z++ {
 		ze := ZoomEstimate{Zoom: z, Disc: p.look(z, pass{1}).Diameter >= 1, PerShard: make([]float64, l.Shards)}
-		tilesOf(areas, z, func(tz, tx, ty int, v float64, owner func() int) {
+		tilesOfAreas(areas, z, func(tx, ty int, v float64, area int) {
 			ze.Tiles += v
 			if z >= l.Split {
 				if tx >= 0 {
 					ze.PerShard[l.Owner(z, tx, ty)] += v
 				} else {
-					ze.PerShard[owner()] += v
+					ze.PerShard[l.AreaOwner(areas[area].Bound)] += v
 				}
 			}
-		}, l)
+		})
 		b := r.CountBytes
 		ns := r.CountNsPerDot
 		if ze.Disc {
@@ -140,20 +143,19 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 	}
 	if l.Split > p.MinZoom {
 		// Pixels of the summary level, treated as tiles one pixel wide.
-		tilesOf(areas, min(l.Level(), dotstore.WorldBits), func(_, _, _ int, v float64, _ func() int) { e.Pixels += v }, nil)
+		tilesOfAreas(areas, min(l.Level(), dotstore.WorldBits), func(_, _ int, v float64, _ int) { e.Pixels += v })
 	}
 	e.CoreHours = coreNs / 1e9 / 3600
 	return e
 }
 
-// tilesOf calls fn with expected drawn tiles at zoom z: once per tracked
-// tile (tx, ty ≥ 0) with its probability of holding a dot, and once per
-// large area (tx = −1) with its expected tile count and a function giving
-// the part that owns the area.
-func tilesOf(areas []Area, z int, fn func(z, tx, ty int, v float64, owner func() int), l *Layout) {
+// tilesOfAreas calls fn with expected drawn tiles at zoom z: once per
+// tracked tile (tx, ty ≥ 0) with its probability of holding a dot, and once
+// per large area (tx = −1) with its expected tile count and its index.
+func tilesOfAreas(areas []Area, z int, fn func(tx, ty int, v float64, area int)) {
 	empty := map[[2]int]float64{} // probability that a tracked tile stays empty
 	var order [][2]int
-	for _, a := range areas {
+	for ai, a := range areas {
 		if !(a.Dots > 0) {
 			continue
 		}
@@ -168,8 +170,7 @@ func tilesOf(areas []Area, z int, fn func(z, tx, ty int, v float64, owner func()
 		covered := math.Max(fill*n, 1)
 		lambda := a.Dots / covered
 		if n > spanLimit {
-			b := a.Bound
-			fn(z, -1, -1, covered*(1-math.Exp(-lambda)), func() int { return l.AreaOwner(b) })
+			fn(-1, -1, covered*(1-math.Exp(-lambda)), ai)
 			continue
 		}
 		// Each tracked tile is covered with probability fill.
@@ -190,7 +191,7 @@ func tilesOf(areas []Area, z int, fn func(z, tx, ty int, v float64, owner func()
 		}
 	}
 	for _, k := range order {
-		fn(z, k[0], k[1], 1-empty[k], nil)
+		fn(k[0], k[1], 1-empty[k], -1)
 	}
 }
 
@@ -213,7 +214,7 @@ func Work(areas []Area, l *Layout, e Estimate, r Rates) []ShardWork {
 	out := make([]ShardWork, l.Shards)
 	for i := range out {
 		out[i].Shard = i
-		out[i].OwnDots = l.Weight[i]
+		out[i].OwnDots = l.Dots[i]
 	}
 	for _, a := range areas {
 		if !(a.Dots > 0) {
@@ -277,4 +278,77 @@ func Final(l *Layout, e Estimate, r Rates) FinalWork {
 		f.CoreHours += (ze.Tiles*r.TileNs + e.Pixels*r.CountNsPerDot) * scale / 1e9 / 3600
 	}
 	return f
+}
+
+// workModel holds what Plan needs to weigh blocks by work: per zoom, the
+// expected tiles of small areas (tile by tile) and of large areas (area by
+// area).
+type workModel struct {
+	p       Pyramid
+	r       Rates
+	tracked map[int][]trackedTile
+	large   map[int]map[int]float64 // zoom → area → expected tiles
+	scale   float64
+}
+
+type trackedTile struct {
+	x, y int
+	v    float64
+}
+
+func newWorkModel(areas []Area, p Pyramid, r Rates, maxSplit int) *workModel {
+	wm := &workModel{p: p, r: r, tracked: map[int][]trackedTile{}, large: map[int]map[int]float64{}, scale: 1}
+	if p.HiDPI {
+		wm.scale = 2
+	}
+	for z := p.MinZoom; z <= p.MaxZoom; z++ {
+		lg := map[int]float64{}
+		var tr []trackedTile
+		tilesOfAreas(areas, z, func(tx, ty int, v float64, area int) {
+			if tx < 0 {
+				lg[area] += v
+			} else {
+				tr = append(tr, trackedTile{tx, ty, v})
+			}
+		})
+		wm.tracked[z], wm.large[z] = tr, lg
+	}
+	return wm
+}
+
+// blocks is the estimated work, in core-seconds, of every block of zoom
+// s: sampling and drawing each dot at every zoom from s down, and
+// compositing, encoding and writing each expected tile.
+func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) []block {
+	perDot := wm.r.SampleNsPerDot
+	for z := s; z <= wm.p.MaxZoom; z++ {
+		if wm.p.look(z, pass{1}).Diameter >= 1 {
+			perDot += wm.r.DiscNsPerDot * wm.scale
+		} else {
+			perDot += wm.r.CountNsPerDot * wm.scale
+		}
+	}
+	areaWork := make([]float64, len(areas))
+	for i, a := range areas {
+		areaWork[i] = a.Dots * perDot
+	}
+	for z := s; z <= wm.p.MaxZoom; z++ {
+		for i, v := range wm.large[z] {
+			areaWork[i] += v * wm.r.TileNs * wm.scale
+		}
+	}
+	w := map[uint64]float64{}
+	for _, b := range weigh(areas, s, points, func(i int) float64 { return areaWork[i] }) {
+		w[b.code] += b.w
+	}
+	for z := s; z <= wm.p.MaxZoom; z++ {
+		d := z - s
+		for _, t := range wm.tracked[z] {
+			w[morton(s, t.x>>d, t.y>>d)] += t.v * wm.r.TileNs * wm.scale
+		}
+	}
+	for c, v := range w {
+		w[c] = v / 1e9
+	}
+	return sortedBlocks(w)
 }

@@ -133,12 +133,14 @@ type Layout struct {
 	// Lo holds Shards+1 Z-order codes of blocks: the first block of each
 	// shard, and 4^Split at the end.
 	Lo []uint64 `json:"first_block"`
-	// Weight is the estimated dots of each shard.
-	Weight []float64 `json:"estimated_dots"`
+	// Weight is the estimated work of each shard in core-seconds (see
+	// Plan); Dots its estimated dots.
+	Weight []float64 `json:"estimated_core_seconds"`
+	Dots   []float64 `json:"estimated_dots"`
 	// Blocks is the number of blocks with dots.
 	Blocks int `json:"blocks"`
-	// MaxBlock is the estimated dots of the heaviest block.
-	MaxBlock float64 `json:"heaviest_block_dots"`
+	// MaxBlock is the estimated work of the heaviest block.
+	MaxBlock float64 `json:"heaviest_block_core_seconds"`
 	// Pyramid the layout was made for.
 	Pyramid Pyramid `json:"-"`
 }
@@ -148,10 +150,13 @@ type PlanOptions struct {
 	Shards int
 	// MaxSplit caps the split zoom; 0 means 12 (16.7 million blocks).
 	MaxSplit int
-	// Balance is the largest shard's estimated dots over the mean that is
+	// Balance is the largest shard's estimated work over the mean that is
 	// good enough; Plan takes the coarsest split zoom that reaches it, or
 	// else the best one it can. 0 means 1.05.
 	Balance float64
+	// Rates turn dots and tiles into work; the zero value means
+	// MeasuredRates.
+	Rates *Rates
 }
 
 // Plan chooses the split zoom and cuts the blocks of areas into shards.
@@ -180,6 +185,10 @@ func Plan(areas []Area, p Pyramid, opt PlanOptions) (*Layout, error) {
 		goal = 1.05
 	}
 	hi := min(p.FirstDisc(), p.MaxZoom, max(maxSplit, p.MinZoom))
+	rates := MeasuredRates
+	if opt.Rates != nil {
+		rates = *opt.Rates
+	}
 	var best *Layout
 	var bestErr error
 	pts := make([][]orb.Point, len(areas))
@@ -190,14 +199,17 @@ func Plan(areas []Area, p Pyramid, opt PlanOptions) (*Layout, error) {
 		}
 		return pts[i]
 	}
+	wk := newWorkModel(areas, p, rates, hi)
 	for s := p.MinZoom; s <= hi; s++ {
-		l, err := cut(weigh(areas, s, points), s, opt.Shards)
+		work := wk.blocks(areas, s, points)
+		l, err := cut(work, s, opt.Shards)
 		if err != nil {
 			bestErr = err
 			continue
 		}
 		l.MinZoom, l.MaxZoom, l.Pyramid = p.MinZoom, p.MaxZoom, p
 		l.Margin = p.Margin(s)
+		l.Dots = l.sumByShard(weigh(areas, s, points, func(i int) float64 { return areas[i].Dots }))
 		if best == nil || l.Imbalance() < best.Imbalance() {
 			best = l
 		}
@@ -211,7 +223,7 @@ func Plan(areas []Area, p Pyramid, opt PlanOptions) (*Layout, error) {
 	return best, nil
 }
 
-// Imbalance is the largest shard's estimated dots over the mean (1 is a
+// Imbalance is the largest shard's estimated work over the mean (1 is a
 // perfect cut).
 func (l *Layout) Imbalance() float64 {
 	total, most := 0.0, 0.0
@@ -250,23 +262,25 @@ func worldBound(b orb.Bound) (x0, y0, x1, y1 uint32) {
 	return
 }
 
-// weigh shares each area's dots out among the blocks of zoom s, in a fixed
-// order so that every process gets the same sums.
-func weigh(areas []Area, s int, points func(i int) []orb.Point) []block {
+// weigh shares each area's value (its dots, or its work) out among the
+// blocks of zoom s, the way its dots fall, in a fixed order so that every
+// process gets the same sums.
+func weigh(areas []Area, s int, points func(i int) []orb.Point, value func(i int) float64) []block {
 	w := map[uint64]float64{}
 	for i, a := range areas {
 		if !(a.Dots > 0) {
 			continue
 		}
+		v := value(i)
 		x0, y0, x1, y1 := worldBound(a.Bound)
 		bx0, by0 := blockOf(s, x0, y0)
 		bx1, by1 := blockOf(s, x1, y1)
 		switch {
 		case bx0 == bx1 && by0 == by1:
-			w[morton(s, bx0, by0)] += a.Dots
+			w[morton(s, bx0, by0)] += v
 		case len(points(i)) > 0:
 			pts := points(i)
-			share := a.Dots / float64(len(pts))
+			share := v / float64(len(pts))
 			for _, p := range pts {
 				px, py := dotstore.World(p[0], p[1])
 				bx, by := blockOf(s, px, py)
@@ -276,11 +290,15 @@ func weigh(areas []Area, s int, points func(i int) []orb.Point) []block {
 			n := float64((bx1 - bx0 + 1) * (by1 - by0 + 1))
 			for by := by0; by <= by1; by++ {
 				for bx := bx0; bx <= bx1; bx++ {
-					w[morton(s, bx, by)] += a.Dots / n
+					w[morton(s, bx, by)] += v / n
 				}
 			}
 		}
 	}
+	return sortedBlocks(w)
+}
+
+func sortedBlocks(w map[uint64]float64) []block {
 	out := make([]block, 0, len(w))
 	for c, v := range w {
 		out = append(out, block{c, v})
@@ -368,6 +386,16 @@ func cut(blocks []block, s, n int) (*Layout, error) {
 	}
 	l.Lo[n] = uint64(1) << (2 * s)
 	return l, nil
+}
+
+// sumByShard adds block values up per shard.
+func (l *Layout) sumByShard(blocks []block) []float64 {
+	out := make([]float64, l.Shards)
+	for _, b := range blocks {
+		i, _ := slices.BinarySearch(l.Lo, b.code+1)
+		out[i-1] += b.w
+	}
+	return out
 }
 
 // BlockOwner is the shard that owns block (x, y) of the split zoom.

@@ -99,9 +99,9 @@ func TestCutIsOptimal(t *testing.T) {
 	}
 }
 
-// TestPlanBalancesByDots: on invented areas the largest part stays within
-// 1.25× the mean for 2, 4 and 16 parts, and the parts' weights add up to
-// every dot.
+// TestPlanBalancesByDots: on invented areas the largest part's estimated
+// work stays within 1.25× the mean for 2, 4 and 16 parts, and the parts'
+// estimated dots add up to every dot.
 func TestPlanBalancesByDots(t *testing.T) {
 	areas := inventedAreas(7, 3000)
 	total := 0.0
@@ -115,11 +115,11 @@ func TestPlanBalancesByDots(t *testing.T) {
 			t.Fatal(err)
 		}
 		sum := 0.0
-		for _, w := range l.Weight {
+		for _, w := range l.Dots {
 			sum += w
 		}
 		if math.Abs(sum-total) > 1e-6*total {
-			t.Errorf("%d parts: weights add to %v; want %v", n, sum, total)
+			t.Errorf("%d parts: estimated dots add to %v; want %v", n, sum, total)
 		}
 		if l.Imbalance() > 1.25 {
 			t.Errorf("%d parts at split %d: imbalance %.3f", n, l.Split, l.Imbalance())
@@ -393,7 +393,7 @@ func TestPartsAndFinalStepEqualOneWrite(t *testing.T) {
 				areas = append(areas, Area{Bound: b, Dots: float64(len(k))})
 			})
 			split := p.FirstDisc()
-			l, err := cut(weigh(areas, split, func(int) []orb.Point { return nil }), split, 3)
+			l, err := cut(weigh(areas, split, func(int) []orb.Point { return nil }, func(i int) float64 { return areas[i].Dots }), split, 3)
 			if err != nil {
 				t.Fatal(err)
 			}

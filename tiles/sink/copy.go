@@ -15,6 +15,10 @@ type CopyOptions struct {
 	// Workers is the number of uploads at once; 0 means 8 (object stores
 	// reward parallel requests; a folder does not mind).
 	Workers int
+	// Overwrite puts every file even when dst holds one of the same size
+	// (for files whose content may change at the same length, or when dst
+	// may hold an older render).
+	Overwrite bool
 }
 
 // CopyStats count what Copy did.
@@ -24,9 +28,12 @@ type CopyStats struct {
 }
 
 // Copy puts every file of src into dst under the same path, with the
-// content type and cache header TypeOf and CacheOf give. A path dst already
-// holds with the same size is kept, so an interrupted copy resumes where it
-// stopped: every Put is atomic, so a kept object is a whole one.
+// content type and cache header TypeOf and CacheOf give. Unless Overwrite
+// is set, a path dst already holds with the same size is kept, so an
+// interrupted copy resumes where it stopped: every Put is atomic, so a kept
+// object is a whole one. (Whether it is the same file is the caller's to
+// know: stipple marks an output with the fingerprint of the render that
+// writes into it before it starts.)
 func Copy(ctx context.Context, dst, src Sink, opt CopyOptions) (CopyStats, error) {
 	workers := opt.Workers
 	if workers <= 0 {
@@ -56,12 +63,14 @@ func Copy(ctx context.Context, dst, src Sink, opt CopyOptions) (CopyStats, error
 				if ctx.Err() != nil {
 					continue
 				}
-				if n, ok, err := dst.Exists(ctx, it.p); err != nil {
-					fail(err)
-					continue
-				} else if ok && n == it.size {
-					atomic.AddInt64(&st.Kept, 1)
-					continue
+				if !opt.Overwrite {
+					if n, ok, err := dst.Exists(ctx, it.p); err != nil {
+						fail(err)
+						continue
+					} else if ok && n == it.size {
+						atomic.AddInt64(&st.Kept, 1)
+						continue
+					}
 				}
 				data, err := src.Get(ctx, it.p)
 				if err != nil {
