@@ -33,6 +33,8 @@ type Map struct {
 	Tiles      Tiles      `toml:"tiles"`
 	Dots       Dots       `toml:"dots"`
 	Categories []Category `toml:"category"`
+	// Extents are read by "stipple batch"; "stipple render" ignores them.
+	Extents []toml.Primitive `toml:"extent"`
 }
 
 // Input names the polygons and where their counts come from.
@@ -147,9 +149,11 @@ func Parse(path string, data []byte) (*Map, error) {
 		return nil, &Error{Path: path, Msg: err.Error()}
 	}
 	lines := strings.Split(string(data), "\n")
-	if und := md.Undecoded(); len(und) > 0 {
-		k := und[0].String()
-		return nil, &Error{Path: path, Line: lineOf(lines, und[0]), Key: k, Msg: "unknown key"}
+	for _, k := range md.Undecoded() {
+		if len(k) > 0 && k[0] == "extent" {
+			continue // batch extents are checked by package batch
+		}
+		return nil, &Error{Path: path, Line: lineOf(lines, k), Key: k.String(), Msg: "unknown key"}
 	}
 	if err := m.check(md, lines); err != nil {
 		return nil, err
