@@ -57,7 +57,7 @@ func testImage(w, h, ncolors int, seed uint64) *image.NRGBA {
 // truecolour path, decodes them with image/png (an independent decoder) and
 // compares every pixel's non-premultiplied RGBA.
 func TestEncodeDecodesValueForValue(t *testing.T) {
-	for _, filter := range []int{0, 1, 2} {
+	for _, filter := range []RowFilter{FilterAuto, FilterNone, FilterSub, FilterUp} {
 		testEncodeValues(t, &Encoder{Filter: filter})
 	}
 }
@@ -170,9 +170,9 @@ func BenchmarkEncode(b *testing.B) {
 		}
 		e := NewEncoder()
 		run("stipple", func(w *bytes.Buffer) error { return e.Encode(w, img) })
-		for f := 1; f <= 2; f++ {
+		for f, name := range map[RowFilter]string{FilterNone: "none", FilterSub: "sub", FilterUp: "up"} {
 			ef := &Encoder{Filter: f}
-			run(fmt.Sprintf("stipple-filter-%d", f), func(w *bytes.Buffer) error { return ef.Encode(w, img) })
+			run("stipple-filter-"+name, func(w *bytes.Buffer) error { return ef.Encode(w, img) })
 		}
 		std := &png.Encoder{}
 		run("image-png-default", func(w *bytes.Buffer) error { return std.Encode(w, img) })
