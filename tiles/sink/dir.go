@@ -9,6 +9,7 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 )
 
 // Dir is a sink in a local folder. Put writes a temporary file in the
@@ -190,3 +191,38 @@ func (d *Dir) Delete(ctx context.Context, p string) error {
 
 // Close implements Sink; a folder holds nothing open.
 func (d *Dir) Close() error { return nil }
+
+// link puts src's file at p into d as a hard link (through a temporary
+// name and a rename, so it is atomic like Put): no data is copied. It
+// fails across file systems; Copy then copies.
+func (d *Dir) link(src *Dir, p string) error {
+	from, err := src.full(p)
+	if err != nil {
+		return err
+	}
+	full, err := d.full(p)
+	if err != nil {
+		return err
+	}
+	dir := filepath.Dir(full)
+	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
+	for _, m := range []string{dir, tmpDir} {
+		if _, ok := d.made.Load(m); !ok {
+			if err := os.MkdirAll(m, 0o755); err != nil {
+				return err
+			}
+			d.made.Store(m, true)
+		}
+	}
+	tmp := filepath.Join(tmpDir, fmt.Sprintf("link-%d-%d", os.Getpid(), linkSeq.Add(1)))
+	if err := os.Link(from, tmp); err != nil {
+		return err
+	}
+	if err := os.Rename(tmp, full); err != nil {
+		os.Remove(tmp)
+		return err
+	}
+	return nil
+}
+
+var linkSeq atomic.Int64

@@ -148,3 +148,32 @@ func TestOpenErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestCopyBetweenFoldersLinks: folder to folder, files are hard links
+// (same inode), whole at their paths, and a second copy keeps them.
+func TestCopyBetweenFoldersLinks(t *testing.T) {
+	ctx := context.Background()
+	src, dst := NewDir(t.TempDir()), NewDir(t.TempDir())
+	PutFile(ctx, src, "5/1/2.png", []byte("tile"))
+	PutFile(ctx, src, "map.json", []byte("{}"))
+	st, err := Copy(ctx, dst, src, CopyOptions{})
+	if err != nil || st.Copied != 2 {
+		t.Fatalf("%v, %v", st, err)
+	}
+	a, _ := os.Stat(filepath.Join(src.Root(), "5", "1", "2.png"))
+	b, _ := os.Stat(filepath.Join(dst.Root(), "5", "1", "2.png"))
+	if !os.SameFile(a, b) {
+		t.Error("folder-to-folder copy is not a hard link")
+	}
+	if got, _ := dst.Get(ctx, "5/1/2.png"); string(got) != "tile" {
+		t.Errorf("got %q", got)
+	}
+	st, err = Copy(ctx, dst, src, CopyOptions{})
+	if err != nil || st.Kept != 2 || st.Copied != 0 {
+		t.Errorf("second copy: %v, %v; want 2 kept", st, err)
+	}
+	st, err = Copy(ctx, dst, src, CopyOptions{Overwrite: true})
+	if err != nil || st.Copied != 2 {
+		t.Errorf("overwrite: %v, %v; want 2 copied", st, err)
+	}
+}
