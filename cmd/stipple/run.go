@@ -19,6 +19,7 @@ import (
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // usageError marks a wrong command line (exit code 2).
@@ -121,7 +122,7 @@ func (o *overrides) register(fs *flag.FlagSet) {
 func (o *overrides) apply(m *mapfile.Map) error {
 	if o.out != "" {
 		m.Out = o.out
-	} else {
+	} else if !sink.IsBucketURL(m.Out) {
 		m.Out = m.Resolve(m.Out)
 	}
 	if o.seed >= 0 {
@@ -172,6 +173,9 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	fs.SetOutput(stderr)
 	var o overrides
 	o.register(fs)
+	var sh shardFlag
+	fs.Var(&sh, "shard", shardUsage)
+	work := fs.String("work", "", "with --shard: local folder for a part's working files (default: in the output's .stipple folder, or the system's temporary folder for a bucket)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -185,6 +189,16 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	if err := o.apply(m); err != nil {
 		return err
+	}
+	if sh.set {
+		return renderSharded(ctx, m, sh.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
+	}
+	if sink.IsBucketURL(m.Out) {
+		// A bucket takes the sharded path as one part plus the final step.
+		if err := renderSharded(ctx, m, shardSpec{Index: 0, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout}); err != nil {
+			return err
+		}
+		return renderSharded(ctx, m, shardSpec{Final: true, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
 	}
 	return renderMap(ctx, m, o.workers, stdout)
 }
