@@ -107,6 +107,8 @@ type overrides struct {
 	perDot                     float64
 	minZoom, maxZoom, tileSize int
 	workers                    int
+	memory                     string
+	hidpi                      bool
 }
 
 func (o *overrides) register(fs *flag.FlagSet) {
@@ -117,6 +119,21 @@ func (o *overrides) register(fs *flag.FlagSet) {
 	fs.IntVar(&o.maxZoom, "max-zoom", -1, "deepest zoom (overrides tiles.max_zoom)")
 	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 (overrides tiles.size)")
 	fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
+	fs.StringVar(&o.memory, "memory", "", "memory budget, e.g. 2GiB (default 2GiB): dots beyond it are spilled to disk, sorted, and merged")
+	fs.BoolVar(&o.hidpi, "hidpi", false, "also write {z}/{x}/{y}@2x.png tiles for high-density screens (overrides tiles.hidpi)")
+}
+
+// runOptions are the build options the flags and the map file give.
+func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (build.Options, error) {
+	opt := build.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI}
+	if o.memory != "" {
+		n, err := build.ParseSize(o.memory)
+		if err != nil || n <= 0 {
+			return opt, usageError{fmt.Sprintf("--memory %q: want a size such as 2GiB or 512MiB", o.memory)}
+		}
+		opt.Memory = n
+	}
+	return opt, nil
 }
 
 func (o *overrides) apply(m *mapfile.Map) error {
@@ -200,16 +217,21 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		}
 		return renderSharded(ctx, m, shardSpec{Final: true, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
 	}
-	return renderMap(ctx, m, o.workers, stdout)
+	opt, err := o.runOptions(m, stdout)
+	if err != nil {
+		return err
+	}
+	return renderMap(ctx, m, opt, stdout)
 }
 
-func renderMap(ctx context.Context, m *mapfile.Map, workers int, stdout io.Writer) error {
+func renderMap(ctx context.Context, m *mapfile.Map, opt build.Options, stdout io.Writer) error {
 	in, err := build.LoadInput(m, nil)
 	if err != nil {
 		return err
 	}
 	printInputReport(stdout, in)
-	s, err := build.Run(ctx, m, build.Options{Workers: workers, Log: stdout, Input: in})
+	opt.Input = in
+	s, err := build.Run(ctx, m, opt)
 	if err != nil {
 		return err
 	}
@@ -296,7 +318,11 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return err
 	}
 	fmt.Fprintf(stdout, "demo: Quillmere is an invented city; its areas, groups and counts are made up (source in %s)\n", filepath.Join(dir, "source"))
-	return renderMap(ctx, m, o.workers, stdout)
+	opt, err := o.runOptions(m, stdout)
+	if err != nil {
+		return err
+	}
+	return renderMap(ctx, m, opt, stdout)
 }
 
 // DemoMap is the built-in demo's map file.

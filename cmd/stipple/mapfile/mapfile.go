@@ -75,6 +75,9 @@ type Tiles struct {
 	MinZoom int `toml:"min_zoom"`
 	MaxZoom int `toml:"max_zoom"`
 	Size    int `toml:"size"`
+	// HiDPI also writes {z}/{x}/{y}@2x.png tiles of twice the pixels for
+	// high-density screens.
+	HiDPI bool `toml:"hidpi"`
 }
 
 // Dots sets the look of dots.
