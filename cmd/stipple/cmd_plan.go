@@ -23,7 +23,6 @@ func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	var o overrides
 	o.register(fs)
 	n := fs.Int("shards", 1, "number of parts")
-	hidpi := fs.Bool("hidpi", false, "count @2x tiles too")
 	asJSON := fs.Bool("json", false, "print the plan as JSON")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -42,7 +41,7 @@ func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err := o.apply(m); err != nil {
 		return err
 	}
-	sm, err := planShards(m, *n, *hidpi)
+	sm, err := planShards(m, *n, o.hidpi || m.Tiles.HiDPI)
 	if err != nil {
 		return err
 	}

@@ -163,6 +163,8 @@ type shardOptions struct {
 	Work string
 	// Log receives progress lines.
 	Log io.Writer
+	// HiDPI also draws @2x tiles (as does tiles.hidpi in the map file).
+	HiDPI bool
 }
 
 // cmdShardRender is "stipple render MAP.toml --shard SPEC [flags]": the
@@ -197,7 +199,7 @@ func cmdShardRender(ctx context.Context, args []string, stdout, stderr io.Writer
 	if out != "" {
 		m.Out = out
 	}
-	return renderSharded(ctx, m, sf.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
+	return renderSharded(ctx, m, sf.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
 }
 
 // shardedMap is what every part and the final step compute alike from
@@ -207,7 +209,7 @@ type shardedMap struct {
 	in     *build.Input
 	layout *shard.Layout
 	look   string // fingerprint of the dots and their look
-	colors []string
+	hidpi  bool
 }
 
 // planShards loads the input and computes the layout for n shards.
@@ -220,7 +222,7 @@ func planShards(m *mapfile.Map, n int, hidpi bool) (*shardedMap, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &shardedMap{m: m, in: in, layout: l, look: lookFingerprint(m, in, hidpi)}, nil
+	return &shardedMap{m: m, in: in, layout: l, look: lookFingerprint(m, in, hidpi), hidpi: hidpi}, nil
 }
 
 // planPoints is how many dots the planner places in an area that spans
@@ -324,7 +326,7 @@ func renderSharded(ctx context.Context, m *mapfile.Map, spec shardSpec, opt shar
 		}
 	}
 	start := time.Now()
-	sm, err := planShards(m, spec.Count, false)
+	sm, err := planShards(m, spec.Count, opt.HiDPI || m.Tiles.HiDPI)
 	if err != nil {
 		return err
 	}
@@ -425,7 +427,7 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 	if store == nil {
 		t0 := time.Now()
 		var err error
-		store, info, err = placeShard(ctx, sm, i, work)
+		store, info, err = placeShard(ctx, sm, i, work, opt.Workers)
 		if err != nil {
 			return nil, err
 		}
@@ -448,7 +450,7 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 	if store.Len() > 0 {
 		if _, err := tiles.Write(ctx, store, tiles.Options{
 			Dir: work, MinZoom: l.Split, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
-			Colors: colors, Look: build.Look(m), Workers: opt.Workers,
+			Colors: colors, Look: build.Look(m), Workers: opt.Workers, HiDPI: sm.hidpi,
 			Fingerprint: sm.look + "/" + rep.Layout + "/" + shard.Name(i, n),
 		}); err != nil {
 			return nil, err
@@ -535,7 +537,7 @@ func tilePath(p string) (z, x, y int, ok bool) {
 
 // placeShard samples the areas part i needs and keeps the dots within the
 // margin of its blocks.
-func placeShard(ctx context.Context, sm *shardedMap, i int, work string) (*dotstore.Store, keptInfo, error) {
+func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers int) (*dotstore.Store, keptInfo, error) {
 	m, in, l := sm.m, sm.in, sm.layout
 	fs := in.Layer.Features
 	var idx []int
@@ -551,7 +553,7 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string) (*dotst
 		sub.Features[k] = fs[j]
 		counts[k] = in.Counts[j]
 	}
-	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: 0, SpillDir: filepath.Join(work, tiles.StateDir)})
+	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir)})
 	if err != nil {
 		return nil, keptInfo{}, err
 	}

@@ -150,18 +150,29 @@ func TestShardedRenderMatchesSingleMachine(t *testing.T) {
 	for i := 0; i < n; i++ {
 		args := []string{mapPath, "--shard", fmt.Sprintf("%d/%d", i, n), "--out", parts[i], "--workers", "2"}
 		if i == 2 {
-			// Kill this part with SIGKILL after a random delay, then rerun.
-			c := runner.cmd(args...)
-			var out bytes.Buffer
-			c.Stdout, c.Stderr = &out, &out
-			if err := c.Start(); err != nil {
-				t.Fatal(err)
+			// Time an uninterrupted run of this part elsewhere, then kill
+			// it with SIGKILL after a random share of that time, and rerun.
+			t0 := time.Now()
+			runOK(t, runner.cmd(mapPath, "--shard", fmt.Sprintf("%d/%d", i, n), "--out", filepath.Join(root, "timing"), "--workers", "2"))
+			full := time.Since(t0)
+			killed := false
+			for try := 0; try < 5 && !killed; try++ {
+				c := runner.cmd(args...)
+				var out bytes.Buffer
+				c.Stdout, c.Stderr = &out, &out
+				if err := c.Start(); err != nil {
+					t.Fatal(err)
+				}
+				delay := time.Duration(float64(full) * (0.1 + 0.7*rng.Float64()) / float64(try+1))
+				time.Sleep(delay)
+				c.Process.Kill() // SIGKILL on Unix: no cleanup runs
+				werr := c.Wait()
+				killed = werr != nil
+				t.Logf("part %d (a whole run takes %s) killed after %s: %v; it had printed:\n%s", i, full.Round(time.Millisecond), delay.Round(time.Millisecond), werr, out.String())
 			}
-			delay := time.Duration(100+rng.IntN(900)) * time.Millisecond
-			time.Sleep(delay)
-			c.Process.Kill() // SIGKILL on Unix: no cleanup runs
-			werr := c.Wait()
-			t.Logf("part %d killed after %s (%v); it had printed:\n%s", i, delay, werr, out.String())
+			if !killed {
+				t.Fatal("the part finished before every kill; no interrupted run was tested")
+			}
 		}
 		t.Log(runOK(t, runner.cmd(args...)))
 	}
@@ -206,7 +217,45 @@ func TestShardedRenderMatchesSingleMachine(t *testing.T) {
 	}
 	t.Log(runOK(t, runner.cmd(mapPath, "--shard", fmt.Sprintf("final/%d", n), "--out", union, "--workers", "2")))
 
-	want, got := publicFiles(t, single), publicFiles(t, union)
+	want := publicFiles(t, single)
+	compareTrees(t, want, publicFiles(t, union))
+
+	// The same parts run at once into one shared folder (a shell loop
+	// with &, or GNU parallel), then the final step there.
+	shared := filepath.Join(root, "shared")
+	var cmds []*exec.Cmd
+	outs := make([]bytes.Buffer, n)
+	for i := 0; i < n; i++ {
+		c := runner.cmd(mapPath, "--shard", fmt.Sprintf("%d/%d", i, n), "--out", shared, "--workers", "1")
+		c.Stdout, c.Stderr = &outs[i], &outs[i]
+		if err := c.Start(); err != nil {
+			t.Fatal(err)
+		}
+		cmds = append(cmds, c)
+	}
+	for i, c := range cmds {
+		if err := c.Wait(); err != nil {
+			t.Fatalf("concurrent part %d: %v\n%s", i, err, outs[i].String())
+		}
+	}
+	runOK(t, runner.cmd(mapPath, "--shard", fmt.Sprintf("final/%d", n), "--out", shared, "--workers", "2"))
+	compareTrees(t, want, publicFiles(t, shared))
+	t.Logf("%d files identical, %d of them tiles, in separate folders and in one shared folder", len(want), tilesN(want))
+}
+
+func tilesN(files map[string][]byte) int {
+	n := 0
+	for p := range files {
+		if strings.HasSuffix(p, ".png") && strings.Count(p, "/") == 2 {
+			n++
+		}
+	}
+	return n
+}
+
+// compareTrees fails unless got holds exactly want's files and bytes.
+func compareTrees(t *testing.T, want, got map[string][]byte) {
+	t.Helper()
 	var missing, extra, differ []string
 	for p, b := range want {
 		g, ok := got[p]
@@ -230,14 +279,7 @@ func TestShardedRenderMatchesSingleMachine(t *testing.T) {
 		t.Fatalf("sharded render differs from the single one (%d files): %d missing %v, %d extra %v, %d differ %v",
 			len(want), len(missing), short(missing), len(extra), short(extra), len(differ), short(differ))
 	}
-	tilesN := 0
-	for p := range want {
-		if strings.HasSuffix(p, ".png") && strings.Count(p, "/") == 2 {
-			tilesN++
-		}
+	if n := tilesN(want); n < 100 {
+		t.Fatalf("only %d tiles compared; the demo should give hundreds", n)
 	}
-	if tilesN < 100 {
-		t.Fatalf("only %d tiles compared; the demo should give hundreds", tilesN)
-	}
-	t.Logf("%d files identical, %d of them tiles", len(want), tilesN)
 }

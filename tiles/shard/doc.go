@@ -8,14 +8,17 @@
 // The partition. A Layout cuts the world at a split zoom S into blocks, the
 // tiles of zoom S, and gives every block to one shard. Blocks are taken in
 // Z-order (the order of the dot store's keys) and cut into N contiguous runs
-// of about equal estimated dots, so a shard is a compact region and the
-// cut is balanced by people, not by area. A tile of zoom z ≥ S belongs to
-// the shard that owns the block above it. The layout is computed from the
-// input alone (each area's bound and expected dots, plus a few sample points
-// for the areas that span blocks), so every shard, the plan command and the
-// final step compute the same layout without talking to each other; its
-// Fingerprint is written into every shard's report and checked by the final
-// step.
+// of about equal estimated work, so a shard is a compact region. Work is
+// counted from the dots, not from the area: each dot's sampling and drawing
+// at every zoom from S down, plus each tile the dots are expected to ink
+// (EstimateTiles: a tile costs about a millisecond to composite, encode and
+// write, and thinly peopled land has many tiles per dot), at MeasuredRates.
+// A tile of zoom z ≥ S belongs to the shard that owns the block above it.
+// The layout is computed from the input alone (each area's bound, fill and
+// expected dots, plus a few sample points for the areas that span blocks),
+// so every shard, the plan command and the final step compute the same
+// layout without talking to each other; its Fingerprint is written into
+// every shard's report and checked by the final step.
 //
 // A shard samples only the areas whose bound comes within Margin of its
 // blocks, keeps the dots within Margin of its blocks, and renders the tiles

@@ -29,15 +29,17 @@ type Rates struct {
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
 // synthetic counts, 1 dot = 10 people: 30.9 million dots, zooms 0–12,
-// 296 000 tiles) on a 2-core machine, as wall time × cores of a whole
-// render, so they include reading the input, the file system and idle
-// moments: see BENCHMARKS.part.md.
+// 296 000 tiles) on a 2-core machine: a least-squares fit of the wall time
+// of 22 part renders (N = 2, 4 and 16) to their tiles and dots, times the
+// 2 cores, so they include the file system and the moments a core waits
+// (tiles.Write creates files from one goroutine, so tile-heavy parts are
+// bound by it). See BENCHMARKS.part.md.
 var MeasuredRates = Rates{
 	Source:         "the national benchmark, 2 cores (tiles/shard/BENCHMARKS.part.md)",
-	SampleNsPerDot: 560,
+	SampleNsPerDot: 640,
 	CountNsPerDot:  27,
-	DiscNsPerDot:   560,
-	TileNs:         1.16e6,
+	DiscNsPerDot:   1510,
+	TileNs:         0.95e6,
 	CountBytes:     6400,
 	DiscBytes:      3800,
 }

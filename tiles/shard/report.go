@@ -58,8 +58,10 @@ type AreaResult struct {
 // Name is the base name of shard i's files: "0003-of-0016".
 func Name(i, n int) string { return fmt.Sprintf("%04d-of-%04d", i, n) }
 
-// ReportPath and SummaryPath are where shard i of n keeps its files.
-func ReportPath(i, n int) string  { return ReportDir + "/" + Name(i, n) + ".json" }
+// ReportPath is where shard i of n keeps its report.
+func ReportPath(i, n int) string { return ReportDir + "/" + Name(i, n) + ".json" }
+
+// SummaryPath is where shard i of n keeps its summary.
 func SummaryPath(i, n int) string { return ReportDir + "/" + Name(i, n) + ".cells" }
 
 // WriteReport stores the shard's summary, then its report.
