@@ -264,7 +264,10 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	// All areas' dots, exactly as the tile run places them; the page
 	// shows those inside its frame (and, with --ids, inside the listed
 	// areas).
-	store, results := build.Place(layer, counts, m, workers)
+	store, results, err := build.Place(layer, counts, m, workers)
+	if err != nil {
+		return nil, err
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

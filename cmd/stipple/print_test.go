@@ -86,7 +86,10 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	store, _ := build.Place(layer, counts, m, 3)
+	store, _, err := build.Place(layer, counts, m, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
 	p := job.page
 	if p.Len() != store.Len() {
 		t.Fatalf("page has %d dots, the store %d", p.Len(), store.Len())
@@ -146,7 +149,10 @@ func TestPrintDotsAreTheTileStore(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	printStore, _ := build.Place(layer, counts, m, 2)
+	printStore, _, err := build.Place(layer, counts, m, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
 	a, b := tileStore.Range(0, math.MaxUint64), printStore.Range(0, math.MaxUint64)
 	if len(a) != len(b) {
 		t.Fatalf("tile run %d dots, print %d", len(a), len(b))
@@ -298,7 +304,10 @@ func TestPrintIDs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, results := build.Place(layer, counts, m, 2)
+	_, results, err := build.Place(layer, counts, m, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
 	idx := []int{3, 40, 41, 200}
 	var ids []string
 	wantDots := make([]int, len(m.Categories))

@@ -283,6 +283,16 @@ func printSummary(w io.Writer, s *build.Summary) {
 	} else {
 		fmt.Fprintln(w, "  not drawn: 0 people in areas")
 	}
+	if n := len(s.Notes); n > 0 {
+		fmt.Fprintf(w, "  drawn with a note: %d areas:\n", n)
+		for i, p := range s.Notes {
+			if i == 10 {
+				fmt.Fprintf(w, "    … and %d more\n", n-10)
+				break
+			}
+			fmt.Fprintf(w, "    %s\n", p)
+		}
+	}
 	if s.RowsWithoutArea > 0 {
 		fmt.Fprintf(w, "  not drawn: %s people in table rows that match no area (listed above)\n", render.FormatCount(s.RowsWithoutArea))
 	}

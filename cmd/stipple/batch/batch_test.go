@@ -192,7 +192,10 @@ func TestOverlappingExtents(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		store, _ := build.Place(layer, counts, m, 2)
+		store, _, err := build.Place(layer, counts, m, 2)
+		if err != nil {
+			t.Fatal(err)
+		}
 		ref := t.TempDir()
 		if _, err := tiles.Write(context.Background(), store, tiles.Options{Dir: ref, MinZoom: 9, MaxZoom: 14,
 			TileSize: m.Tiles.Size, Colors: m.RGBA(), Look: build.Look(m), Workers: 2}); err != nil {

@@ -64,8 +64,9 @@ type Options struct {
 	// CLI loads first to print the reading and join reports).
 	Input *Input
 	// Memory is the run's memory budget in bytes; 0 means DefaultMemory.
-	// The dot store gets all but 128 MiB of it; past that it spills sorted
-	// runs to the output folder's .stipple folder and merges them.
+	// The dot store gets all but 128 MiB of it (a quarter of small
+	// budgets); past that it spills sorted runs to the output folder's
+	// .stipple folder and merges them.
 	Memory int64
 	// HiDPI also writes {z}/{x}/{y}@2x.png tiles of twice the pixels.
 	HiDPI bool
@@ -84,11 +85,15 @@ type Summary struct {
 	// in the input, but not on the map.
 	RowsWithoutArea float64
 	Problems        []string // one line per feature with lost dots
-	Tiles           tiles.Stats
-	Elapsed         time.Duration
-	Bounds          orb.Bound
-	Metadata        *tiles.Metadata
-	OutputDir       string
+	// Notes are one line per feature whose dots were all drawn but not
+	// plainly: along the outline of an area with no area, by the even-odd
+	// rule in crossing rings, or ignoring masks that left no room.
+	Notes     []string
+	Tiles     tiles.Stats
+	Elapsed   time.Duration
+	Bounds    orb.Bound
+	Metadata  *tiles.Metadata
+	OutputDir string
 	// StoreReused is set when the dots came from the output folder's store,
 	// whose sampling fingerprint matched, instead of being placed anew.
 	StoreReused bool
@@ -114,6 +119,7 @@ type storeInfo struct {
 	Drawn       []int      `json:"dots_drawn"`
 	NotDrawn    float64    `json:"not_drawn_people"`
 	Problems    []string   `json:"problems"`
+	Notes       []string   `json:"notes"`
 	Bounds      [4]float64 `json:"bounds"`
 	StoreBytes  int64      `json:"store_bytes"`
 	Placed      string     `json:"placed_by"`
@@ -157,8 +163,8 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	// The budget is for the whole process: the store's buffers get all but
 	// a reserve for the areas, the samplers and the runtime, and the
 	// collector is told the budget so garbage cannot pile up beside them.
-	storeBudget := max(budget-memoryReserve, 64<<20)
-	defer debug.SetMemoryLimit(debug.SetMemoryLimit(budget))
+	storeBudget := budget - min(memoryReserve, budget/4)
+	defer debug.SetMemoryLimit(debug.SetMemoryLimit(max(budget, 512<<20)))
 
 	in := opt.Input
 	if in == nil {
@@ -208,7 +214,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 		var results []sample.Result
 		var runs int
 		store, results, runs, err = PlaceStore(ctx, layer, counts, m, PlaceOptions{
-			Workers: workers, Memory: storeBudget, SpillDir: state, StorePath: storePath, Placed: &prog.placed,
+			Workers: workers, Memory: storeBudget, SpillDir: state, StorePath: storePath, Placed: &prog.placed, Dots: in.Dots, Masks: in.Masks,
 		})
 		prog.endPhase()
 		if err != nil {
@@ -231,6 +237,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	}
 	defer store.Close()
 	sum.People, sum.Dots, sum.NotDrawn, sum.Problems = info.People, info.Drawn, info.NotDrawn, info.Problems
+	sum.Notes = info.Notes
 	sum.Bounds = orb.Bound{Min: orb.Point{info.Bounds[0], info.Bounds[1]}, Max: orb.Point{info.Bounds[2], info.Bounds[3]}}
 	sum.PlaceTime = time.Since(start)
 	if store.Len() == 0 {
@@ -338,10 +345,12 @@ func summarizePlacement(layer *geo.Layer, counts [][]float64, m *mapfile.Map, re
 			info.Drawn[k] += r.Dots[k]
 			lost += r.Lost[k]
 		}
+		f := layer.Features[i]
 		if lost > 0 {
-			f := layer.Features[i]
 			info.NotDrawn += float64(lost) * m.PeoplePerDot
 			info.Problems = append(info.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, r.Problem))
+		} else if r.Problem != "" {
+			info.Notes = append(info.Notes, fmt.Sprintf("feature %d (id %q): %s", f.Index, f.ID, r.Problem))
 		}
 	}
 	info.Bounds = [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]}
@@ -424,17 +433,20 @@ type PlaceOptions struct {
 	StorePath string
 	// Placed, when set, counts dots as they are placed (for progress).
 	Placed *atomic.Int64
+	// Dots[i][k], when set, is the number of dots of feature i, category k
+	// (Input.Dots); nil allocates them for the layer by the map's rounding.
+	Dots [][]int
+	// Masks, when set, are the map's masks (Input.Masks); nil reads the
+	// map's mask files.
+	Masks *sample.Mask
 }
 
 // Place samples every feature's dots into a sorted in-memory store;
 // results[i] says what happened to feature i's people. The store is the
 // same for any number of workers.
-func Place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*dotstore.Store, []sample.Result) {
+func Place(layer *geo.Layer, counts [][]float64, m *mapfile.Map, workers int) (*dotstore.Store, []sample.Result, error) {
 	s, results, _, err := PlaceStore(context.Background(), layer, counts, m, PlaceOptions{Workers: workers})
-	if err != nil { // only spilling or cancelling can fail, and neither is asked for
-		panic(err)
-	}
-	return s, results
+	return s, results, err
 }
 
 // PlaceStore samples every feature's dots into a sorted store within a
@@ -467,7 +479,22 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 	})
 	b := dotstore.NewBuilder(dotstore.BuilderOptions{Memory: opt.Memory, SpillDir: opt.SpillDir, Workers: workers, Expected: int(math.Min(expected, 1<<40))})
 	results := make([]sample.Result, len(layer.Features))
-	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: opt.Masks}
+	if sopt.Masks == nil && len(m.Input.Mask) > 0 {
+		masks, _, err := LoadMasks(m)
+		if err != nil {
+			return nil, nil, 0, err
+		}
+		sopt.Masks = masks
+	}
+	dots := opt.Dots
+	if dots == nil {
+		ids := make([]string, len(layer.Features))
+		for i, f := range layer.Features {
+			ids[i] = f.ID
+		}
+		dots = sample.Allocate(ids, counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
+	}
 	var wg sync.WaitGroup
 	var failed atomic.Pointer[error]
 	fail := func(err error) { failed.CompareAndSwap(nil, &err) }
@@ -494,7 +521,7 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 				if failed.Load() != nil || ctx.Err() != nil {
 					continue
 				}
-				results[i] = sample.Feature(&layer.Features[i], counts[i], sopt, func(cat int, p orb.Point) {
+				results[i] = sample.FeatureN(&layer.Features[i], dots[i], sopt, func(cat int, p orb.Point) {
 					x, y := dotstore.World(p[0], p[1])
 					buf = append(buf, dotstore.Key(x, y, cat))
 					if len(buf) == block {

@@ -112,11 +112,27 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			in.Counts[i][k] = n
 		}
 	}
+	masks, n, err := LoadMasks(m)
+	if err != nil {
+		return nil, err
+	}
+	in.Masks, in.MaskFeatures = masks, n
+	idList := make([]string, len(layer.Features))
+	for i, f := range layer.Features {
+		idList[i] = f.ID
+	}
+	in.Dots = sample.Allocate(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
+	return in, nil
+}
+
+// LoadMasks reads the map's mask files (input.mask) into one mask index;
+// nil when the map has none. n is the number of mask polygons.
+func LoadMasks(m *mapfile.Map) (mask *sample.Mask, n int, err error) {
 	var polys []orb.MultiPolygon
 	for _, mf := range m.Input.Mask {
 		res, err := read.File(m.Resolve(mf), read.Options{})
 		if err != nil {
-			return nil, fmt.Errorf("%s: key input.mask: %w", m.Path, err)
+			return nil, 0, fmt.Errorf("%s: key input.mask: %w", m.Path, err)
 		}
 		for _, f := range res.Layer.Features {
 			if len(f.Geometry) > 0 {
@@ -124,14 +140,8 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			}
 		}
 	}
-	if len(polys) > 0 {
-		in.Masks = sample.NewMask(polys)
-		in.MaskFeatures = len(polys)
+	if len(polys) == 0 {
+		return nil, 0, nil
 	}
-	idList := make([]string, len(layer.Features))
-	for i, f := range layer.Features {
-		idList[i] = f.ID
-	}
-	in.Dots = sample.Allocate(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
-	return in, nil
+	return sample.NewMask(polys), len(polys), nil
 }
