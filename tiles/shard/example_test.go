@@ -12,8 +12,7 @@ import (
 // by dots alone, the busy area gets a part of its own. The default rates
 // also count the tiles (about half a millisecond each to composite, encode
 // and write, against a few microseconds per dot), and the four areas have
-// the same number of tiles, so the busy area's part takes some of the
-// others' blocks too: the split goes deeper to cut finer.
+// the same number of tiles, so each part gets two areas.
 func ExamplePlan() {
 	box := func(lon, lat float64) orb.Bound {
 		return orb.Bound{Min: orb.Point{lon, lat}, Max: orb.Point{lon + 3, lat + 3}}
@@ -37,5 +36,5 @@ func ExamplePlan() {
 	}
 	// Output:
 	// split zoom 5, 4 blocks, imbalance 1.00, dots per part [6000 6000]
-	// split zoom 7, 16 blocks, imbalance 1.01, dots per part [7500 4500]
+	// split zoom 5, 4 blocks, imbalance 1.05, dots per part [8000 4000]
 }
