@@ -18,7 +18,7 @@ var benchColors = []color.NRGBA{{230, 159, 0, 255}, {86, 180, 233, 255}, {0, 158
 // benchTileSet is a benchmark tile set: 200 000 dots over about 6 × 6 zoom-10
 // tiles (a city and its surroundings, densest in the middle), drawn at
 // zooms 10–12 with the default look (3 px at zoom 12, area halving per zoom).
-func benchTileSet() (keySource, func(int) render.Dot) {
+func benchTileSet() (*dotstore.Store, func(int) render.Dot) {
 	rng := rand.New(rand.NewPCG(42, 42))
 	keys := make([]uint64, 200_000)
 	for i := range keys {
@@ -49,7 +49,7 @@ func BenchmarkTileSet(b *testing.B) {
 		}
 	}
 	b.Run("stipple", func(b *testing.B) {
-		w := &writer{opt: Options{Colors: benchColors}, keys: src}
+		w := &writer{opt: Options{Colors: benchColors}, src: src}
 		p := &pass{size: 256, shift: 8, look: look}
 		r := newTileRenderer(w, len(benchColors))
 		var buf bytes.Buffer
@@ -76,7 +76,7 @@ func BenchmarkTileSet(b *testing.B) {
 		b.ReportMetric(float64(n), "tiles")
 		b.ReportMetric(float64(bytesOut)/float64(n), "B/tile")
 		b.ReportMetric(float64(rgba), "rgba-tiles")
-		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(src)*(maxZ-minZ+1)), "ns/dot")
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(src.Len()*(maxZ-minZ+1)), "ns/dot")
 	})
 	b.Run("gg", func(b *testing.B) {
 		b.ReportAllocs()
@@ -92,7 +92,7 @@ func BenchmarkTileSet(b *testing.B) {
 				inked := false
 				for dy := -1; dy <= 1; dy++ {
 					for dx := -1; dx <= 1; dx++ {
-						for _, k := range tileKeys(src, t.z, t.x+dx, t.y+dy) {
+						for _, k := range srcTile(src, t.z, t.x+dx, t.y+dy) {
 							wx, wy, cat := dotstore.Split(k)
 							x := (float64(wx)+0.5)*scale - float64(t.x*256)
 							y := (float64(wy)+0.5)*scale - float64(t.y*256)
@@ -118,6 +118,6 @@ func BenchmarkTileSet(b *testing.B) {
 			}
 		}
 		b.ReportMetric(float64(n), "tiles")
-		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(src)*(maxZ-minZ+1)), "ns/dot")
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(src.Len()*(maxZ-minZ+1)), "ns/dot")
 	})
 }

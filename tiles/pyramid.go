@@ -65,6 +65,23 @@ type Source interface {
 	Keys() []uint64
 }
 
+// indexed is a Source that searches through an index (*dotstore.Store);
+// Write indexes any other Source itself.
+type indexed interface {
+	Keys() []uint64
+	// Range returns the sorted keys k with first ≤ k ≤ last.
+	Range(first, last uint64) []uint64
+	// EachTile calls fn for every tile at zoom z holding dots, with them.
+	EachTile(z int, fn func(x, y int, keys []uint64))
+}
+
+func asIndexed(src Source) indexed {
+	if x, ok := src.(indexed); ok {
+		return x
+	}
+	return dotstore.FromSorted(src.Keys())
+}
+
 // releaser is a Source that can drop pages it has read (a mapped store).
 type releaser interface{ Release() }
 
@@ -109,7 +126,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
-	w := &writer{opt: opt, src: src, keys: src.Keys(), dirs: map[string]bool{}, st: Stats{PerZoom: map[int]int64{}}}
+	w := &writer{opt: opt, src: asIndexed(src), dirs: map[string]bool{}, st: Stats{PerZoom: map[int]int64{}}}
 	w.rel, _ = src.(releaser)
 	man, resuming, err := openManifest(opt.Dir, opt.Fingerprint)
 	if err != nil {
@@ -155,12 +172,16 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			w.left[zk], w.zoomStats[zk] = &one, &ZoomStats{}
 			man.began(zk)
 			if p.look(z).Diameter < 1 {
-				for _, t := range occupied(w.keys, z) {
+				for _, t := range occupied(w.src, z) {
+					w.noteRead(searchCost)
 					hist = append(hist, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
 					w.st.Planned++
 				}
 			} else {
-				dotstore.TilesOf(w.keys, z, func(int, int, []uint64) { w.st.Planned++ })
+				w.src.EachTile(z, func(int, int, []uint64) {
+					w.st.Planned++
+					w.noteRead(searchCost)
+				})
 				disc = append(disc, discZoom{p, z})
 			}
 			if w.rel != nil {
@@ -241,7 +262,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 		}
 	}
 	for _, d := range disc {
-		eachCandidate(w.keys, d.z, func(x, y, n int) { queue(job{p: d.p, z: d.z, x: x, y: y, n: n}) })
+		eachCandidate(w.src, d.z, func() { w.noteRead(searchCost) }, func(x, y, n int) { queue(job{p: d.p, z: d.z, x: x, y: y, n: n}) })
 		if !stop() {
 			release(zoomKey(d.z, d.p.suffix))
 		}
@@ -263,8 +284,7 @@ func zoomKey(z int, suffix string) string { return strconv.Itoa(z) + suffix }
 
 type writer struct {
 	opt       Options
-	src       Source
-	keys      []uint64
+	src       indexed
 	rel       releaser
 	read      atomic.Int64
 	man       *manifest
@@ -397,9 +417,9 @@ func (w *writer) noteRead(n int) {
 type tileAt struct{ x, y, n int }
 
 // occupied lists the tiles at zoom z that hold dots, in Z-order.
-func occupied(keys []uint64, z int) []tileAt {
+func occupied(src indexed, z int) []tileAt {
 	var out []tileAt
-	dotstore.TilesOf(keys, z, func(x, y int, k []uint64) { out = append(out, tileAt{x, y, len(k)}) })
+	src.EachTile(z, func(x, y int, k []uint64) { out = append(out, tileAt{x, y, len(k)}) })
 	return out
 }
 
@@ -408,10 +428,16 @@ func occupied(keys []uint64, z int) []tileAt {
 // dot across the edge may ink. An empty neighbour is named once, by its
 // occupied neighbour that comes first in Z-order. Only binary searches in
 // the store are used, so memory does not grow with the number of tiles.
-func eachCandidate(keys []uint64, z int, fn func(x, y, n int)) {
+// searched, when set, is called after each search (for page accounting).
+func eachCandidate(src indexed, z int, searched func(), fn func(x, y, n int)) {
 	n := 1 << z
 	code := func(x, y int) uint64 { f, _ := dotstore.TileRange(z, x, y); return f }
-	has := func(x, y int) bool { return len(tileKeys(keys, z, x, y)) > 0 }
+	has := func(x, y int) bool {
+		if searched != nil {
+			searched()
+		}
+		return len(srcTile(src, z, x, y)) > 0
+	}
 	var near [8][2]int
 	neighbours := func(x, y int) [][2]int {
 		out := near[:0]
@@ -430,7 +456,7 @@ func eachCandidate(keys []uint64, z int, fn func(x, y, n int)) {
 		}
 		return out
 	}
-	dotstore.TilesOf(keys, z, func(x, y int, k []uint64) {
+	src.EachTile(z, func(x, y int, k []uint64) {
 		fn(x, y, len(k))
 		mine := code(x, y)
 		for _, e := range slices.Clone(neighbours(x, y)) {
@@ -505,21 +531,41 @@ func (r *tileRenderer) render(j job) *image.NRGBA {
 
 // count fills a count canvas: one per dot in the pixel holding its centre.
 func (r *tileRenderer) count(c *render.Canvas, j job) {
-	keys := tileKeys(r.w.keys, j.z, j.x, j.y)
-	r.w.noteRead(len(keys) + searchCost)
+	all := srcTile(r.w.src, j.z, j.x, j.y)
+	r.w.noteRead(searchCost)
 	// Pixel = world coordinate >> s, minus the tile's first pixel.
 	s := dotstore.WorldBits - j.z - j.p.shift
 	ox, oy := j.x<<j.p.shift, j.y<<j.p.shift
-	if s >= 0 {
+	for keys := range chunks(all) {
+		r.w.noteRead(len(keys))
+		if s >= 0 {
+			for _, k := range keys {
+				wx, wy, cat := dotstore.Split(k)
+				c.Count(cat, int(wx>>s)-ox, int(wy>>s)-oy)
+			}
+			continue
+		}
 		for _, k := range keys {
 			wx, wy, cat := dotstore.Split(k)
-			c.Count(cat, int(wx>>s)-ox, int(wy>>s)-oy)
+			c.Count(cat, int(wx)<<-s-ox, int(wy)<<-s-oy)
 		}
-		return
 	}
-	for _, k := range keys {
-		wx, wy, cat := dotstore.Split(k)
-		c.Count(cat, int(wx)<<-s-ox, int(wy)<<-s-oy)
+}
+
+// chunk is how many keys are read between checks of the mapped store's
+// resident pages: a zoom-0 tile may hold every dot of the map.
+const chunk = 1 << 20
+
+// chunks yields keys in pieces of at most chunk keys.
+func chunks(keys []uint64) func(yield func([]uint64) bool) {
+	return func(yield func([]uint64) bool) {
+		for len(keys) > 0 {
+			n := min(len(keys), chunk)
+			if !yield(keys[:n]) {
+				return
+			}
+			keys = keys[n:]
+		}
 	}
 }
 
@@ -540,13 +586,15 @@ func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
 	T := j.p.size
 	n := 1 << j.z
 	margin := st.Reach() + 1 // pixels beyond the edge that can reach in
-	draw := func(keys []uint64, nx, dx int) {
-		r.w.noteRead(len(keys))
+	draw := func(all []uint64, nx, dx int) {
 		ox := (nx - dx) * T * render.Sub
 		oy := j.y * T * render.Sub
-		for _, k := range keys {
-			wx, wy, cat := dotstore.Split(k)
-			c.AddStamp(cat, subPixel(wx, j.z, j.p.shift)-ox, subPixel(wy, j.z, j.p.shift)-oy, st)
+		for keys := range chunks(all) {
+			r.w.noteRead(len(keys))
+			for _, k := range keys {
+				wx, wy, cat := dotstore.Split(k)
+				c.AddStamp(cat, subPixel(wx, j.z, j.p.shift)-ox, subPixel(wy, j.z, j.p.shift)-oy, st)
+			}
 		}
 	}
 	for dy := -1; dy <= 1; dy++ {
@@ -556,7 +604,7 @@ func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
 		}
 		for dx := -1; dx <= 1; dx++ {
 			nx := (j.x + dx + n) % n
-			keys := tileKeys(r.w.keys, j.z, nx, ny)
+			keys := srcTile(r.w.src, j.z, nx, ny)
 			r.w.noteRead(searchCost)
 			if len(keys) == 0 {
 				continue
@@ -592,15 +640,22 @@ func (r *tileRenderer) strip(keys []uint64, z, x, y, size, margin, sx, sy int, f
 	}
 }
 
+// srcTile returns the keys of tile (z, x, y) from the source.
+func srcTile(src indexed, z, x, y int) []uint64 {
+	first, last := dotstore.TileRange(z, x, y)
+	return src.Range(first, last)
+}
+
 // tileKeys returns the keys of tile (z, x, y) within sorted keys.
 func tileKeys(keys []uint64, z, x, y int) []uint64 {
 	first, last := dotstore.TileRange(z, x, y)
 	return searchRange(keys, first, last)
 }
 
-// searchCost is what one binary search over the whole store is charged in
-// keys read: the few pages it brings in below the hot upper levels.
-const searchCost = 2048
+// searchCost is what one search of the store is charged in keys read: the
+// index confines it to one 32 KiB block, but the kernel maps page-cache
+// folios of up to 64 KiB or more around a touched page.
+const searchCost = 16 << 10
 
 func searchRange(keys []uint64, first, last uint64) []uint64 {
 	i := sort.Search(len(keys), func(i int) bool { return keys[i] >= first })
@@ -613,6 +668,6 @@ func searchRange(keys []uint64, first, last uint64) []uint64 {
 // once.
 func Candidates(src Source, z int) [][2]int {
 	var out [][2]int
-	eachCandidate(src.Keys(), z, func(x, y, _ int) { out = append(out, [2]int{x, y}) })
+	eachCandidate(asIndexed(src), z, nil, func(x, y, _ int) { out = append(out, [2]int{x, y}) })
 	return out
 }

@@ -21,14 +21,10 @@ import (
 
 var testColors = []color.NRGBA{{230, 159, 0, 255}, {86, 180, 233, 255}, {0, 158, 115, 255}}
 
-type keySource []uint64
-
-func (k keySource) Keys() []uint64 { return k }
-
-func sorted(keys []uint64) keySource {
+func sorted(keys []uint64) *dotstore.Store {
 	k := slices.Clone(keys)
 	slices.Sort(k)
-	return k
+	return dotstore.FromSorted(k)
 }
 
 func readPNG(t *testing.T, path string) *image.NRGBA {
@@ -383,7 +379,7 @@ func TestCandidatesAreOccupiedTilesAndTheirNeighbours(t *testing.T) {
 	for _, z := range []int{0, 1, 2, 5, 9} {
 		n := 1 << z
 		want := map[[2]int]bool{}
-		for _, k := range src {
+		for _, k := range src.Keys() {
 			x, y, _ := dotstore.Split(k)
 			tx, ty := int(x>>(dotstore.WorldBits-z)), int(y>>(dotstore.WorldBits-z))
 			for dy := -1; dy <= 1; dy++ {

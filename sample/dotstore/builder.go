@@ -144,6 +144,7 @@ func (b *Builder) Finish(path string) (*Store, error) {
 	b.scratch = nil
 	if len(b.runs) == 0 {
 		s := &Store{keys: b.buf, sorted: true, counts: b.counts}
+		s.buildIndex()
 		b.buf = nil
 		if path != "" {
 			if err := s.WriteFile(path); err != nil {

@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"path/filepath"
 	"slices"
+	"sort"
 	"sync"
 	"testing"
 )
@@ -186,5 +187,31 @@ func BenchmarkStoreRange(b *testing.B) {
 	}
 	if n == 0 {
 		b.Fatal("no keys")
+	}
+}
+
+// TestSearchMatchesPlainBinarySearch checks the indexed search against
+// sort.Search over the whole slice, at and between keys and past both ends.
+func TestSearchMatchesPlainBinarySearch(t *testing.T) {
+	for _, n := range []int{0, 1, indexStride - 1, indexStride, indexStride + 1, 5*indexStride + 17} {
+		keys := randomKeys(uint64(n), n)
+		for i := 0; i < n/3; i++ {
+			keys[i] = keys[n-1-i] // duplicates
+		}
+		slices.Sort(keys)
+		s := FromSorted(keys)
+		probes := []uint64{0, 1, ^uint64(0)}
+		for i := 0; i < n; i += 1 + n/500 {
+			probes = append(probes, keys[i], keys[i]+1, keys[i]-1)
+		}
+		for _, k := range probes {
+			want := sort.Search(n, func(i int) bool { return keys[i] >= k })
+			if got := s.Search(k); got != want {
+				t.Fatalf("n=%d: Search(%d) = %d; want %d", n, k, got, want)
+			}
+		}
+		if got := s.Range(0, ^uint64(0)); len(got) != n {
+			t.Fatalf("n=%d: full range holds %d keys", n, len(got))
+		}
 	}
 }

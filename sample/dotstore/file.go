@@ -153,6 +153,7 @@ func Open(path string) (*Store, error) {
 		if err == nil {
 			s.m = m
 			s.keys = unsafe.Slice((*uint64)(unsafe.Pointer(&m.data[headerSize])), n)
+			s.buildIndex()
 			return s, nil
 		}
 	}
@@ -166,5 +167,6 @@ func Open(path string) (*Store, error) {
 		}
 		s.keys[i] = binary.LittleEndian.Uint64(b[:])
 	}
+	s.buildIndex()
 	return s, nil
 }

@@ -11,6 +11,42 @@ type Store struct {
 	sorted bool
 	counts [MaxCategories]int
 	m      *mapping // non-nil when keys live in a mapped file
+	// index holds every indexStride-th key, so a search reads the mapped
+	// file in one small block instead of probing pages all over it: each
+	// page a probe touches becomes resident (with its neighbours).
+	index []uint64
+}
+
+// indexStride is the spacing of the index: 4096 keys, one 32 KiB block.
+const indexStride = 1 << 12
+
+func (s *Store) buildIndex() {
+	n := (len(s.keys) + indexStride - 1) / indexStride
+	s.index = make([]uint64, n)
+	for i := range s.index {
+		s.index[i] = s.keys[i*indexStride]
+		if s.m != nil && i%8192 == 8191 {
+			s.m.release() // 256 MiB of file passed
+		}
+	}
+	if s.m != nil {
+		s.m.release()
+	}
+}
+
+// Search returns the position of the first key ≥ k (Len() if none).
+func (s *Store) Search(k uint64) int {
+	if s.index == nil || len(s.index)*indexStride < len(s.keys) {
+		return sort.Search(len(s.keys), func(i int) bool { return s.keys[i] >= k })
+	}
+	j := sort.Search(len(s.index), func(j int) bool { return s.index[j] >= k })
+	// keys[j*stride] ≥ k and keys[(j-1)*stride] < k: the answer lies between.
+	lo := max(0, (j-1)*indexStride+1)
+	if j == 0 {
+		lo = 0
+	}
+	hi := min(len(s.keys), j*indexStride)
+	return lo + sort.Search(hi-lo, func(i int) bool { return s.keys[lo+i] >= k })
 }
 
 // New returns an empty in-memory store with room for n dots.
@@ -23,6 +59,7 @@ func FromSorted(keys []uint64) *Store {
 	for _, k := range keys {
 		s.counts[k&(MaxCategories-1)]++
 	}
+	s.buildIndex()
 	return s
 }
 
@@ -49,6 +86,7 @@ func (s *Store) Sort() {
 	if !s.sorted {
 		SortKeys(s.keys, make([]uint64, len(s.keys)), 1)
 		s.sorted = true
+		s.buildIndex()
 	}
 }
 
@@ -65,7 +103,12 @@ func (s *Store) Keys() []uint64 { return s.keys }
 // Range returns the sorted keys k with first ≤ k ≤ last. The store must be
 // sorted.
 func (s *Store) Range(first, last uint64) []uint64 {
-	return searchRange(s.keys, first, last)
+	i := s.Search(first)
+	j := len(s.keys)
+	if last != ^uint64(0) {
+		j = max(i, s.Search(last+1))
+	}
+	return s.keys[i:j]
 }
 
 func searchRange(keys []uint64, first, last uint64) []uint64 {
@@ -82,7 +125,25 @@ func (s *Store) Tile(z, x, y int) []uint64 {
 // Tiles calls fn for every tile at zoom z that holds at least one dot, in
 // Z-order, jumping from tile to tile by binary search.
 func (s *Store) Tiles(z int, fn func(x, y int)) {
-	TilesOf(s.keys, z, func(x, y int, _ []uint64) { fn(x, y) })
+	s.EachTile(z, func(x, y int, _ []uint64) { fn(x, y) })
+}
+
+// EachTile calls fn for every tile at zoom z that holds dots, in Z-order,
+// with the tile's keys, searching through the index.
+func (s *Store) EachTile(z int, fn func(x, y int, keys []uint64)) {
+	shift := uint(2*(WorldBits-z) + CatBits)
+	i := 0
+	for i < len(s.keys) {
+		m := s.keys[i] >> shift
+		tx, ty := deinterleave(m)
+		next := (m + 1) << shift
+		j := len(s.keys)
+		if next != 0 {
+			j = s.Search(next)
+		}
+		fn(int(tx), int(ty), s.keys[i:j])
+		i = j
+	}
 }
 
 // TilesOf calls fn for every tile at zoom z that holds keys, in Z-order,
