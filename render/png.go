@@ -38,10 +38,11 @@ func NewEncoder() *Encoder { return &Encoder{} }
 type RowFilter int
 
 const (
-	// FilterAuto uses Up on tiles that are mostly inked and None on the
-	// rest: on a dense tile, Up turns flat areas into zeros and makes the
-	// compressor about twice as fast; on a sparse one, None is faster and
-	// smaller (BenchmarkEncode).
+	// FilterAuto uses Up and Huffman-only compression on tiles that are
+	// mostly inked, None and the Level on the rest: on a dense tile, Up
+	// turns flat areas into zeros and Huffman coding alone then beats LZ77
+	// in speed and size; on a sparse one, None with LZ77 is smaller
+	// (BenchmarkEncode).
 	FilterAuto RowFilter = iota
 	FilterNone
 	FilterSub
@@ -59,6 +60,7 @@ type encState struct {
 	raw    []byte   // filtered scanlines
 	z      bytes.Buffer
 	zw     *zlib.Writer
+	huff   *zlib.Writer // Huffman-only, for dense truecolour tiles
 	out    bytes.Buffer
 	filter RowFilter
 }
@@ -133,15 +135,27 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 			st.chunk("tRNS", trns[:lastAlpha])
 		}
 		st.packRows(w, h, depth)
-	} else {
-		st.rgbaRows(img, w, h)
+	}
+	zw := st.zw
+	if !paletted && st.rgbaRows(img, w, h) {
+		// A dense tile after the Up filter is mostly small differences
+		// with few long repeats: Huffman coding alone is faster than LZ77
+		// there and no larger (BenchmarkEncode, dots=20000).
+		if st.huff == nil {
+			hw, err := zlib.NewWriterLevel(&st.z, zlib.HuffmanOnly)
+			if err != nil {
+				return nil, err
+			}
+			st.huff = hw
+		}
+		zw = st.huff
 	}
 	st.z.Reset()
-	st.zw.Reset(&st.z)
-	if _, err := st.zw.Write(st.raw); err != nil {
+	zw.Reset(&st.z)
+	if _, err := zw.Write(st.raw); err != nil {
 		return nil, err
 	}
-	if err := st.zw.Close(); err != nil {
+	if err := zw.Close(); err != nil {
 		return nil, err
 	}
 	st.chunk("IDAT", st.z.Bytes())
@@ -149,8 +163,9 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 	return st.out.Bytes(), nil
 }
 
-// rgbaRows fills st.raw with truecolour scanlines of the chosen filter.
-func (st *encState) rgbaRows(img *image.NRGBA, w, h int) {
+// rgbaRows fills st.raw with truecolour scanlines of the chosen filter and
+// reports whether FilterAuto found the tile dense.
+func (st *encState) rgbaRows(img *image.NRGBA, w, h int) (dense bool) {
 	b := img.Bounds()
 	rowLen := 1 + 4*w
 	st.raw = grow(st.raw, rowLen*h)
@@ -172,7 +187,7 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int) {
 		}
 		f = FilterNone
 		if 2*inked > seen {
-			f = FilterUp
+			f, dense = FilterUp, true
 		}
 	}
 	for y := 0; y < h; y++ {
@@ -198,6 +213,7 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int) {
 			copy(r[1:], src)
 		}
 	}
+	return dense
 }
 
 func grow(b []byte, n int) []byte {
