@@ -364,6 +364,11 @@ func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) s
 	for _, c := range m.Categories {
 		fmt.Fprintf(h, "fields=%q\n", c.Fields)
 	}
+	// Masks change where dots may go: their files' bytes count too.
+	for _, mp := range m.Input.Mask {
+		data, err := os.ReadFile(m.Resolve(mp))
+		fmt.Fprintf(h, "maskfile=%q %x %v\n", mp, sha256.Sum256(data), err)
+	}
 	var b [8]byte
 	f64 := func(w hash.Hash, v float64) { binary.LittleEndian.PutUint64(b[:], math.Float64bits(v)); w.Write(b[:]) }
 	for i, f := range layer.Features {
