@@ -29,6 +29,13 @@ import (
 //
 // Counts that are negative, infinite or NaN count as 0.
 func Allocate(ids []string, counts [][]float64, perDot float64, seed uint64, exact bool) [][]int {
+	return AllocateStreams(ids, counts, perDot, seed, exact, nil)
+}
+
+// AllocateStreams is Allocate with each category's stream number given
+// (see Options.Streams; nil means the category's index), as FeatureN with
+// the same Streams would draw them.
+func AllocateStreams(ids []string, counts [][]float64, perDot float64, seed uint64, exact bool, streams []uint64) [][]int {
 	dots := make([][]int, len(counts))
 	cats := 0
 	for i, c := range counts {
@@ -48,7 +55,7 @@ func Allocate(ids []string, counts [][]float64, perDot float64, seed uint64, exa
 	if !exact {
 		for i, c := range counts {
 			for k, v := range c {
-				dots[i][k] = DotCount(v, perDot, seed, hashes[i], k)
+				dots[i][k] = dotCount(v, perDot, seed, hashes[i], streamOf(streams, k))
 			}
 		}
 		return dots
@@ -86,7 +93,7 @@ func Allocate(ids []string, counts [][]float64, perDot float64, seed uint64, exa
 			f := math.Floor(q)
 			dots[i][k] = int(f)
 			given += f
-			shares = append(shares, share{i, q - f, mix(seed ^ mix(hashes[i]^mix(uint64(k)+1)))})
+			shares = append(shares, share{i, q - f, mix(seed ^ mix(hashes[i]^mix(streamOf(streams, k)+1)))})
 		}
 		sort.SliceStable(shares, func(a, b int) bool {
 			x, y := shares[a], shares[b]

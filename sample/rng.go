@@ -26,13 +26,26 @@ func IDHash(id string) uint64 {
 const countIndex = ^uint64(0)
 
 // stream returns the generator for one (seed, feature, category, index).
-func stream(seed, id uint64, cat int, index uint64) rand.PCG {
+func stream(seed, id uint64, cat uint64, index uint64) rand.PCG {
 	var p rand.PCG
-	p.Seed(mix(seed^mix(id)), mix(uint64(cat)<<48^mix(index)))
+	p.Seed(mix(seed^mix(id)), mix(cat<<48^mix(index)))
 	return p
 }
 
 // unit returns a float64 uniform in [0, 1) from 53 random bits.
 func unit(p *rand.PCG) float64 {
 	return float64(p.Uint64()>>11) * (1.0 / (1 << 53))
+}
+
+// CategoryStream is the stream number of a category named key: maps give
+// each category the hash of its key (Options.Streams), so that listing the
+// categories in another order moves no dot.
+func CategoryStream(key string) uint64 { return IDHash("category:" + key) }
+
+// streamOf is category k's stream number: streams[k] when given, else k.
+func streamOf(streams []uint64, k int) uint64 {
+	if k < len(streams) {
+		return streams[k]
+	}
+	return uint64(k)
 }

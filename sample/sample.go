@@ -20,6 +20,11 @@ type Options struct {
 	// Masks, when not nil, are areas where nobody lives: dots are kept out
 	// of them, unless they leave no room in a feature (Result.MaskIgnored).
 	Masks *Mask
+	// Streams, when set, gives category k the random stream Streams[k]
+	// instead of k. Maps pass CategoryStream of each category's key, so a
+	// dot depends on its category's key, not on where the category stands
+	// in the map file.
+	Streams []uint64
 }
 
 // DefaultMaxAttempts bounds the proposals per dot. The box and grid methods
@@ -62,6 +67,10 @@ type Result struct {
 // feature's own random stream so the choice is reproducible. A negative,
 // infinite or NaN count gives 0 dots.
 func DotCount(count, perDot float64, seed uint64, id uint64, cat int) int {
+	return dotCount(count, perDot, seed, id, uint64(cat))
+}
+
+func dotCount(count, perDot float64, seed uint64, id uint64, cat uint64) int {
 	e := count / perDot
 	if !(e > 0) || math.IsInf(e, 0) {
 		return 0
@@ -87,7 +96,7 @@ func Feature(f *geo.Feature, counts []float64, opt Options, emit func(cat int, p
 	expected := make([]float64, len(counts))
 	for k, c := range counts {
 		expected[k] = c / opt.PeoplePerDot
-		dots[k] = DotCount(c, opt.PeoplePerDot, opt.Seed, id, k)
+		dots[k] = dotCount(c, opt.PeoplePerDot, opt.Seed, id, streamOf(opt.Streams, k))
 	}
 	r := FeatureN(f, dots, opt, emit)
 	r.Expected = expected
@@ -125,7 +134,7 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 		placed := 0
 		for cat, n := range dots {
 			for i := 0; i < n; i++ {
-				p := stream(opt.Seed, id, cat, uint64(i))
+				p := stream(opt.Seed, id, streamOf(opt.Streams, cat), uint64(i))
 				pt, ok := shape.outlinePoint(&p)
 				if !ok {
 					r.Lost[cat]++
@@ -154,7 +163,7 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 	masked:
 		for cat, n := range dots {
 			for i := 0; i < n; i++ {
-				p := stream(opt.Seed, id, cat, uint64(i))
+				p := stream(opt.Seed, id, streamOf(opt.Streams, cat), uint64(i))
 				pt, hit := shape.pointUnmasked(&p, maxTry, opt.Masks)
 				if !hit {
 					ok = false
@@ -183,7 +192,7 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 				r.Lost[cat]++
 				continue
 			}
-			p := stream(opt.Seed, id, cat, uint64(i))
+			p := stream(opt.Seed, id, streamOf(opt.Streams, cat), uint64(i))
 			pt, ok := shape.Point(&p, maxTry)
 			if !ok {
 				r.Lost[cat]++

@@ -236,7 +236,7 @@ const planPoints = 64
 func areasOf(m *mapfile.Map, in *build.Input) []shard.Area {
 	fs := in.Layer.Features
 	areas := make([]shard.Area, len(fs))
-	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks, Streams: build.Streams(m)}
 	for i := range fs {
 		f := &fs[i]
 		dots := make([]int, len(m.Categories))

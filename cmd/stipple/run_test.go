@@ -245,3 +245,44 @@ func TestServeStaysInsideItsFolder(t *testing.T) {
 		}
 	}
 }
+
+// TestCategoryOrderDoesNotChangePixels: listing the map's categories in
+// another order must give byte-identical tiles: dots are seeded by category
+// key, and colours are composited from integer coverage shares.
+func TestCategoryOrderDoesNotChangePixels(t *testing.T) {
+	input := abs(t, "../../testdata/small/areas.geojson")
+	var trees []map[string][]byte
+	for _, swap := range []bool{false, true} {
+		out := t.TempDir()
+		m := writeMap(t, input, out, "")
+		if swap {
+			b, _ := os.ReadFile(m)
+			s := string(b)
+			i := strings.Index(s, "[[category]]")
+			cats := strings.SplitAfter(s[i:], "\n\n")
+			if len(cats) != 2 {
+				t.Fatalf("want two category tables, got %q", s[i:])
+			}
+			s = s[:i] + strings.TrimRight(cats[1], "\n") + "\n\n" + strings.TrimRight(cats[0], "\n") + "\n"
+			os.WriteFile(m, []byte(s), 0o644)
+		}
+		var stderr bytes.Buffer
+		if code := run(context.Background(), []string{"render", m}, new(bytes.Buffer), &stderr); code != 0 {
+			t.Fatalf("swap=%v: exit %d: %s", swap, code, stderr.String())
+		}
+		trees = append(trees, tree(t, out))
+	}
+	n := 0
+	for k, v := range trees[0] {
+		if !strings.HasSuffix(k, ".png") || strings.HasPrefix(k, "legend") || strings.Contains(k, ".stipple") {
+			continue
+		}
+		n++
+		if !bytes.Equal(v, trees[1][k]) {
+			t.Errorf("tile %s differs when the categories are listed the other way round", k)
+		}
+	}
+	if n < 10 {
+		t.Fatalf("compared only %d tiles", n)
+	}
+}

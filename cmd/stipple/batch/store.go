@@ -181,7 +181,7 @@ func probes() {
 		}}}
 		h := sha256.New()
 		s := dotstore.New(0)
-		sample.Feature(f, []float64{370, 55}, sample.Options{PeoplePerDot: 1, Seed: 7}, func(cat int, p orb.Point) {
+		sample.Feature(f, []float64{370, 55}, sample.Options{PeoplePerDot: 1, Seed: 7, Streams: []uint64{sample.CategoryStream("a"), sample.CategoryStream("b")}}, func(cat int, p orb.Point) {
 			fmt.Fprintf(h, "%d %x %x\n", cat, math.Float64bits(p[0]), math.Float64bits(p[1]))
 			s.Add(p[0], p[1], cat)
 		})

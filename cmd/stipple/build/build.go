@@ -36,7 +36,7 @@ var Version = "0.1.0-dev"
 
 // sampleFormat names the dot store layout and the sampling rules behind it;
 // change it when sample places dots differently, so old stores are redone.
-const sampleFormat = "stipple-dots/1"
+const sampleFormat = "stipple-dots/2" // 2: dots seeded by category key
 
 // tileFormat names how tiles are drawn; change it when pixels change, so
 // a rerun redraws instead of keeping old tiles.
@@ -484,7 +484,7 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 	})
 	b := dotstore.NewBuilder(dotstore.BuilderOptions{Memory: opt.Memory, SpillDir: opt.SpillDir, Workers: workers, Expected: int(math.Min(expected, 1<<40))})
 	results := make([]sample.Result, len(layer.Features))
-	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: opt.Masks}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: opt.Masks, Streams: Streams(m)}
 	if sopt.Masks == nil && len(m.Input.Mask) > 0 {
 		masks, _, err := LoadMasks(m)
 		if err != nil {
@@ -498,7 +498,7 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 		for i, f := range layer.Features {
 			ids[i] = f.ID
 		}
-		dots = sample.Allocate(ids, counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
+		dots = sample.AllocateStreams(ids, counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact", sopt.Streams)
 	}
 	var wg sync.WaitGroup
 	var failed atomic.Pointer[error]

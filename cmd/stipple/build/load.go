@@ -121,7 +121,7 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 	for i, f := range layer.Features {
 		idList[i] = f.ID
 	}
-	in.Dots = sample.Allocate(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact")
+	in.Dots = sample.AllocateStreams(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact", Streams(m))
 	return in, nil
 }
 
@@ -144,4 +144,15 @@ func LoadMasks(m *mapfile.Map) (mask *sample.Mask, n int, err error) {
 		return nil, 0, nil
 	}
 	return sample.NewMask(polys), len(polys), nil
+}
+
+// Streams are the random stream numbers of the map's categories, from
+// their keys: a category's dots stay where they are when the map file lists
+// the categories in another order.
+func Streams(m *mapfile.Map) []uint64 {
+	out := make([]uint64, len(m.Categories))
+	for k, c := range m.Categories {
+		out[k] = sample.CategoryStream(c.Key)
+	}
+	return out
 }
