@@ -83,7 +83,9 @@ type Tiles struct {
 // Dots sets the look of dots.
 type Dots struct {
 	// Diameter in CSS pixels at the deepest zoom; each zoom out halves the
-	// dot's area (a factor √2 in diameter), down to MinDiameter.
+	// dot's area (a factor √2 in diameter), down to MinDiameter; below it
+	// dots keep their size and fade instead, so the ink still halves per
+	// zoom out.
 	Diameter    float64 `toml:"diameter"`
 	MinDiameter float64 `toml:"min_diameter"`
 	Opacity     float64 `toml:"opacity"`
