@@ -91,7 +91,7 @@ func City(seed uint64) *geo.Layer {
 			poly := orb.Polygon{ring}
 			if i == 9 && j == 17 { // Lanternwood Park, with its lake as a hole
 				c := lonLat(uc, vc)
-				poly = append(poly, lake(c, 0.0035))
+				poly = append(poly, lake(c, 0.0022))
 			}
 			area := math.Abs(ringArea(ring))
 			if len(poly) > 1 {
