@@ -549,11 +549,15 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers
 	sub := *in.Layer
 	sub.Features = make([]geo.Feature, len(idx))
 	counts := make([][]float64, len(idx))
+	// Dot numbers come from the whole table's allocation (in.Dots), so
+	// exact rounding gives a part the same dots as one machine would.
+	dots := make([][]int, len(idx))
 	for k, j := range idx {
 		sub.Features[k] = fs[j]
 		counts[k] = in.Counts[j]
+		dots[k] = in.Dots[j]
 	}
-	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir)})
+	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir), Dots: dots, Masks: in.Masks})
 	if err != nil {
 		return nil, keptInfo{}, err
 	}
