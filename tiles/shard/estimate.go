@@ -29,17 +29,21 @@ type Rates struct {
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
 // synthetic counts, 1 dot = 10 people: 30.9 million dots, zooms 0–12,
-// 296 000 tiles) on a 2-core machine: a least-squares fit of the wall time
-// of 22 part renders (N = 2, 4 and 16) to their tiles and dots, times the
-// 2 cores, so they include the file system and the moments a core waits
-// (tiles.Write creates files from one goroutine, so tile-heavy parts are
-// bound by it). See BENCHMARKS.part.md.
+// 296 000 tiles) on a 2-core machine. Their ratio (a tile costs as much as
+// about 250 dots) is a least-squares fit of the wall time of 22 part
+// renders (N = 2, 4 and 16) to their tiles and kept dots: wall time is
+// what a part's balance is about, and tiles weigh more in it than in CPU
+// time, since tiles.Write creates files from one goroutine. Their scale is
+// CPU time (user + sys): 0.35 s per 1000 tiles and 1.74 s per million dots
+// fitted over the same parts, whose CPU time added up to 155–160 s for
+// every N against 143 s for a single-machine render. See
+// BENCHMARKS.part.md.
 var MeasuredRates = Rates{
 	Source:         "the national benchmark, 2 cores (tiles/shard/BENCHMARKS.part.md)",
-	SampleNsPerDot: 640,
-	CountNsPerDot:  27,
-	DiscNsPerDot:   1510,
-	TileNs:         0.95e6,
+	SampleNsPerDot: 270,
+	CountNsPerDot:  11,
+	DiscNsPerDot:   640,
+	TileNs:         0.40e6,
 	CountBytes:     6400,
 	DiscBytes:      3800,
 }
@@ -237,19 +241,21 @@ func Work(areas []Area, l *Layout, e Estimate, r Rates) []ShardWork {
 		if ze.Zoom < l.Split {
 			continue
 		}
-		b, ns := r.CountBytes, r.CountNsPerDot
+		b := r.CountBytes
 		if ze.Disc {
-			b, ns = r.DiscBytes, r.DiscNsPerDot
+			b = r.DiscBytes
 		}
 		for i := range out {
 			t := ze.PerShard[i]
 			out[i].Tiles += t * scale
 			out[i].Bytes += t * b * scale
-			out[i].CoreHours += (t*r.TileNs + out[i].OwnDots*ns) * scale / 1e9 / 3600
 		}
 	}
+	// The layout's own estimate, block by block, is the finer one: large
+	// areas' tiles are shared out like their dots there, and given to one
+	// part here.
 	for i := range out {
-		out[i].CoreHours += out[i].SampledDots * r.SampleNsPerDot / 1e9 / 3600
+		out[i].CoreHours = l.Weight[i] / 3600
 	}
 	return out
 }
