@@ -3,11 +3,9 @@ package batch
 import (
 	"context"
 	"crypto/sha256"
-	"encoding/binary"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
-	"hash"
 	"image/color"
 	"math"
 	"os"
@@ -127,24 +125,7 @@ func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) s
 	h := sha256.New()
 	fmt.Fprintf(h, "%s\n%s\nprobe=%s\n", storeFormat, build.Version, samplerProbe())
 	fmt.Fprintf(h, "%s\n", samplingSettings(m))
-	var b [8]byte
-	f64 := func(w hash.Hash, v float64) { binary.LittleEndian.PutUint64(b[:], math.Float64bits(v)); w.Write(b[:]) }
-	for i, f := range layer.Features {
-		fmt.Fprintf(h, "f%d %q %d\n", f.Index, f.ID, len(f.Geometry))
-		for _, c := range counts[i] {
-			f64(h, c)
-		}
-		for _, poly := range f.Geometry {
-			fmt.Fprintf(h, "p%d", len(poly))
-			for _, ring := range poly {
-				fmt.Fprintf(h, "r%d", len(ring))
-				for _, p := range ring {
-					f64(h, p[0])
-					f64(h, p[1])
-				}
-			}
-		}
-	}
+	build.HashAreas(h, layer, counts)
 	return hex.EncodeToString(h.Sum(nil))
 }
 

@@ -369,24 +369,7 @@ func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) s
 		data, err := os.ReadFile(m.Resolve(mp))
 		fmt.Fprintf(h, "maskfile=%q %x %v\n", mp, sha256.Sum256(data), err)
 	}
-	var b [8]byte
-	f64 := func(w hash.Hash, v float64) { binary.LittleEndian.PutUint64(b[:], math.Float64bits(v)); w.Write(b[:]) }
-	for i, f := range layer.Features {
-		fmt.Fprintf(h, "f%d %q %d\n", f.Index, f.ID, len(f.Geometry))
-		for _, c := range counts[i] {
-			f64(h, c)
-		}
-		for _, poly := range f.Geometry {
-			fmt.Fprintf(h, "p%d", len(poly))
-			for _, ring := range poly {
-				fmt.Fprintf(h, "r%d", len(ring))
-				for _, p := range ring {
-					f64(h, p[0])
-					f64(h, p[1])
-				}
-			}
-		}
-	}
+	HashAreas(h, layer, counts)
 	return hex.EncodeToString(h.Sum(nil))
 }
 
@@ -575,4 +558,27 @@ func ParseSize(s string) (int64, error) {
 		return 0, fmt.Errorf("size %q: want a positive amount like 2GiB or 512MiB", s)
 	}
 	return int64(v * mult), nil
+}
+
+// HashAreas writes every area's index, id, counts and vertices into h, for
+// fingerprints of what the placed dots depend on.
+func HashAreas(h hash.Hash, layer *geo.Layer, counts [][]float64) {
+	var b [8]byte
+	f64 := func(w hash.Hash, v float64) { binary.LittleEndian.PutUint64(b[:], math.Float64bits(v)); w.Write(b[:]) }
+	for i, f := range layer.Features {
+		fmt.Fprintf(h, "f%d %q %d\n", f.Index, f.ID, len(f.Geometry))
+		for _, c := range counts[i] {
+			f64(h, c)
+		}
+		for _, poly := range f.Geometry {
+			fmt.Fprintf(h, "p%d", len(poly))
+			for _, ring := range poly {
+				fmt.Fprintf(h, "r%d", len(ring))
+				for _, p := range ring {
+					f64(h, p[0])
+					f64(h, p[1])
+				}
+			}
+		}
+	}
 }
