@@ -208,14 +208,14 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return err
 	}
 	if sh.set {
-		return renderSharded(ctx, m, sh.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
+		return renderSharded(ctx, m, sh.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
 	}
 	if sink.IsBucketURL(m.Out) {
 		// A bucket takes the sharded path as one part plus the final step.
-		if err := renderSharded(ctx, m, shardSpec{Index: 0, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout}); err != nil {
+		if err := renderSharded(ctx, m, shardSpec{Index: 0, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi}); err != nil {
 			return err
 		}
-		return renderSharded(ctx, m, shardSpec{Final: true, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout})
+		return renderSharded(ctx, m, shardSpec{Final: true, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
 	}
 	opt, err := o.runOptions(m, stdout)
 	if err != nil {
