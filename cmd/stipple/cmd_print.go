@@ -14,7 +14,6 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
@@ -273,7 +272,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	}
 	var keep func(lon, lat float64) bool
 	if only != nil {
-		keep = insideAny(layer, only)
+		keep = build.InsideAny(layer, only)
 	}
 	// Lay out to learn what the frame shows, count the people of the
 	// areas it shows, then lay out again with the counts filled in. The
@@ -373,7 +372,7 @@ func storeDots(s *dotstore.Store, keep func(lon, lat float64) bool) page.DotSour
 	return func(yield func(lon, lat float64, cat int) bool) {
 		for _, k := range s.Range(0, math.MaxUint64) {
 			x, y, cat := dotstore.Split(k)
-			lon, lat := cellLonLat(x, y)
+			lon, lat := dotstore.CellLonLat(x, y)
 			if keep != nil && !keep(lon, lat) {
 				continue
 			}
@@ -381,45 +380,6 @@ func storeDots(s *dotstore.Store, keep func(lon, lat float64) bool) page.DotSour
 				return
 			}
 		}
-	}
-}
-
-// cellLonLat returns the longitude/latitude of the centre of world cell
-// (x, y) (dotstore.World's numbering: x east from 180°W, y south from the
-// top of the square Web Mercator world).
-func cellLonLat(x, y uint32) (lon, lat float64) {
-	fx := (float64(x) + 0.5) / dotstore.WorldSize
-	fy := (float64(y) + 0.5) / dotstore.WorldSize
-	lon = fx*360 - 180
-	lat = (math.Pi/2 - 2*math.Atan(math.Exp(-math.Pi*(1-2*fy)))) * 180 / math.Pi
-	return lon, lat
-}
-
-// insideAny reports whether a point lies inside one of the features idx
-// (orb's even-odd planar test in lon/lat, after a bound check): with
-// --ids the page shows the dots placed in the listed areas alone. A dot
-// was placed inside its own area, and its cell centre is within 4 cm of
-// that place, so it lands in a neighbour only where areas overlap.
-func insideAny(layer *geo.Layer, idx []int) func(lon, lat float64) bool {
-	type area struct {
-		b orb.Bound
-		g orb.MultiPolygon
-	}
-	areas := make([]area, 0, len(idx))
-	for _, i := range idx {
-		g := layer.Features[i].Geometry
-		if len(g) > 0 {
-			areas = append(areas, area{g.Bound(), g})
-		}
-	}
-	return func(lon, lat float64) bool {
-		p := orb.Point{lon, lat}
-		for _, a := range areas {
-			if a.b.Contains(p) && planar.MultiPolygonContains(a.g, p) {
-				return true
-			}
-		}
-		return false
 	}
 }
 

@@ -7,7 +7,6 @@ import (
 	"encoding/binary"
 	"encoding/hex"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"hash"
 	"image/png"
@@ -165,41 +164,6 @@ type shardOptions struct {
 	Log io.Writer
 	// HiDPI also draws @2x tiles (as does tiles.hidpi in the map file).
 	HiDPI bool
-}
-
-// cmdShardRender is "stipple render MAP.toml --shard SPEC [flags]": the
-// render command's flags plus --shard and --work.
-func cmdShardRender(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := flag.NewFlagSet("render", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	var o overrides
-	o.register(fs)
-	var sf shardFlag
-	fs.Var(&sf, "shard", shardUsage)
-	work := fs.String("work", "", "local folder for a part's working files (default: in the output's .stipple folder, or the system's temporary folder for a bucket)")
-	pos, err := parse(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usageError{"render takes one map file"}
-	}
-	if !sf.set {
-		return usageError{"--shard is required here"}
-	}
-	m, err := mapfile.Read(pos[0])
-	if err != nil {
-		return err
-	}
-	out := o.out
-	o.out = "" // apply resolves paths; a bucket URL is kept as it is below
-	if err := o.apply(m); err != nil {
-		return err
-	}
-	if out != "" {
-		m.Out = out
-	}
-	return renderSharded(ctx, m, sf.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
 }
 
 // shardedMap is what every part and the final step compute alike from

@@ -44,7 +44,7 @@ func TestCellLonLat(t *testing.T) {
 	e, n := -11169055.58, 2810000.00
 	x := uint32(math.Floor((e/(2*math.Pi*R) + 0.5) * dotstore.WorldSize))
 	y := uint32(math.Floor((0.5 - n/(2*math.Pi*R)) * dotstore.WorldSize))
-	lon, lat := cellLonLat(x, y)
+	lon, lat := dotstore.CellLonLat(x, y)
 	wantLat := 24 + 27.0/60 + 48.889/3600
 	wantLon := -(100 + 20.0/60)
 	if math.Abs(lat-wantLat) > 5e-7 || math.Abs(lon-wantLon) > 5e-7 {
@@ -54,8 +54,8 @@ func TestCellLonLat(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 2))
 	for i := 0; i < 100000; i++ {
 		x, y := uint32(r.IntN(dotstore.WorldSize)), uint32(r.IntN(dotstore.WorldSize))
-		if gx, gy := dotstore.World(cellLonLat(x, y)); gx != x || gy != y {
-			t.Fatalf("cell (%d, %d) → %v → (%d, %d)", x, y, fmt.Sprint(cellLonLat(x, y)), gx, gy)
+		if gx, gy := dotstore.World(dotstore.CellLonLat(x, y)); gx != x || gy != y {
+			t.Fatalf("cell (%d, %d) → %v → (%d, %d)", x, y, fmt.Sprint(dotstore.CellLonLat(x, y)), gx, gy)
 		}
 	}
 }
@@ -99,7 +99,7 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	want, got := make([]stats, nc), make([]stats, nc)
 	for _, k := range store.Range(0, math.MaxUint64) {
 		x, y, cat := dotstore.Split(k)
-		px, py := p.Project(cellLonLat(x, y))
+		px, py := p.Project(dotstore.CellLonLat(x, y))
 		s := &want[cat]
 		s.n++
 		s.x, s.y, s.xx, s.yy = s.x+px, s.y+py, s.xx+px*px, s.yy+py*py

@@ -2,43 +2,17 @@ package main
 
 import (
 	"bytes"
-	"context"
 	"fmt"
 	"io/fs"
 	"math/rand/v2"
 	"os"
 	"os/exec"
-	"os/signal"
 	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
 	"time"
 )
-
-// TestShardHelperProcess is not a test: the sharded-render test runs it as
-// a child process (the os/exec helper-process pattern) to render one part,
-// until "stipple render" itself takes --shard.
-func TestShardHelperProcess(t *testing.T) {
-	if os.Getenv("STIPPLE_SHARD_HELPER") != "1" {
-		return
-	}
-	args := os.Args
-	for i, a := range args {
-		if a == "--" {
-			args = args[i+1:]
-			break
-		}
-	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	err := cmdShardRender(ctx, args, os.Stdout, os.Stderr)
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "stipple: "+err.Error())
-		os.Exit(1)
-	}
-	os.Exit(0)
-}
 
 // buildStipple builds the command into a temporary folder.
 func buildStipple(t *testing.T) string {
@@ -52,32 +26,14 @@ func buildStipple(t *testing.T) string {
 	return bin
 }
 
-// shardRunner makes the command for one part of a sharded render: the
-// built binary's "render --shard" once it has that flag, else this test
-// binary as a helper process running the same code (cmdShardRender).
-type shardRunner struct {
-	bin        string
-	integrated bool
-}
+// shardRunner makes the command for one part of a sharded render with the
+// built binary: stipple render MAP --shard I/N.
+type shardRunner struct{ bin string }
 
-func newShardRunner(t *testing.T, bin string) shardRunner {
-	out, _ := exec.Command(bin, "render", "-h").CombinedOutput()
-	r := shardRunner{bin: bin, integrated: strings.Contains(string(out), "-shard")}
-	if r.integrated {
-		t.Log("parts run as: stipple render MAP --shard I/N")
-	} else {
-		t.Log("\"stipple render\" has no --shard flag yet: parts run as helper processes of this test binary (cmdShardRender)")
-	}
-	return r
-}
+func newShardRunner(t *testing.T, bin string) shardRunner { return shardRunner{bin: bin} }
 
 func (r shardRunner) cmd(args ...string) *exec.Cmd {
-	if r.integrated {
-		return exec.Command(r.bin, append([]string{"render"}, args...)...)
-	}
-	c := exec.Command(os.Args[0], append([]string{"-test.run=^TestShardHelperProcess$", "--"}, args...)...)
-	c.Env = append(os.Environ(), "STIPPLE_SHARD_HELPER=1")
-	return c
+	return exec.Command(r.bin, append([]string{"render"}, args...)...)
 }
 
 func runOK(t *testing.T, c *exec.Cmd) string {

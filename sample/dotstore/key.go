@@ -81,3 +81,14 @@ func compact(x uint64) uint32 {
 func interleave(x, y uint32) uint64 { return spread(y)<<1 | spread(x) }
 
 func deinterleave(m uint64) (x, y uint32) { return compact(m), compact(m >> 1) }
+
+// CellLonLat returns the longitude/latitude of the centre of world cell
+// (x, y): the inverse of World, exact to half a cell (about 4 cm at the
+// equator).
+func CellLonLat(x, y uint32) (lon, lat float64) {
+	fx := (float64(x) + 0.5) / WorldSize
+	fy := (float64(y) + 0.5) / WorldSize
+	lon = fx*360 - 180
+	lat = (math.Pi/2 - 2*math.Atan(math.Exp(-math.Pi*(1-2*fy)))) * 180 / math.Pi
+	return lon, lat
+}

@@ -4,16 +4,13 @@ import (
 	"fmt"
 	"image/color"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
-	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/sample/dotstore"
@@ -71,7 +68,7 @@ func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m
 		spec.Footnotes = append(spec.Footnotes, "People: "+p.Rule+". Dots: every dot inside the frame, those of areas whose centre lies outside the box included.")
 	} else {
 		// Like the tiles' legend, the page shows the extent's own areas.
-		keep = insideAny(in.Layer, p.Features)
+		keep = build.InsideAny(in.Layer, p.Features)
 		spec.Footnotes = append(spec.Footnotes, "People and dots: "+p.Rule+".")
 	}
 	if tot.NotDrawn > 0 {
@@ -130,7 +127,7 @@ func frameDots(s *dotstore.Store, b orb.Bound, keep func(lon, lat float64) bool)
 			first, last := dotstore.TileRange(z, t[0], t[1])
 			for _, k := range rangeOf(keys, first, last) {
 				x, y, cat := dotstore.Split(k)
-				lon, lat := cellLonLat(x, y)
+				lon, lat := dotstore.CellLonLat(x, y)
 				if keep != nil && !keep(lon, lat) {
 					continue
 				}
@@ -140,40 +137,6 @@ func frameDots(s *dotstore.Store, b orb.Bound, keep func(lon, lat float64) bool)
 			}
 		}
 	}
-}
-
-// insideAny reports whether a point lies inside one of the features idx
-// (orb's planar test in lon/lat, after a bound check). A dot was placed
-// inside its own area and its cell centre is within 4 cm of that place, so
-// it lands in another area only where areas overlap.
-func insideAny(layer *geo.Layer, idx []int) func(lon, lat float64) bool {
-	type area struct {
-		b orb.Bound
-		g orb.MultiPolygon
-	}
-	areas := make([]area, 0, len(idx))
-	for _, i := range idx {
-		if g := layer.Features[i].Geometry; len(g) > 0 {
-			areas = append(areas, area{g.Bound(), g})
-		}
-	}
-	return func(lon, lat float64) bool {
-		pt := orb.Point{lon, lat}
-		for _, a := range areas {
-			if a.b.Contains(pt) && planar.MultiPolygonContains(a.g, pt) {
-				return true
-			}
-		}
-		return false
-	}
-}
-
-func cellLonLat(x, y uint32) (lon, lat float64) {
-	fx := (float64(x) + 0.5) / dotstore.WorldSize
-	fy := (float64(y) + 0.5) / dotstore.WorldSize
-	lon = fx*360 - 180
-	lat = (math.Pi/2 - 2*math.Atan(math.Exp(-math.Pi*(1-2*fy)))) * 180 / math.Pi
-	return lon, lat
 }
 
 func writeTo(path string, write func(io.Writer) error) error {

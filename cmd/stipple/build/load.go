@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
@@ -155,4 +156,32 @@ func Streams(m *mapfile.Map) []uint64 {
 		out[k] = sample.CategoryStream(c.Key)
 	}
 	return out
+}
+
+// InsideAny reports whether a point lies inside one of the features idx
+// (orb's even-odd planar test in lon/lat, after a bound check): print pages use it
+// to show the dots placed in the listed areas alone. A dot
+// was placed inside its own area, and its cell centre is within 4 cm of
+// that place, so it lands in a neighbour only where areas overlap.
+func InsideAny(layer *geo.Layer, idx []int) func(lon, lat float64) bool {
+	type area struct {
+		b orb.Bound
+		g orb.MultiPolygon
+	}
+	areas := make([]area, 0, len(idx))
+	for _, i := range idx {
+		g := layer.Features[i].Geometry
+		if len(g) > 0 {
+			areas = append(areas, area{g.Bound(), g})
+		}
+	}
+	return func(lon, lat float64) bool {
+		p := orb.Point{lon, lat}
+		for _, a := range areas {
+			if a.b.Contains(p) && planar.MultiPolygonContains(a.g, p) {
+				return true
+			}
+		}
+		return false
+	}
 }
