@@ -113,6 +113,11 @@ func TestShardedRenderMatchesSingleMachine(t *testing.T) {
 			full := time.Since(t0)
 			killed := false
 			for try := 0; try < 5 && !killed; try++ {
+				// A try that finished before its kill leaves a complete
+				// part that the next try would only resume: start afresh.
+				if err := os.RemoveAll(parts[i]); err != nil {
+					t.Fatal(err)
+				}
 				c := runner.cmd(args...)
 				var out bytes.Buffer
 				c.Stdout, c.Stderr = &out, &out
