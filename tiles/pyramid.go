@@ -43,6 +43,12 @@ type Options struct {
 	Fingerprint string
 	// Progress, when set, is called after each tile with the running totals.
 	Progress func(Stats)
+	// Keep, when set, picks the tiles to draw: a candidate tile (z, x, y)
+	// for which it returns false is skipped before it is drawn and counted
+	// nowhere in Stats (a part of a sharded render keeps the tiles it
+	// owns). It must give the same answer on a rerun with the same
+	// Fingerprint, so that resuming stays correct.
+	Keep func(z, x, y int) bool
 }
 
 // Stats count what a pyramid write did. Tiles kept from an interrupted run
@@ -174,12 +180,17 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			if p.look(z).Diameter < 1 {
 				for _, t := range occupied(w.src, z) {
 					w.noteRead(searchCost)
+					if !w.keep(z, t.x, t.y) {
+						continue
+					}
 					hist = append(hist, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
 					w.st.Planned++
 				}
 			} else {
-				w.src.EachTile(z, func(int, int, []uint64) {
-					w.st.Planned++
+				w.src.EachTile(z, func(x, y int, _ []uint64) {
+					if w.keep(z, x, y) {
+						w.st.Planned++
+					}
 					w.noteRead(searchCost)
 				})
 				disc = append(disc, discZoom{p, z})
@@ -262,7 +273,11 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 		}
 	}
 	for _, d := range disc {
-		eachCandidate(w.src, d.z, func() { w.noteRead(searchCost) }, func(x, y, n int) { queue(job{p: d.p, z: d.z, x: x, y: y, n: n}) })
+		eachCandidate(w.src, d.z, func() { w.noteRead(searchCost) }, func(x, y, n int) {
+			if w.keep(d.z, x, y) {
+				queue(job{p: d.p, z: d.z, x: x, y: y, n: n})
+			}
+		})
 		if !stop() {
 			release(zoomKey(d.z, d.p.suffix))
 		}
@@ -279,6 +294,9 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	}
 	return w.st, nil
 }
+
+// keep reports whether tile (z, x, y) is to be drawn (Options.Keep).
+func (w *writer) keep(z, x, y int) bool { return w.opt.Keep == nil || w.opt.Keep(z, x, y) }
 
 func zoomKey(z int, suffix string) string { return strconv.Itoa(z) + suffix }
 

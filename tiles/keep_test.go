@@ -1,0 +1,157 @@
+package tiles
+
+import (
+	"bytes"
+	"context"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/sample/dotstore"
+)
+
+// pngFiles lists a pyramid's tile files (relative paths) with their bytes.
+func pngFiles(t *testing.T, root string) map[string][]byte {
+	t.Helper()
+	out := map[string][]byte{}
+	err := filepath.WalkDir(root, func(p string, d os.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() && d.Name() == StateDir {
+			return filepath.SkipDir
+		}
+		if !d.IsDir() && strings.HasSuffix(p, ".png") {
+			rel, _ := filepath.Rel(root, p)
+			b, err := os.ReadFile(p)
+			out[filepath.ToSlash(rel)] = b
+			return err
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+// TestKeepSkipsTiles writes a pyramid (count and disc zooms, 1× and @2x)
+// whole, then with a Keep that drops about a third of the tiles, once
+// straight through and once interrupted and resumed: the kept writes hold
+// exactly the whole write's tiles that Keep accepts, byte for byte, and
+// their totals count only those.
+func TestKeepSkipsTiles(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 21))
+	var keys []uint64
+	for i := 0; i < 30000; i++ {
+		wx, wy := worldAt(8, 30000+rng.Float64()*700, 20000+rng.Float64()*600)
+		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
+	}
+	src := sorted(keys)
+	look := func(z int) render.Dot {
+		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-11)), Opacity: 0.9}
+	}
+	opt := Options{MinZoom: 3, MaxZoom: 11, TileSize: 256, Colors: testColors, Look: look, Workers: 2, HiDPI: true}
+	all := opt
+	all.Dir = t.TempDir()
+	whole, err := Write(context.Background(), src, all)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := pngFiles(t, all.Dir)
+	keep := func(z, x, y int) bool { return (x*7+y*3+z)%3 != 0 }
+	parse := func(rel string) (z, x, y int) {
+		parts := strings.Split(strings.TrimSuffix(rel, ".png"), "/")
+		ys, _, _ := strings.Cut(parts[2], "@")
+		return atoi(t, parts[0]), atoi(t, parts[1]), atoi(t, ys)
+	}
+	var wantTiles, wantTiles2x, wantBytes int64
+	for rel, b := range want {
+		z, x, y := parse(rel)
+		if !keep(z, x, y) {
+			delete(want, rel)
+			continue
+		}
+		if strings.HasSuffix(rel, "@2x.png") {
+			wantTiles2x++
+		} else {
+			wantTiles++
+		}
+		wantBytes += int64(len(b))
+	}
+	if wantTiles == 0 || wantTiles >= whole.Tiles {
+		t.Fatalf("keep accepts %d of %d tiles; the test wants some of each", wantTiles, whole.Tiles)
+	}
+
+	check := func(name, dir string, got Stats) {
+		t.Helper()
+		files := pngFiles(t, dir)
+		for rel, b := range files {
+			w, ok := want[rel]
+			if !ok {
+				t.Errorf("%s: tile %s written, which Keep rejects", name, rel)
+			} else if !bytes.Equal(w, b) {
+				t.Errorf("%s: tile %s differs from the whole write's", name, rel)
+			}
+		}
+		for rel := range want {
+			if _, ok := files[rel]; !ok {
+				t.Errorf("%s: tile %s missing", name, rel)
+			}
+		}
+		if got.Tiles != wantTiles || got.Tiles2x != wantTiles2x || got.Bytes != wantBytes {
+			t.Errorf("%s: totals %d + %d @2x tiles, %d bytes; want %d + %d, %d", name, got.Tiles, got.Tiles2x, got.Bytes, wantTiles, wantTiles2x, wantBytes)
+		}
+		if got.Planned >= whole.Planned || got.Planned == 0 {
+			t.Errorf("%s: planned %d tiles (whole write %d)", name, got.Planned, whole.Planned)
+		}
+	}
+
+	straight := opt
+	straight.Dir, straight.Keep = t.TempDir(), keep
+	got, err := Write(context.Background(), src, straight)
+	if err != nil {
+		t.Fatal(err)
+	}
+	check("straight", straight.Dir, got)
+
+	resumed := straight
+	resumed.Dir, resumed.Fingerprint = t.TempDir(), "keep-1"
+	for _, stopAfter := range []int64{5, 80} {
+		ctx, cancel := context.WithCancel(context.Background())
+		resumed.Progress = func(s Stats) {
+			if s.Tiles+s.Tiles2x+s.Empty >= stopAfter {
+				cancel()
+			}
+		}
+		if _, err := Write(ctx, src, resumed); err == nil {
+			t.Fatalf("write stopped after %d tiles reported no error", stopAfter)
+		}
+		cancel()
+	}
+	resumed.Progress = nil
+	got, err = Write(context.Background(), src, resumed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Kept == 0 {
+		t.Error("the resumed run kept no tiles")
+	}
+	check("resumed", resumed.Dir, got)
+}
+
+func atoi(t *testing.T, s string) int {
+	t.Helper()
+	var v int
+	for _, c := range s {
+		if c < '0' || c > '9' {
+			t.Fatalf("not a number: %q", s)
+		}
+		v = 10*v + int(c-'0')
+	}
+	return v
+}
