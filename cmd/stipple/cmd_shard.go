@@ -412,16 +412,19 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 	t0 := time.Now()
 	colors := m.RGBA()
 	if store.Len() > 0 {
+		// Only the part's own tiles are drawn: the margin dots ink the
+		// edges of those, and the neighbours draw the tiles beyond.
 		if _, err := tiles.Write(ctx, store, tiles.Options{
 			Dir: work, MinZoom: l.Split, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 			Colors: colors, Look: build.Look(m), Workers: opt.Workers, HiDPI: sm.hidpi,
-			Fingerprint: sm.look + "/" + rep.Layout + "/" + shard.Name(i, n),
+			Fingerprint: sm.look + "/" + rep.Layout + "/" + shard.Name(i, n) + "/own",
+			Keep:        func(z, x, y int) bool { return l.Owner(z, x, y) == i },
 		}); err != nil {
 			return nil, err
 		}
 	}
-	// The tiles of this part's own blocks go to the output; the others
-	// (drawn from the margin dots) belong to the neighbours.
+	// The tiles of this part's own blocks go to the output (the only ones
+	// drawn; the check guards the copy all the same).
 	owned := func(p string) bool {
 		z, x, y, ok := tilePath(p)
 		return ok && l.Owner(z, x, y) == i
@@ -521,11 +524,23 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers
 		counts[k] = in.Counts[j]
 		dots[k] = in.Dots[j]
 	}
-	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir), Dots: dots, Masks: in.Masks})
+	// Only the dots within the margin of the part's blocks are stored; the
+	// others are placed (an area's dots depend on its own seeded streams
+	// alone) and dropped at once.
+	keep := func(k uint64) bool {
+		x, y, _ := dotstore.Split(k)
+		return l.Keeps(i, x, y)
+	}
+	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir), Dots: dots, Masks: in.Masks, Keep: keep})
 	if err != nil {
 		return nil, keptInfo{}, err
 	}
-	info := keptInfo{Look: sm.look, Layout: l.Fingerprint(), Sampled: int64(store.Len()), NAreas: len(idx), Areas: []shard.AreaResult{}}
+	info := keptInfo{Look: sm.look, Layout: l.Fingerprint(), NAreas: len(idx), Areas: []shard.AreaResult{}, Dots: store.Len()}
+	for _, r := range results {
+		for _, v := range r.Dots {
+			info.Sampled += int64(v)
+		}
+	}
 	for k, j := range idx {
 		f := &fs[j]
 		if l.AreaOwner(f.Geometry.Bound()) != i {
@@ -541,19 +556,7 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers
 		}
 		info.Areas = append(info.Areas, a)
 	}
-	keys := store.Keys()
-	own := l.OwnedKeys(keys, i)
-	kept := make([]uint64, 0, len(own)+len(own)/8)
-	for _, k := range keys {
-		x, y, _ := dotstore.Split(k)
-		if l.Keeps(i, x, y) {
-			kept = append(kept, k)
-		}
-	}
-	store.Close()
-	ks := dotstore.FromSorted(kept)
-	info.Dots = ks.Len()
-	return ks, info, nil
+	return store, info, nil
 }
 
 // runFinal draws the zooms above the split from the parts' summaries and

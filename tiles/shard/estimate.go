@@ -325,10 +325,11 @@ func newWorkModel(areas []Area, p Pyramid, r Rates, maxSplit int) *workModel {
 }
 
 // blocks is the estimated work, in core-seconds, of every block of zoom
-// s: sampling and drawing each dot at every zoom from s down, and
-// compositing, encoding and writing each expected tile.
+// s: drawing each dot at every zoom from s down, and compositing, encoding
+// and writing each expected tile. Sampling is not in it: a part samples
+// every dot of each area near its blocks, its own or not (sampledBy).
 func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) []block {
-	perDot := wm.r.SampleNsPerDot
+	perDot := 0.0
 	for z := s; z <= wm.p.MaxZoom; z++ {
 		if wm.p.look(z, pass{1}).Diameter >= 1 {
 			perDot += wm.r.DiscNsPerDot * wm.scale

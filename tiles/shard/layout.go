@@ -202,13 +202,15 @@ func Plan(areas []Area, p Pyramid, opt PlanOptions) (*Layout, error) {
 	wk := newWorkModel(areas, p, rates, hi)
 	for s := p.MinZoom; s <= hi; s++ {
 		work := wk.blocks(areas, s, points)
-		l, err := cut(work, s, opt.Shards)
+		margin := p.Margin(s)
+		sampling := sampledBy(areas, s, margin, work, func(i int) float64 { return areas[i].Dots * rates.SampleNsPerDot / 1e9 })
+		l, err := cutShared(work, sampling, s, opt.Shards)
 		if err != nil {
 			bestErr = err
 			continue
 		}
 		l.MinZoom, l.MaxZoom, l.Pyramid = p.MinZoom, p.MaxZoom, p
-		l.Margin = p.Margin(s)
+		l.Margin = margin
 		l.Dots = l.sumByShard(weigh(areas, s, points, func(i int) float64 { return areas[i].Dots }))
 		if best == nil || l.Imbalance() < best.Imbalance() {
 			best = l
@@ -316,9 +318,28 @@ func sortedBlocks(w map[uint64]float64) []block {
 }
 
 // cut splits the Z-ordered blocks into n contiguous runs whose largest sum
-// is as small as it can be (bisection on that largest sum, each candidate
-// checked greedily), every run holding at least one block.
-func cut(blocks []block, s, n int) (*Layout, error) {
+// is as small as it can be (see cutShared), every run holding at least one
+// block.
+func cut(blocks []block, s, n int) (*Layout, error) { return cutShared(blocks, nil, s, n) }
+
+// shared is work that every part touching some of a set of blocks does in
+// full: sampling an area, which each part whose blocks come within the
+// margin of the area's bound does for all of the area's dots.
+type shared struct {
+	w float64
+	// spans are the sorted, disjoint index ranges [a, b] (into the blocks
+	// being cut) of the blocks whose part does the work.
+	spans [][2]int
+}
+
+// cutShared splits the Z-ordered blocks into n contiguous runs, every run
+// holding at least one block, whose largest cost is as small as it can be.
+// A run's cost is the sum of its blocks' work plus the work of every shared
+// item one of its blocks calls for (counted once per run, however many of
+// its blocks do). The cost only grows as a run takes more blocks, so a
+// greedy packing checks whether a largest cost can be met, and bisection
+// finds the least one.
+func cutShared(blocks []block, items []shared, s, n int) (*Layout, error) {
 	if len(blocks) < n {
 		return nil, fmt.Errorf("only %d blocks with people at split zoom %d", len(blocks), s)
 	}
@@ -327,38 +348,76 @@ func cut(blocks []block, s, n int) (*Layout, error) {
 		total += b.w
 		heaviest = max(heaviest, b.w)
 	}
-	// groups packs runs of at most limit, leaving a block for each run to
-	// come, and returns the first block of each run.
-	groups := func(limit float64) []int {
-		starts := []int{0}
-		sum := 0.0
+	// The spans of all items, by first block.
+	type span struct{ a, b, item int }
+	var spans []span
+	for k, it := range items {
+		total += it.w
+		for _, sp := range it.spans {
+			spans = append(spans, span{sp[0], sp[1], k})
+		}
+	}
+	slices.SortStableFunc(spans, func(x, y span) int { return x.a - y.a })
+	seen := make([]int, len(items)) // run number + 1 that last paid for the item
+	var active []span
+	// groups packs runs of at most limit (a run's first block alone may
+	// exceed it), leaving a block for each run to come, and returns the
+	// first block and the cost of each run.
+	groups := func(limit float64) (starts []int, sums []float64) {
+		clear(seen)
+		active = active[:0]
+		starts, sums = []int{0}, []float64{0}
+		next := 0
 		for i, b := range blocks {
+			// Spans starting here join the active ones; ended ones leave.
+			first := len(active)
+			for next < len(spans) && spans[next].a == i {
+				active = append(active, spans[next])
+				next++
+			}
+			add := b.w
+			for _, sp := range active[first:] {
+				if seen[sp.item] != len(starts) {
+					add += items[sp.item].w
+				}
+			}
 			left := n - len(starts) // runs still to start
 			mustStart := len(blocks)-i == left && left > 0
-			if i > 0 && (sum+b.w > limit || mustStart) && len(starts) < n {
-				starts = append(starts, i)
-				sum = 0
+			if i > 0 && (sums[len(sums)-1]+add > limit || mustStart) && len(starts) < n {
+				// A new run pays for every item whose span covers block i.
+				starts, sums = append(starts, i), append(sums, b.w)
+				kept := active[:0]
+				for _, sp := range active {
+					if sp.b < i {
+						continue
+					}
+					kept = append(kept, sp)
+					if seen[sp.item] != len(starts) {
+						seen[sp.item] = len(starts)
+						sums[len(sums)-1] += items[sp.item].w
+					}
+				}
+				active = kept
+			} else {
+				sums[len(sums)-1] += add
+				for _, sp := range active[first:] {
+					seen[sp.item] = len(starts)
+				}
 			}
-			sum += b.w
+			// Drop the spans that end here.
+			kept := active[:0]
+			for _, sp := range active {
+				if sp.b > i {
+					kept = append(kept, sp)
+				}
+			}
+			active = kept
 		}
-		return starts
+		return starts, sums
 	}
 	fits := func(limit float64) bool {
-		starts := groups(limit)
-		for k, st := range starts {
-			end := len(blocks)
-			if k+1 < len(starts) {
-				end = starts[k+1]
-			}
-			sum := 0.0
-			for _, b := range blocks[st:end] {
-				sum += b.w
-			}
-			if sum > limit {
-				return false
-			}
-		}
-		return true
+		_, sums := groups(limit)
+		return slices.Max(sums) <= limit
 	}
 	lo, hi := max(total/float64(n), heaviest), total
 	for it := 0; it < 100 && hi-lo > 1e-9*total; it++ {
@@ -369,23 +428,101 @@ func cut(blocks []block, s, n int) (*Layout, error) {
 			lo = mid
 		}
 	}
-	starts := groups(hi)
-	l := &Layout{Shards: n, Split: s, Blocks: len(blocks), MaxBlock: heaviest, Weight: make([]float64, n)}
+	starts, sums := groups(hi)
+	l := &Layout{Shards: n, Split: s, Blocks: len(blocks), MaxBlock: heaviest, Weight: sums}
 	l.Lo = make([]uint64, n+1)
 	for k, st := range starts {
 		if k > 0 {
 			l.Lo[k] = blocks[st].code
 		}
-		end := len(blocks)
-		if k+1 < len(starts) {
-			end = starts[k+1]
-		}
-		for _, b := range blocks[st:end] {
-			l.Weight[k] += b.w
-		}
 	}
 	l.Lo[n] = uint64(1) << (2 * s)
 	return l, nil
+}
+
+// sampledBy lists, for every area with dots, the work value(i) of sampling
+// it and the blocks (indices into blocks, Z-ordered) whose part samples it:
+// those whose Z-order range — from the block's code up to the next
+// block's, the first block's from 0 — holds a block of zoom s within
+// margin of the area's bound, as Layout.Touches decides once the cut is
+// made.
+func sampledBy(areas []Area, s int, margin uint32, blocks []block, value func(i int) float64) []shared {
+	if len(blocks) == 0 {
+		return nil
+	}
+	// index is the block whose range holds code c.
+	index := func(c uint64) int {
+		j, _ := slices.BinarySearchFunc(blocks, c+1, func(b block, t uint64) int {
+			switch {
+			case b.code < t:
+				return -1
+			case b.code > t:
+				return 1
+			}
+			return 0
+		})
+		return max(j-1, 0)
+	}
+	var out []shared
+	for i, a := range areas {
+		if !(a.Dots > 0) {
+			continue
+		}
+		x0, y0, x1, y1 := worldBound(a.Bound)
+		cols, by0, by1 := marginBox(s, margin, x0, y0, x1, y1)
+		var spans [][2]int
+		zRanges(s, cols, by0, by1, func(first, last uint64) {
+			spans = append(spans, [2]int{index(first), index(last)})
+		})
+		slices.SortFunc(spans, func(x, y [2]int) int { return x[0] - y[0] })
+		merged := spans[:0]
+		for _, sp := range spans {
+			if k := len(merged) - 1; k >= 0 && sp[0] <= merged[k][1]+1 {
+				merged[k][1] = max(merged[k][1], sp[1])
+				continue
+			}
+			merged = append(merged, sp)
+		}
+		if len(merged) > 0 {
+			out = append(out, shared{w: value(i), spans: merged})
+		}
+	}
+	return out
+}
+
+// zRanges calls emit with the Z-order code ranges [first, last] of the
+// blocks of zoom s in columns cols (inclusive ranges) and rows by0 … by1,
+// as few as a quadtree descent gives.
+func zRanges(s int, cols [][2]int64, by0, by1 int64, emit func(first, last uint64)) {
+	var descend func(z int, x, y int64)
+	descend = func(z int, x, y int64) {
+		d := uint(s - z)
+		x0, x1 := x<<d, (x+1)<<d-1
+		y0, y1 := y<<d, (y+1)<<d-1
+		if y1 < by0 || y0 > by1 {
+			return
+		}
+		meets, inside := false, false
+		for _, c := range cols {
+			if x1 < c[0] || x0 > c[1] {
+				continue
+			}
+			meets = true
+			inside = inside || (x0 >= c[0] && x1 <= c[1] && y0 >= by0 && y1 <= by1)
+		}
+		if !meets {
+			return
+		}
+		if inside || z == s {
+			first := morton(s, int(x0), int(y0))
+			emit(first, first+(uint64(1)<<(2*d))-1)
+			return
+		}
+		for q := int64(0); q < 4; q++ {
+			descend(z+1, 2*x+(q&1), 2*y+(q>>1))
+		}
+	}
+	descend(0, 0, 0)
 }
 
 // sumByShard adds block values up per shard.
@@ -436,28 +573,34 @@ func (l *Layout) Touches(i int, b orb.Bound) bool {
 	return l.touchesCells(i, x0, y0, x1, y1)
 }
 
-func (l *Layout) touchesCells(i int, x0, y0, x1, y1 uint32) bool {
-	m := int64(l.Margin)
+// marginBox gives the blocks of zoom s within margin cells of the world
+// cells x0 … x1, y0 … y1: column ranges (inclusive, after wrapping around
+// the antimeridian) and the rows by0 … by1.
+func marginBox(s int, margin uint32, x0, y0, x1, y1 uint32) (cols [][2]int64, by0, by1 int64) {
+	m := int64(margin)
 	ws := int64(dotstore.WorldSize)
 	ya, yb := max(int64(y0)-m, 0), min(int64(y1)+m, ws-1)
 	xa, xb := int64(x0)-m, int64(x1)+m
-	sh := uint(dotstore.WorldBits - l.Split)
-	nb := int64(1) << l.Split
-	by0, by1 := ya>>sh, yb>>sh
-	var cols [][2]int64 // block column ranges, after wrapping
+	sh := uint(dotstore.WorldBits - s)
+	nb := int64(1) << s
+	by0, by1 = ya>>sh, yb>>sh
 	if xb-xa+1 >= ws {
-		cols = [][2]int64{{0, nb - 1}}
-	} else {
-		if xa < 0 {
-			cols = append(cols, [2]int64{(xa + ws) >> sh, nb - 1})
-			xa = 0
-		}
-		if xb >= ws {
-			cols = append(cols, [2]int64{0, (xb - ws) >> sh})
-			xb = ws - 1
-		}
-		cols = append(cols, [2]int64{xa >> sh, xb >> sh})
+		return [][2]int64{{0, nb - 1}}, by0, by1
 	}
+	if xa < 0 {
+		cols = append(cols, [2]int64{(xa + ws) >> sh, nb - 1})
+		xa = 0
+	}
+	if xb >= ws {
+		cols = append(cols, [2]int64{0, (xb - ws) >> sh})
+		xb = ws - 1
+	}
+	cols = append(cols, [2]int64{xa >> sh, xb >> sh})
+	return cols, by0, by1
+}
+
+func (l *Layout) touchesCells(i int, x0, y0, x1, y1 uint32) bool {
+	cols, by0, by1 := marginBox(l.Split, l.Margin, x0, y0, x1, y1)
 	// Quick test: is any of the shard's Z-order range inside the box's
 	// range of codes? Otherwise scan the box's blocks.
 	lo, hi := l.Lo[i], l.Lo[i+1]

@@ -427,6 +427,11 @@ type PlaceOptions struct {
 	// Masks, when set, are the map's masks (Input.Masks); nil reads the
 	// map's mask files.
 	Masks *sample.Mask
+	// Keep, when set, picks the dots to store by key: dots for which it
+	// returns false are placed (and counted in the results) but not added
+	// to the store. A feature's dots do not depend on which others are
+	// placed, so the store holds exactly the kept dots of a full placement.
+	Keep func(key uint64) bool
 }
 
 // Place samples every feature's dots into a sorted in-memory store;
@@ -511,7 +516,11 @@ func PlaceStore(ctx context.Context, layer *geo.Layer, counts [][]float64, m *ma
 				}
 				results[i] = sample.FeatureN(&layer.Features[i], dots[i], sopt, func(cat int, p orb.Point) {
 					x, y := dotstore.World(p[0], p[1])
-					buf = append(buf, dotstore.Key(x, y, cat))
+					k := dotstore.Key(x, y, cat)
+					if opt.Keep != nil && !opt.Keep(k) {
+						return
+					}
+					buf = append(buf, k)
 					if len(buf) == block {
 						flush()
 					}
