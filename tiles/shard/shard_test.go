@@ -363,8 +363,9 @@ func treeFiles(t *testing.T, dir string) map[string][]byte {
 }
 
 // TestPartsAndFinalStepEqualOneWrite: tiles.Write of all dots is the
-// reference. Each part keeps its dots (Keeps) and writes zooms split…max;
-// its own tiles must equal the reference's, and the final step's tiles of
+// reference. Each part keeps its dots (Keeps) and writes zooms split…max
+// with a Keep of its own tiles: it must write those and no other, equal to
+// the reference's, and the final step's tiles of
 // zooms min…split−1, drawn from the parts' summaries, too. Dots sit on
 // both sides of the antimeridian, where tiles wrap.
 func TestPartsAndFinalStepEqualOneWrite(t *testing.T) {
@@ -417,6 +418,7 @@ func TestPartsAndFinalStepEqualOneWrite(t *testing.T) {
 				part := filepath.Join(root, fmt.Sprint("part", i))
 				o := opt
 				o.Dir, o.MinZoom = part, split
+				o.Keep = func(z, x, y int) bool { return l.Owner(z, x, y) == i }
 				if _, err := tiles.Write(ctx, dotstore.FromSorted(kept), o); err != nil {
 					t.Fatal(err)
 				}
@@ -424,6 +426,7 @@ func TestPartsAndFinalStepEqualOneWrite(t *testing.T) {
 					var z, x, y int
 					fmt.Sscanf(path, "%d/%d/%d", &z, &x, &y)
 					if l.Owner(z, x, y) != i {
+						t.Errorf("part %d drew %s, which part %d owns", i, path, l.Owner(z, x, y))
 						continue
 					}
 					dst := filepath.Join(union, filepath.FromSlash(path))
