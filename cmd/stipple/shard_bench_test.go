@@ -1,17 +1,24 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"fmt"
+	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"slices"
+	"strconv"
+	"strings"
 	"testing"
+	"time"
 
 	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles/shard"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // BenchmarkShardBalance measures, on the national input (synthetic
@@ -104,4 +111,198 @@ func BenchmarkShardBalance(b *testing.B) {
 			}
 		}
 	}
+}
+
+// BenchmarkShardParts renders the national input as N = 2, 4 and 16 parts,
+// each a separate `stipple render --shard I/N --workers 2` process run one
+// after another (then the final step), and prints, per N, the largest part
+// over the mean of wall time, of CPU time (user + sys of the process) and
+// of the layout's estimate, with the sums. It then fits the parts' CPU
+// time to what they did (dots sampled, dot-zooms drawn, tiles written and
+// a fixed cost per part) by least squares and prints the fitted rates as
+// a shard.Rates literal, to paste into MeasuredRates (the disc/count ratio
+// of drawing a dot is kept as it is). Environment:
+//
+//	STIPPLE_SHARD_PER_DOT  people per dot (default 10, the BENCHMARKS.md figures)
+//	STIPPLE_SHARD_N        comma-separated part counts (default 2,4,16)
+//	STIPPLE_SHARD_DIR      folder for the outputs (default: a temporary one;
+//	                       use a folder on the disk to be measured)
+//	STIPPLE_SHARD_WORKERS  --workers of every part (default 2)
+//
+// It needs ../../../shared/data (skipped without it). For example:
+//
+//	STIPPLE_SHARD_PER_DOT=100 go test ./cmd/stipple -run '^$' -bench ShardParts -benchtime 1x -timeout 3h
+func BenchmarkShardParts(b *testing.B) {
+	path := filepath.Join("..", "..", "examples", "us-counties-synthetic", "map.toml")
+	m, err := mapfile.Read(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if _, err := os.Stat(m.Resolve(m.Input.File)); err != nil {
+		b.Skipf("national input not here: %v", err)
+	}
+	perDot := envOr(b, "STIPPLE_SHARD_PER_DOT", "10")
+	workers := envOr(b, "STIPPLE_SHARD_WORKERS", "2")
+	var counts []int
+	for _, f := range strings.Split(envOr(b, "STIPPLE_SHARD_N", "2,4,16"), ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(f))
+		if err != nil || n < 1 {
+			b.Fatalf("STIPPLE_SHARD_N: %q is not a part count", f)
+		}
+		counts = append(counts, n)
+	}
+	if m.PeoplePerDot, err = strconv.ParseFloat(perDot, 64); err != nil || !(m.PeoplePerDot > 0) {
+		b.Fatalf("STIPPLE_SHARD_PER_DOT: %q is not a positive number", perDot)
+	}
+	root := os.Getenv("STIPPLE_SHARD_DIR")
+	if root == "" {
+		root = b.TempDir()
+	}
+	bin := filepath.Join(b.TempDir(), "stipple")
+	gob := exec.Command("go", "build", "-o", bin, ".")
+	gob.Env = append(os.Environ(), "CGO_ENABLED=0")
+	if out, err := gob.CombinedOutput(); err != nil {
+		b.Fatalf("go build: %v\n%s", err, out)
+	}
+	in, err := build.LoadInput(m, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	// run runs the binary and returns its wall and CPU seconds.
+	run := func(args ...string) (wall, cpu float64) {
+		c := exec.Command(bin, append([]string{"render", path, "--per-dot", perDot, "--workers", workers}, args...)...)
+		var out bytes.Buffer
+		c.Stdout, c.Stderr = &out, &out
+		t0 := time.Now()
+		if err := c.Run(); err != nil {
+			b.Fatalf("%s: %v\n%s", strings.Join(c.Args, " "), err, out.String())
+		}
+		wall = time.Since(t0).Seconds()
+		cpu = (c.ProcessState.UserTime() + c.ProcessState.SystemTime()).Seconds()
+		return wall, cpu
+	}
+	ratio := func(v []float64) float64 {
+		s := 0.0
+		for _, x := range v {
+			s += x
+		}
+		return slices.Max(v) / (s / float64(len(v)))
+	}
+	sum := func(v []float64) float64 {
+		s := 0.0
+		for _, x := range v {
+			s += x
+		}
+		return s
+	}
+	r := shard.MeasuredRates
+	look := build.Look(m)
+	// One row per part for the fit: sampled dots, disc-equivalent
+	// dot-zooms, tiles, 1; and its CPU seconds.
+	var rows [][4]float64
+	var cpus []float64
+	var table []string
+	b.ResetTimer()
+	for _, n := range counts {
+		l, err := layoutFor(m, in, n, false)
+		if err != nil {
+			b.Fatal(err)
+		}
+		zoomsPerDot := 0.0 // dot-zooms per own dot, in disc dot-zooms
+		for z := l.Split; z <= m.Tiles.MaxZoom; z++ {
+			if look(z).Diameter >= 1 {
+				zoomsPerDot++
+			} else {
+				zoomsPerDot += r.CountNsPerDot / r.DiscNsPerDot
+			}
+		}
+		out := filepath.Join(root, fmt.Sprintf("n%d", n))
+		os.RemoveAll(out)
+		walls, cpuN := make([]float64, n), make([]float64, n)
+		for i := 0; i < n; i++ {
+			walls[i], cpuN[i] = run("--out", out, "--shard", fmt.Sprintf("%d/%d", i, n))
+			rep, _, ok, err := shard.ReadReport(context.Background(), sink.NewDir(out), i, n)
+			if err != nil || !ok {
+				b.Fatalf("part %d/%d: no report (%v)", i, n, err)
+			}
+			tl := float64(zoomTiles(rep.Zooms))
+			rows = append(rows, [4]float64{float64(rep.DotsSampled), float64(rep.DotsOwned) * zoomsPerDot, tl, 1})
+			cpus = append(cpus, cpuN[i])
+			b.Logf("N=%d part %2d: wall %6.2f s, CPU %6.2f s; sampled %9d dots, kept %9d, own %9d, tiles %7.0f; estimate %6.2f core-s",
+				n, i, walls[i], cpuN[i], rep.DotsSampled, rep.DotsKept, rep.DotsOwned, tl, l.Weight[i])
+		}
+		fw, _ := run("--out", out, "--shard", fmt.Sprintf("final/%d", n))
+		table = append(table, fmt.Sprintf("| %d | %d | **%.2f** | **%.2f** | %.2f | %.0f s | %.0f s | %.1f s |",
+			n, l.Split, ratio(walls), ratio(cpuN), l.Imbalance(), sum(walls), sum(cpuN), fw))
+		if err := os.RemoveAll(out); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.StopTimer()
+	fmt.Printf("\nper dot %s, --workers %s, parts one after another (CPU = user + sys)\n\n", perDot, workers)
+	fmt.Println("| N | split zoom | wall max/mean | CPU max/mean | estimate max/mean | sum of wall | sum of CPU | final step |")
+	fmt.Println("|---|---|---|---|---|---|---|---|")
+	for _, row := range table {
+		fmt.Println(row)
+	}
+	c, ok := leastSquares(rows, cpus)
+	if !ok {
+		fmt.Println("\nthe fit is singular (too few parts?)")
+		return
+	}
+	fmt.Printf("\nCPU fit over %d parts: %.0f ns per sampled dot, %.0f ns per disc dot-zoom, %.3f ms per tile, %.2f s fixed per part\n",
+		len(rows), c[0]*1e9, c[1]*1e9, c[2]*1e3, c[3])
+	if c[0] <= 0 || c[1] <= 0 || c[2] <= 0 {
+		fmt.Println("a rate came out ≤ 0: too few or too alike parts to fit; keep MeasuredRates")
+		return
+	}
+	fmt.Printf("\nshard.Rates{SampleNsPerDot: %.0f, CountNsPerDot: %.1f, DiscNsPerDot: %.0f, TileNs: %.3ge6, CountBytes: %.0f, DiscBytes: %.0f}\n",
+		c[0]*1e9, c[1]*1e9*r.CountNsPerDot/r.DiscNsPerDot, c[1]*1e9, c[2]*1e3, r.CountBytes, r.DiscBytes)
+}
+
+func envOr(b *testing.B, name, def string) string {
+	if v := strings.TrimSpace(os.Getenv(name)); v != "" {
+		return v
+	}
+	return def
+}
+
+// leastSquares solves min |X c − y|² through the normal equations
+// (Gaussian elimination with partial pivoting); ok is false when they are
+// singular.
+func leastSquares(x [][4]float64, y []float64) (c [4]float64, ok bool) {
+	var a [4][5]float64
+	for k, row := range x {
+		for i := 0; i < 4; i++ {
+			for j := 0; j < 4; j++ {
+				a[i][j] += row[i] * row[j]
+			}
+			a[i][4] += row[i] * y[k]
+		}
+	}
+	for col := 0; col < 4; col++ {
+		p := col
+		for i := col + 1; i < 4; i++ {
+			if math.Abs(a[i][col]) > math.Abs(a[p][col]) {
+				p = i
+			}
+		}
+		if math.Abs(a[p][col]) < 1e-12*math.Max(math.Abs(a[col][col]), 1) || a[p][col] == 0 {
+			return c, false
+		}
+		a[col], a[p] = a[p], a[col]
+		for i := 0; i < 4; i++ {
+			if i == col {
+				continue
+			}
+			f := a[i][col] / a[col][col]
+			for j := col; j < 5; j++ {
+				a[i][j] -= f * a[col][j]
+			}
+		}
+	}
+	for i := 0; i < 4; i++ {
+		c[i] = a[i][4] / a[i][i]
+	}
+	return c, true
 }
