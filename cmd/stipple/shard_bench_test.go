@@ -228,7 +228,8 @@ func BenchmarkShardParts(b *testing.B) {
 			tl := float64(zoomTiles(rep.Zooms))
 			rows = append(rows, [4]float64{float64(rep.DotsSampled), float64(rep.DotsOwned) * zoomsPerDot, tl, 1})
 			cpus = append(cpus, cpuN[i])
-			b.Logf("N=%d part %2d: wall %6.2f s, CPU %6.2f s; sampled %9d dots, kept %9d, own %9d, tiles %7.0f; estimate %6.2f core-s",
+			// Printed, not logged: a benchmark's log keeps only its first lines.
+			fmt.Printf("N=%d part %2d: wall %6.2f s, CPU %6.2f s; sampled %9d dots, kept %9d, own %9d, tiles %7.0f; estimate %6.2f core-s\n",
 				n, i, walls[i], cpuN[i], rep.DotsSampled, rep.DotsKept, rep.DotsOwned, tl, l.Weight[i])
 		}
 		fw, _ := run("--out", out, "--shard", fmt.Sprintf("final/%d", n))
