@@ -4,6 +4,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"math/bits"
 )
 
 // One is the fixed-point weight of a pixel fully covered by one opaque dot.
@@ -20,34 +21,45 @@ type Canvas struct {
 	NCat int
 	// Cov holds coverage as Cov[(y*W+x)*NCat+cat].
 	Cov []uint32
-	// tot[y*W+x] is the pixel's coverage summed over categories
-	// (saturating), so compositing skips empty pixels with one load.
-	tot []uint32
-	// rows[y] is set once coverage lands on row y, and x0[y] ≤ x < x1[y]
-	// bounds the pixels it touched there.
+	// rows[y] is set once coverage lands on row y; bit x%64 of
+	// mask[y*wpr+x/64] once it lands on pixel (x, y). Compositing and
+	// clearing visit the marked pixels only.
 	rows    []bool
-	x0, x1  []int32
+	mask    []uint64
+	wpr     int // mask words per row
 	touched bool
 }
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
-	c := &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat), tot: make([]uint32, w*h), rows: make([]bool, h), x0: make([]int32, h), x1: make([]int32, h)}
-	for y := range c.x0 {
-		c.x0[y] = int32(w)
-	}
-	return c
+	wpr := (w + 63) / 64
+	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat),
+		rows: make([]bool, h), mask: make([]uint64, wpr*h), wpr: wpr}
 }
 
-// mark records that pixels x0 ≤ x < x1 of row y received coverage.
+// mark records that pixels x0 ≤ x < x1 (x0 < x1) of row y received
+// coverage.
 func (c *Canvas) mark(y, x0, x1 int) {
 	c.rows[y] = true
-	if int32(x0) < c.x0[y] {
-		c.x0[y] = int32(x0)
+	m := c.mask[y*c.wpr : (y+1)*c.wpr]
+	w0, w1 := x0>>6, (x1-1)>>6
+	lo := ^uint64(0) << (x0 & 63)
+	hi := ^uint64(0) >> (63 - (x1-1)&63)
+	if w0 == w1 {
+		m[w0] |= lo & hi
+		return
 	}
-	if int32(x1) > c.x1[y] {
-		c.x1[y] = int32(x1)
+	m[w0] |= lo
+	for w := w0 + 1; w < w1; w++ {
+		m[w] = ^uint64(0)
 	}
+	m[w1] |= hi
+}
+
+// mark1 records that pixel (x, y) received coverage.
+func (c *Canvas) mark1(x, y int) {
+	c.rows[y] = true
+	c.mask[y*c.wpr+x>>6] |= 1 << (x & 63)
 }
 
 // Reset clears the canvas for reuse.
@@ -55,14 +67,21 @@ func (c *Canvas) Reset() {
 	if !c.touched {
 		return
 	}
-	n := c.W * c.NCat
+	n := c.NCat
 	for y, used := range c.rows {
-		if used {
-			clear(c.Cov[y*n+int(c.x0[y])*c.NCat : y*n+int(c.x1[y])*c.NCat])
-			clear(c.tot[y*c.W+int(c.x0[y]) : y*c.W+int(c.x1[y])])
-			c.rows[y] = false
-			c.x0[y], c.x1[y] = int32(c.W), 0
+		if !used {
+			continue
 		}
+		m := c.mask[y*c.wpr : (y+1)*c.wpr]
+		for wi, bitsLeft := range m {
+			for bitsLeft != 0 {
+				p := y*c.W + wi<<6 + bits.TrailingZeros64(bitsLeft)
+				bitsLeft &= bitsLeft - 1
+				clear(c.Cov[p*n : p*n+n])
+			}
+			m[wi] = 0
+		}
+		c.rows[y] = false
 	}
 	c.touched = false
 }
@@ -120,8 +139,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 				continue
 			}
 			c.Cov[(row+px)*n+cat] += w
-			c.addTot(row+px, w)
-			c.mark(py, px, px+1)
+			c.mark1(px, py)
 			c.touched = true
 		}
 	}
@@ -145,17 +163,8 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*c.NCat+cat] += v
-		c.addTot(py*c.W+px, v)
-		c.mark(py, px, px+1)
+		c.mark1(px, py)
 		c.touched = true
-	}
-}
-
-func (c *Canvas) addTot(p int, w uint32) {
-	if t := c.tot[p] + w; t >= w {
-		c.tot[p] = t
-	} else {
-		c.tot[p] = math.MaxUint32
 	}
 }
 
@@ -167,16 +176,7 @@ func (c *Canvas) Count(cat, px, py int) {
 	if c.Cov[i] != math.MaxUint32 {
 		c.Cov[i]++
 	}
-	if c.tot[p] != math.MaxUint32 {
-		c.tot[p]++
-	}
-	c.rows[py] = true
-	if int32(px) < c.x0[py] {
-		c.x0[py] = int32(px)
-	}
-	if int32(px) >= c.x1[py] {
-		c.x1[py] = int32(px) + 1
-	}
+	c.mark1(px, py)
 	c.touched = true
 }
 
@@ -192,6 +192,26 @@ func (c *Canvas) Composite(colors []color.NRGBA, dst *image.NRGBA) {
 // clipped at fully opaque, and its colour the count-weighted mean. Counts
 // are summed in integers, so this too is independent of order.
 func (c *Canvas) CompositeCounts(colors []color.NRGBA, mass float64, dst *image.NRGBA) {
+	c.composite(colors, countGain(mass), dst)
+}
+
+// CompositeTile composites like Composite into t and leaves the canvas
+// empty: it clears each pixel as it reads it, which costs less than Reset.
+func (c *Canvas) CompositeTile(colors []color.NRGBA, t *Tile) {
+	t.start()
+	c.compositeInto(colors, 1<<gainBits, t.Image.Pix, t.Image.Stride, t, true)
+}
+
+// CompositeCountsTile composites like CompositeCounts into t and leaves the
+// canvas empty.
+func (c *Canvas) CompositeCountsTile(colors []color.NRGBA, mass float64, t *Tile) {
+	t.start()
+	c.compositeInto(colors, countGain(mass), t.Image.Pix, t.Image.Stride, t, true)
+}
+
+// countGain is the fixed-point gain that turns a dot count into coverage
+// for dots of the given mass.
+func countGain(mass float64) uint64 {
 	g := math.Round(mass * One * (1 << gainBits))
 	if g < 1 {
 		g = 1
@@ -199,75 +219,96 @@ func (c *Canvas) CompositeCounts(colors []color.NRGBA, mass float64, dst *image.
 	if g > 1<<40 {
 		g = 1 << 40
 	}
-	c.composite(colors, uint64(g), dst)
+	return uint64(g)
 }
 
 // gainBits is the fixed-point precision of the coverage gain.
 const gainBits = 16
 
 func (c *Canvas) composite(colors []color.NRGBA, gain uint64, dst *image.NRGBA) {
+	c.compositeInto(colors, gain, dst.Pix, dst.Stride, nil, false)
+}
+
+// compositeInto writes the canvas's pixels as NRGBA rows of stride bytes
+// into pix and, when t is not nil, their palette indices into t. With
+// drain, it clears every pixel it reads, leaving the canvas empty.
+func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, stride int, t *Tile, drain bool) {
 	n := c.NCat
 	const full = One << gainBits
 	// A sum at or above sat is fully opaque whatever the gain.
 	sat := (uint64(full) + gain - 1) / gain
 	var cr, cg, cb [64]uint64
+	var solid [64]uint32 // each category's colour at full alpha, packed
 	for k := 0; k < n && k < len(colors); k++ {
 		cr[k], cg[k], cb[k] = uint64(colors[k].R), uint64(colors[k].G), uint64(colors[k].B)
+		solid[k] = uint32(colors[k].R)<<24 | uint32(colors[k].G)<<16 | uint32(colors[k].B)<<8
 	}
 	for py := 0; py < c.H; py++ {
-		row := dst.Pix[py*dst.Stride : py*dst.Stride+4*c.W]
+		row := pix[py*stride : py*stride+4*c.W]
+		clear(row)
+		if t != nil {
+			clear(t.row(py))
+		}
 		if !c.rows[py] {
-			clear(row)
 			continue
 		}
-		cov := c.Cov[py*c.W*n : (py+1)*c.W*n]
-		tot := c.tot[py*c.W : (py+1)*c.W]
-		x0, x1 := int(c.x0[py]), int(c.x1[py])
-		clear(row[:4*x0])
-		clear(row[4*x1:])
-		for px := x0; px < x1; px++ {
-			o := row[4*px : 4*px+4 : 4*px+4]
-			t := tot[px]
-			if t == 0 {
-				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
-				continue
+		m := c.mask[py*c.wpr : (py+1)*c.wpr]
+		for wi, left := range m {
+			if drain {
+				m[wi] = 0
 			}
-			cell := cov[px*n : px*n+n]
-			var sum, r, g, b uint64
-			single := -1
-			for k, w := range cell {
-				if w == 0 {
+			for left != 0 {
+				px := wi<<6 + bits.TrailingZeros64(left)
+				left &= left - 1
+				p := py*c.W + px
+				cell := c.Cov[p*n : p*n+n : p*n+n]
+				// Sum in 64 bits; one category alone gives its own colour.
+				var sum uint64
+				single, cats := 0, 0
+				for k, w := range cell {
+					if w != 0 {
+						sum += uint64(w)
+						single = k
+						cats++
+					}
+				}
+				if cats == 0 {
 					continue
 				}
-				if w == t && single < 0 && t != math.MaxUint32 {
-					single = k // the pixel holds one category only
-					break
+				rgb := solid[single]
+				if cats > 1 {
+					var r, g, b uint64
+					for k, w := range cell {
+						ww := uint64(w)
+						r += ww * cr[k]
+						g += ww * cg[k]
+						b += ww * cb[k]
+					}
+					rgb = uint32((r+sum/2)/sum)<<24 | uint32((g+sum/2)/sum)<<16 | uint32((b+sum/2)/sum)<<8
 				}
-				ww := uint64(w)
-				sum += ww
-				r += ww * cr[k]
-				g += ww * cg[k]
-				b += ww * cb[k]
+				if drain {
+					clear(cell)
+				}
+				var a uint64 = 255
+				if sum < sat {
+					a = (sum*gain*255 + full/2) / full
+				}
+				if a == 0 {
+					continue
+				}
+				col := rgb | uint32(a)
+				o := row[4*px : 4*px+4 : 4*px+4]
+				o[0], o[1], o[2], o[3] = uint8(col>>24), uint8(col>>16), uint8(col>>8), uint8(col)
+				if t != nil {
+					t.add(py, px, col)
+				}
 			}
-			if single >= 0 {
-				sum = uint64(t)
-			}
-			var a uint64 = 255
-			if sum < sat {
-				a = (sum*gain*255 + full/2) / full
-			}
-			if a == 0 {
-				o[0], o[1], o[2], o[3] = 0, 0, 0, 0
-				continue
-			}
-			if single >= 0 {
-				o[0], o[1], o[2] = uint8(cr[single]), uint8(cg[single]), uint8(cb[single])
-			} else {
-				o[0] = uint8((r + sum/2) / sum)
-				o[1] = uint8((g + sum/2) / sum)
-				o[2] = uint8((b + sum/2) / sum)
-			}
-			o[3] = uint8(a)
 		}
+		if drain {
+			c.rows[py] = false
+		}
+	}
+	if drain {
+		c.touched = false
 	}
 }

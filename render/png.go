@@ -8,22 +8,20 @@ import (
 	"io"
 	"sync"
 
-	"github.com/klauspost/compress/zlib"
+	"github.com/stipple-maps/stipple/render/deflate"
 )
 
 // Encoder writes tiles as PNG (ISO/IEC 15948, "PNG Specification, Second
 // Edition"): indexed colour when the image has at most 256 distinct colours
 // (lossless then; bit depth 1, 2, 4 or 8 by palette size, with a tRNS chunk
-// for the palette's alpha), truecolour with alpha otherwise. Rows are stored
-// with filter type 0 (None) and compressed with klauspost/compress's zlib at
-// its fastest level: on dot tiles, mostly empty or flat runs, the per-row
-// filter choice of image/png costs most of its time and saves little (see
-// BenchmarkEncode); dense truecolour tiles use the Up filter (see
-// FilterAuto). The output depends on the pixels alone. An Encoder is
-// safe for concurrent use.
+// for the palette's alpha), truecolour with alpha otherwise. Indexed rows
+// and sparse truecolour rows are stored with filter type 0 (None); mostly
+// inked truecolour tiles use Up (see FilterAuto). The zlib stream comes from
+// render/deflate, which codes only runs and pixel repeats: on dot tiles,
+// mostly empty or flat, that is several times faster than general LZ77 and
+// about as small (BenchmarkEncode). The output depends on the pixels alone.
+// An Encoder is safe for concurrent use.
 type Encoder struct {
-	// Level is the zlib level; 0 means zlib.BestSpeed.
-	Level int
 	// Filter chooses the PNG row filter of truecolour tiles; indexed rows
 	// are never filtered.
 	Filter RowFilter
@@ -38,11 +36,9 @@ func NewEncoder() *Encoder { return &Encoder{} }
 type RowFilter int
 
 const (
-	// FilterAuto uses Up and Huffman-only compression on tiles that are
-	// mostly inked, None and the Level on the rest: on a dense tile, Up
-	// turns flat areas into zeros and Huffman coding alone then beats LZ77
-	// in speed and size; on a sparse one, None with LZ77 is smaller
-	// (BenchmarkEncode).
+	// FilterAuto uses Up on tiles that are mostly inked and None on the
+	// rest: on a dense tile, Up turns flat areas into runs of zeros; on a
+	// sparse one the empty space is zeros already and None costs nothing.
 	FilterAuto RowFilter = iota
 	FilterNone
 	FilterSub
@@ -50,61 +46,74 @@ const (
 )
 
 type encState struct {
-	// An open-addressing colour table; slot i is in use when gen[i] == cur.
-	keys   [paletteSlots]uint32
-	idx    [paletteSlots]uint8
-	gen    [paletteSlots]uint32
-	cur    uint32
-	pal    []uint32 // RGBA, big-endian packed, in order of first appearance
-	ind    []uint8  // palette index of every pixel
-	raw    []byte   // filtered scanlines
-	z      bytes.Buffer
-	zw     *zlib.Writer
-	huff   *zlib.Writer // Huffman-only, for dense truecolour tiles
-	out    bytes.Buffer
-	filter RowFilter
+	table colorTable
+	pal   []uint32 // RGBA, big-endian packed, in order of first appearance
+	ind   []uint8  // palette index of every pixel
+	raw   []byte   // filtered scanlines
+	z     []byte
+	out   bytes.Buffer
+	zlib  deflate.Encoder
 }
-
-const paletteSlots = 1024 // 4 × 256: short probe chains
 
 var pngSignature = []byte{0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'}
 
-// Encode writes img to w.
-func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
+func (e *Encoder) state() *encState {
 	st, _ := e.pool.Get().(*encState)
 	if st == nil {
 		st = &encState{}
-		lvl := e.Level
-		if lvl == 0 {
-			lvl = zlib.BestSpeed
-		}
-		zw, err := zlib.NewWriterLevel(&st.z, lvl)
-		if err != nil {
-			return err
-		}
-		st.zw = zw
-		st.filter = e.Filter
 	}
+	return st
+}
+
+// Encode writes img to w.
+func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
+	st := e.state()
 	defer e.pool.Put(st)
-	data, err := st.encode(img)
-	if err != nil {
-		return err
+	b := img.Bounds()
+	wd, h := b.Dx(), b.Dy()
+	var data []byte
+	if st.palettize(img, wd, h) {
+		data = st.write(wd, h, st.pal, st.ind, wd, 0)
+	} else {
+		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, e.Filter), 0, 0)
 	}
-	_, err = w.Write(data)
+	_, err := w.Write(data)
 	return err
 }
 
-func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
-	b := img.Bounds()
-	w, h := b.Dx(), b.Dy()
+// EncodeTile writes t, composited by Canvas.CompositeTile or
+// CompositeCountsTile, to w. It writes the bytes Encode writes for
+// t.Image, without the work of finding the colours again or copying rows:
+// both number the colours in order of first appearance after transparent,
+// which is always index 0.
+func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
+	st := e.state()
+	defer e.pool.Put(st)
+	var data []byte
+	if t.paletted {
+		data = st.write(t.w, t.h, t.pal, t.ind, 1+t.w, 1)
+	} else {
+		rows := t.rgba
+		if e.Filter != FilterNone && (e.Filter != FilterAuto || dense(t.Image, t.w, t.h)) {
+			rows = st.rgbaRows(t.Image, t.w, t.h, e.Filter)
+		}
+		data = st.write(t.w, t.h, nil, rows, 0, 0)
+	}
+	_, err := w.Write(data)
+	return err
+}
+
+// write makes the PNG file. With a palette, ind holds the indices, row y
+// at ind[y*stride+off:]; without one, rows holds the filtered truecolour
+// scanlines (passed as ind).
+func (st *encState) write(w, h int, pal []uint32, ind []byte, stride, off int) []byte {
 	st.out.Reset()
 	st.out.Write(pngSignature)
-	paletted := st.palettize(img, w, h)
 	var depth uint8 = 8
 	colorType := uint8(6) // truecolour with alpha
-	if paletted {
+	if pal != nil {
 		colorType = 3
-		switch n := len(st.pal); {
+		switch n := len(pal); {
 		case n <= 2:
 			depth = 1
 		case n <= 4:
@@ -118,11 +127,12 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 	binary.BigEndian.PutUint32(ihdr[4:], uint32(h))
 	ihdr[8], ihdr[9] = depth, colorType // compression, filter, interlace: 0
 	st.chunk("IHDR", ihdr[:])
-	if paletted {
-		plte := make([]byte, 0, 3*len(st.pal))
-		trns := make([]byte, 0, len(st.pal))
+	rows, bpp := ind, 4
+	if pal != nil {
+		plte := make([]byte, 0, 3*len(pal))
+		trns := make([]byte, 0, len(pal))
 		lastAlpha := 0
-		for i, c := range st.pal {
+		for i, c := range pal {
 			plte = append(plte, byte(c>>24), byte(c>>16), byte(c>>8))
 			a := byte(c)
 			trns = append(trns, a)
@@ -134,60 +144,45 @@ func (st *encState) encode(img *image.NRGBA) ([]byte, error) {
 		if lastAlpha > 0 {
 			st.chunk("tRNS", trns[:lastAlpha])
 		}
-		st.packRows(w, h, depth)
-	}
-	zw := st.zw
-	if !paletted && st.rgbaRows(img, w, h) {
-		// A dense tile after the Up filter is mostly small differences
-		// with few long repeats: Huffman coding alone is faster than LZ77
-		// there and no larger (BenchmarkEncode, dots=20000).
-		if st.huff == nil {
-			hw, err := zlib.NewWriterLevel(&st.z, zlib.HuffmanOnly)
-			if err != nil {
-				return nil, err
-			}
-			st.huff = hw
+		bpp = 1
+		if depth != 8 || off != 1 || stride != 1+w {
+			rows = st.packRows(ind, stride, off, w, h, depth)
 		}
-		zw = st.huff
 	}
-	st.z.Reset()
-	zw.Reset(&st.z)
-	if _, err := zw.Write(st.raw); err != nil {
-		return nil, err
-	}
-	if err := zw.Close(); err != nil {
-		return nil, err
-	}
-	st.chunk("IDAT", st.z.Bytes())
+	st.z = st.zlib.Zlib(st.z[:0], rows, bpp)
+	st.chunk("IDAT", st.z)
 	st.chunk("IEND", nil)
-	return st.out.Bytes(), nil
+	return st.out.Bytes()
 }
 
-// rgbaRows fills st.raw with truecolour scanlines of the chosen filter and
-// reports whether FilterAuto found the tile dense.
-func (st *encState) rgbaRows(img *image.NRGBA, w, h int) (dense bool) {
+// dense reports whether more than half of the pixels of every 8th row are
+// inked: FilterAuto's test for the Up filter.
+func dense(img *image.NRGBA, w, h int) bool {
+	inked, seen := 0, 0
+	for y := 0; y < h; y += 8 {
+		src := img.Pix[y*img.Stride:][:4*w]
+		for i := 3; i < len(src); i += 4 {
+			if src[i] != 0 {
+				inked++
+			}
+		}
+		seen += w
+	}
+	return 2*inked > seen
+}
+
+// rgbaRows returns truecolour scanlines of img with the given filter.
+func (st *encState) rgbaRows(img *image.NRGBA, w, h int, f RowFilter) []byte {
 	b := img.Bounds()
 	rowLen := 1 + 4*w
 	st.raw = grow(st.raw, rowLen*h)
 	row := func(y int) []byte {
 		return img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
 	}
-	f := st.filter
 	if f == FilterAuto {
-		// Inked share from every 8th row's alpha.
-		inked, seen := 0, 0
-		for y := 0; y < h; y += 8 {
-			src := row(y)
-			for i := 3; i < len(src); i += 4 {
-				if src[i] != 0 {
-					inked++
-				}
-			}
-			seen += w
-		}
 		f = FilterNone
-		if 2*inked > seen {
-			f, dense = FilterUp, true
+		if dense(img.SubImage(b).(*image.NRGBA), w, h) {
+			f = FilterUp
 		}
 	}
 	for y := 0; y < h; y++ {
@@ -213,7 +208,7 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int) (dense bool) {
 			copy(r[1:], src)
 		}
 	}
-	return dense
+	return st.raw
 }
 
 func grow(b []byte, n int) []byte {
@@ -224,19 +219,15 @@ func grow(b []byte, n int) []byte {
 }
 
 // palettize fills st.pal and st.ind and reports whether the image has at
-// most 256 colours.
+// most 256 colours, counting transparent (0, 0, 0, 0) whether it appears
+// or not.
 func (st *encState) palettize(img *image.NRGBA, w, h int) bool {
-	st.cur++
-	if st.cur == 0 { // wrapped: forget every slot
-		st.gen = [paletteSlots]uint32{}
-		st.cur = 1
-	}
-	st.pal = st.pal[:0]
-	if cap(st.ind) < w*h {
-		st.ind = make([]uint8, w*h)
-	}
-	st.ind = st.ind[:w*h]
-	last, lastIdx, have := uint32(0), uint8(0), false
+	// Transparent is always index 0, as in a Tile.
+	st.table.clear()
+	st.table.index(0, 0)
+	st.pal = append(st.pal[:0], 0)
+	st.ind = grow(st.ind, w*h)
+	last, lastIdx, have := uint32(0), uint8(0), true
 	b := img.Bounds()
 	for y := 0; y < h; y++ {
 		src := img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*w]
@@ -260,18 +251,14 @@ func (st *encState) palettize(img *image.NRGBA, w, h int) bool {
 				dst[x] = lastIdx
 				continue
 			}
-			slot := (c * 0x9E3779B1) >> 22
-			for st.gen[slot] == st.cur && st.keys[slot] != c {
-				slot = (slot + 1) & (paletteSlots - 1)
-			}
-			if st.gen[slot] != st.cur {
+			idx, isNew := st.table.index(c, len(st.pal))
+			if isNew {
 				if len(st.pal) == 256 {
 					return false
 				}
-				st.gen[slot], st.keys[slot], st.idx[slot] = st.cur, c, uint8(len(st.pal))
 				st.pal = append(st.pal, c)
 			}
-			last, lastIdx, have = c, st.idx[slot], true
+			last, lastIdx, have = c, idx, true
 			dst[x] = lastIdx
 		}
 	}
@@ -294,15 +281,16 @@ func zeroPixels(p []byte) int {
 	return i / 4
 }
 
-// packRows writes the palette indices as scanlines of the given bit depth,
+// packRows returns the palette indices as scanlines of the given bit depth,
 // each led by filter type 0, most significant bits first (PNG spec §7.2).
-func (st *encState) packRows(w, h int, depth uint8) {
+// Row y of the indices is ind[y*stride+off:][:w].
+func (st *encState) packRows(ind []byte, stride, off, w, h int, depth uint8) []byte {
 	per := 8 / int(depth)
 	rowLen := 1 + (w+per-1)/per
 	st.raw = grow(st.raw, rowLen*h)
 	for y := 0; y < h; y++ {
 		r := st.raw[y*rowLen : (y+1)*rowLen]
-		src := st.ind[y*w : (y+1)*w]
+		src := ind[y*stride+off:][:w]
 		r[0] = 0
 		if depth == 8 {
 			copy(r[1:], src)
@@ -331,6 +319,7 @@ func (st *encState) packRows(w, h int, depth uint8) {
 			out[x/per] |= src[x] << (8 - d*uint(x%per+1))
 		}
 	}
+	return st.raw
 }
 
 // chunk appends one PNG chunk: length, type, data, CRC-32 of type and data.

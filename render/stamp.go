@@ -12,8 +12,15 @@ const Sub = 16
 type Stamp struct {
 	d     Dot
 	reach int
-	// cells[f] lists the non-zero pixels of offset f = fy*Sub + fx.
+	// cells[f] lists the non-zero pixels of offset f = fy*Sub + fx, row by
+	// row; spans[f] has one entry per row they cover.
 	cells [Sub * Sub][]stampCell
+	spans [Sub * Sub][]stampSpan
+}
+
+// stampSpan is the stretch x0 ≤ dx < x1 of row dy that a stamp inks.
+type stampSpan struct {
+	dy, x0, x1 int32
 }
 
 type stampCell struct {
@@ -43,6 +50,16 @@ func NewStamp(d Dot) *Stamp {
 				}
 			}
 			s.cells[fy*Sub+fx] = cells
+			var spans []stampSpan
+			for _, e := range cells {
+				if k := len(spans) - 1; k >= 0 && spans[k].dy == e.dy {
+					spans[k].x0 = min(spans[k].x0, e.dx)
+					spans[k].x1 = max(spans[k].x1, e.dx+1)
+					continue
+				}
+				spans = append(spans, stampSpan{e.dy, e.dx, e.dx + 1})
+			}
+			s.spans[fy*Sub+fx] = spans
 		}
 	}
 	return s
@@ -75,7 +92,8 @@ func (s *Stamp) Reach() int { return s.reach }
 // values lie left of or above the canvas; such dots may still ink it).
 func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 	ix, iy := x>>4, y>>4 // floor division by Sub
-	cells := s.cells[(y&(Sub-1))*Sub+(x&(Sub-1))]
+	f := (y&(Sub-1))*Sub + (x & (Sub - 1))
+	cells := s.cells[f]
 	n := c.NCat
 	R := s.reach
 	if ix >= R && iy >= R && ix+R < c.W && iy+R < c.H {
@@ -84,10 +102,9 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 		for _, e := range cells {
 			off := int(e.dy)*c.W + int(e.dx)
 			c.Cov[base+off*n] += e.w
-			c.addTot(pix+off, e.w)
 		}
-		for py := iy - R; py <= iy+R; py++ {
-			c.mark(py, ix-R, ix+R+1)
+		for _, sp := range s.spans[f] {
+			c.mark(iy+int(sp.dy), ix+int(sp.x0), ix+int(sp.x1))
 		}
 		c.touched = true
 		return
@@ -98,8 +115,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 			continue
 		}
 		c.Cov[(py*c.W+px)*n+cat] += e.w
-		c.addTot(py*c.W+px, e.w)
-		c.mark(py, px, px+1)
+		c.mark1(px, py)
 		c.touched = true
 	}
 }

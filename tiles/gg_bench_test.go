@@ -63,7 +63,7 @@ func BenchmarkTileSet(b *testing.B) {
 					continue
 				}
 				buf.Reset()
-				if err := r.enc.Encode(&buf, img); err != nil {
+				if err := r.enc.EncodeTile(&buf, img); err != nil {
 					b.Fatal(err)
 				}
 				n++

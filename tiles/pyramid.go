@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"image"
 	"image/color"
 	"math/bits"
 	"os"
@@ -344,12 +343,12 @@ func (w *writer) do(r *tileRenderer, j job) error {
 			return w.account(j, fi.Size(), true)
 		}
 	}
-	img := r.render(j)
-	if img == nil {
+	t := r.render(j)
+	if t == nil {
 		return w.account(j, -1, false)
 	}
 	r.buf.Reset()
-	if err := r.enc.Encode(&r.buf, img); err != nil {
+	if err := r.enc.EncodeTile(&r.buf, t); err != nil {
 		return fmt.Errorf("tiles: %d/%d/%d: %w", j.z, j.x, j.y, err)
 	}
 	w.io <- tileFile{j: j, dir: dir, final: final, data: bytes.Clone(r.buf.Bytes())}
@@ -500,25 +499,25 @@ type tileRenderer struct {
 	w      *writer
 	ncat   int
 	canvas map[int]*render.Canvas // by tile size
-	img    map[int]*image.NRGBA
+	tile   map[int]*render.Tile
 	stamps map[string]*render.Stamp
 	enc    *render.Encoder
 	buf    bytes.Buffer
 }
 
 func newTileRenderer(w *writer, ncat int) *tileRenderer {
-	return &tileRenderer{w: w, ncat: ncat, canvas: map[int]*render.Canvas{}, img: map[int]*image.NRGBA{},
+	return &tileRenderer{w: w, ncat: ncat, canvas: map[int]*render.Canvas{}, tile: map[int]*render.Tile{},
 		stamps: map[string]*render.Stamp{}, enc: render.NewEncoder()}
 }
 
 // render draws one tile; nil when it has no ink.
-func (r *tileRenderer) render(j job) *image.NRGBA {
+func (r *tileRenderer) render(j job) *render.Tile {
 	T := j.p.size
 	c := r.canvas[T]
 	if c == nil {
 		c = render.NewCanvas(T, T, r.ncat)
 		r.canvas[T] = c
-		r.img[T] = image.NewNRGBA(image.Rect(0, 0, T, T))
+		r.tile[T] = render.NewTile(T, T)
 	}
 	c.Reset()
 	look := j.p.look(j.z)
@@ -527,8 +526,8 @@ func (r *tileRenderer) render(j job) *image.NRGBA {
 		if c.Empty() {
 			return nil
 		}
-		c.CompositeCounts(r.w.opt.Colors, look.Mass(), r.img[T])
-		return r.img[T]
+		c.CompositeCountsTile(r.w.opt.Colors, look.Mass(), r.tile[T])
+		return r.tile[T]
 	}
 	if look.Diameter > render.MaxStampDiameter {
 		look.Diameter = render.MaxStampDiameter
@@ -543,8 +542,8 @@ func (r *tileRenderer) render(j job) *image.NRGBA {
 	if c.Empty() {
 		return nil
 	}
-	c.Composite(r.w.opt.Colors, r.img[T])
-	return r.img[T]
+	c.CompositeTile(r.w.opt.Colors, r.tile[T])
+	return r.tile[T]
 }
 
 // count fills a count canvas: one per dot in the pixel holding its centre.
