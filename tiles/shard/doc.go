@@ -9,8 +9,11 @@
 // tiles of zoom S, and gives every block to one shard. Blocks are taken in
 // Z-order (the order of the dot store's keys) and cut into N contiguous runs
 // of about equal estimated work, so a shard is a compact region. Work is
-// counted from the dots, not from the area: each dot's sampling and drawing
-// at every zoom from S down, plus each tile the dots are expected to ink
+// counted from the dots, not from the area: each dot's drawing at every
+// zoom from S down, the sampling of every dot of each area near the run's
+// blocks (a part samples such an area whole, its own dots or not, so an
+// area across a cut is charged to both runs), plus each tile the dots are
+// expected to ink
 // (EstimateTiles: a tile costs about a millisecond to composite, encode and
 // write, and thinly peopled land has many tiles per dot), at MeasuredRates.
 // A tile of zoom z ≥ S belongs to the shard that owns the block above it.
