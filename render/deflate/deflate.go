@@ -342,11 +342,3 @@ func (w *bitWriter) flush() []byte {
 	}
 	return w.out
 }
-
-// Stats is for experiments.
-func (e *Encoder) Stats() (segs, lits int) {
-	for _, s := range e.segs {
-		lits += int(s.lits)
-	}
-	return len(e.segs), lits
-}
