@@ -264,19 +264,16 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 				cell := c.Cov[p*n : p*n+n : p*n+n]
 				// Sum in 64 bits; one category alone gives its own colour.
 				var sum uint64
-				single, cats := 0, 0
+				var inked uint64 // bit k: category k has coverage here
 				for k, w := range cell {
-					if w != 0 {
-						sum += uint64(w)
-						single = k
-						cats++
-					}
+					sum += uint64(w)
+					inked |= uint64((w|-w)>>31) << k
 				}
-				if cats == 0 {
+				if inked == 0 {
 					continue
 				}
-				rgb := solid[single]
-				if cats > 1 {
+				rgb := solid[bits.TrailingZeros64(inked)]
+				if inked&(inked-1) != 0 {
 					var r, g, b uint64
 					for k, w := range cell {
 						ww := uint64(w)

@@ -17,6 +17,7 @@ package deflate
 import (
 	"encoding/binary"
 	"math/bits"
+	"slices"
 )
 
 // minRun is the shortest run taken as a match: a shorter one costs about
@@ -79,10 +80,7 @@ func (e *Encoder) parse(data []byte, bpp int) uint32 {
 	for i < n {
 		k, d := nextMatch(data, i, bpp)
 		k = min(k, n)
-		for _, b := range data[i:k] {
-			e.lit[b]++
-		}
-		a.bytes(data[i:k])
+		e.literals(data[i:k], &a)
 		i = k
 		if d == 0 {
 			break
@@ -113,6 +111,25 @@ func (e *Encoder) parse(data []byte, bpp int) uint32 {
 	e.segs = append(e.segs, seg{lits: uint32(n - start)})
 	e.lit[endBlock]++
 	return a.sum()
+}
+
+// literals counts the literal bytes p and adds them to the checksum.
+func (e *Encoder) literals(p []byte, a *adler) {
+	if len(p)+a.since >= adlerBlock {
+		for _, b := range p {
+			e.lit[b]++
+		}
+		a.bytes(p)
+		return
+	}
+	s1, s2 := a.s1, a.s2
+	for _, b := range p {
+		e.lit[b]++
+		s1 += uint64(b)
+		s2 += s1
+	}
+	a.s1, a.s2 = s1, s2
+	a.since += len(p)
 }
 
 // nextMatch returns the first position from k on where a match of at least
@@ -217,7 +234,11 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		lit[b] = h.litLen.code[b] | uint32(h.litLen.len[b])<<16
 	}
 	ll, dc := &h.litLen, &h.distC
-	out, acc, nb := w.out, w.acc, w.nbits
+	// Room for the longest codes: 15 bits a literal, 48 a match.
+	o := len(w.out)
+	need := o + (15*len(data)+48*len(e.segs))/8 + 16
+	out := slices.Grow(w.out, need-o)[:need]
+	acc, nb := w.acc, w.nbits
 	pos := 0
 	for _, s := range e.segs {
 		lits := data[pos : pos+int(s.lits)]
@@ -230,7 +251,8 @@ func (e *Encoder) block(dst, data []byte) []byte {
 			acc |= (uint64(a&0xffff) | uint64(b&0xffff)<<la) << nb
 			nb += la + uint(b>>16)
 			if nb >= 32 {
-				out = binary.LittleEndian.AppendUint32(out, uint32(acc))
+				binary.LittleEndian.PutUint32(out[o:], uint32(acc))
+				o += 4
 				acc >>= 32
 				nb -= 32
 			}
@@ -241,7 +263,8 @@ func (e *Encoder) block(dst, data []byte) []byte {
 			acc |= uint64(a&0xffff) << nb
 			nb += uint(a >> 16)
 			if nb >= 32 {
-				out = binary.LittleEndian.AppendUint32(out, uint32(acc))
+				binary.LittleEndian.PutUint32(out[o:], uint32(acc))
+				o += 4
 				acc >>= 32
 				nb -= 32
 			}
@@ -262,19 +285,22 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		acc |= uint64(dc.code[c]) << nb
 		nb += uint(dc.len[c])
 		if nb >= 32 {
-			out = binary.LittleEndian.AppendUint32(out, uint32(acc))
+			binary.LittleEndian.PutUint32(out[o:], uint32(acc))
+			o += 4
 			acc >>= 32
 			nb -= 32
 		}
 		acc |= uint64(d-1-int(distBase[c])) << nb
 		nb += uint(distExtra[c])
 		if nb >= 32 {
-			out = binary.LittleEndian.AppendUint32(out, uint32(acc))
+			binary.LittleEndian.PutUint32(out[o:], uint32(acc))
+			o += 4
 			acc >>= 32
 			nb -= 32
 		}
 		pos += int(s.mlen)
 	}
+	out = out[:o]
 	w.out, w.acc, w.nbits = out, acc, nb
 	w.put(ll.code[endBlock], uint(ll.len[endBlock]))
 	return w.flush()
