@@ -19,22 +19,74 @@ type Canvas struct {
 	W, H int
 	// NCat is the number of categories.
 	NCat int
-	// Cov holds coverage as Cov[(y*W+x)*NCat+cat].
-	Cov []uint32
+	// A pixel covered by one category only (below 7) keeps its coverage
+	// in tot[y*W+x]; a pixel covered by several keeps it per category in
+	// cov[(y*W+x)*NCat+cat], which is zero elsewhere. Most pixels of a dot
+	// map hold one category, and tot is a fifth the size of cov.
+	tot []uint32
+	cov []uint32
 	// rows[y] is set once coverage lands on row y; bit x%64 of
 	// mask[y*wpr+x/64] once it lands on pixel (x, y). Compositing and
 	// clearing visit the marked pixels only.
 	rows    []bool
 	mask    []uint64
 	wpr     int // mask words per row
+	// cats[y*W+x] has bit k set when category k (k < 7) has coverage
+	// on the pixel, and bit 7 when any category from 7 on has; a pixel is
+	// single when cats is one bit below bit 7.
+	cats    []uint8
 	touched bool
+}
+
+// catBit is the bit of category k in Canvas.cats.
+func catBit(k int) uint8 { return 1 << min(k, 7) }
+
+// single reports whether a pixel with category bits cb holds exactly one
+// category, known by its bit.
+func single(cb uint8) bool { return cb != 0 && cb&(cb-1) == 0 && cb < 1<<7 }
+
+// deposit adds w to category cat of pixel q.
+func (c *Canvas) deposit(q, cat int, w uint32) {
+	cb := c.cats[q]
+	if bit := catBit(cat); cat < 7 && (cb == 0 || cb == bit) {
+		c.tot[q] += w
+		c.cats[q] = bit
+		return
+	}
+	c.mixed(q, cat, cb)[cat] += w
+}
+
+// mixed marks pixel q (category bits cb) as holding category cat besides
+// what it holds, moving a single category's coverage from tot into its
+// cell, and returns the pixel's cells.
+func (c *Canvas) mixed(q, cat int, cb uint8) []uint32 {
+	n := c.NCat
+	cell := c.cov[q*n : q*n+n : q*n+n]
+	if single(cb) {
+		cell[bits.TrailingZeros8(cb)] = c.tot[q]
+		c.tot[q] = 0
+	}
+	c.cats[q] = cb | catBit(cat)
+	return cell
+}
+
+// Coverage is the coverage (or count) of category cat at pixel (x, y).
+func (c *Canvas) Coverage(x, y, cat int) uint32 {
+	q := y*c.W + x
+	if cb := c.cats[q]; single(cb) {
+		if bits.TrailingZeros8(cb) == cat {
+			return c.tot[q]
+		}
+		return 0
+	}
+	return c.cov[q*c.NCat+cat]
 }
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
 	wpr := (w + 63) / 64
-	return &Canvas{W: w, H: h, NCat: ncat, Cov: make([]uint32, w*h*ncat),
-		rows: make([]bool, h), mask: make([]uint64, wpr*h), wpr: wpr}
+	return &Canvas{W: w, H: h, NCat: ncat, tot: make([]uint32, w*h), cov: make([]uint32, w*h*ncat),
+		rows: make([]bool, h), mask: make([]uint64, wpr*h), wpr: wpr, cats: make([]uint8, w*h)}
 }
 
 // mark records that pixels x0 ≤ x < x1 (x0 < x1) of row y received
@@ -77,13 +129,22 @@ func (c *Canvas) Reset() {
 			for bitsLeft != 0 {
 				p := y*c.W + wi<<6 + bits.TrailingZeros64(bitsLeft)
 				bitsLeft &= bitsLeft - 1
-				clear(c.Cov[p*n : p*n+n])
+				c.clearPixel(p, n)
 			}
 			m[wi] = 0
 		}
 		c.rows[y] = false
 	}
 	c.touched = false
+}
+
+// clearPixel empties pixel p.
+func (c *Canvas) clearPixel(p, n int) {
+	if !single(c.cats[p]) {
+		clear(c.cov[p*n : p*n+n])
+	}
+	c.tot[p] = 0
+	c.cats[p] = 0
 }
 
 // Empty reports whether no dot has touched the canvas.
@@ -121,7 +182,6 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 	y1 := int(math.Ceil(y + r + 0.5))
 	x0, y0 = max(x0, 0), max(y0, 0)
 	x1, y1 = min(x1, c.W), min(y1, c.H)
-	n := c.NCat
 	for py := y0; py < y1; py++ {
 		dy := float64(py) + 0.5 - y
 		row := py * c.W
@@ -138,7 +198,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 			if w == 0 {
 				continue
 			}
-			c.Cov[(row+px)*n+cat] += w
+			c.deposit(row+px, cat, w)
 			c.mark1(px, py)
 			c.touched = true
 		}
@@ -162,7 +222,7 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 		if v == 0 {
 			continue
 		}
-		c.Cov[(py*c.W+px)*c.NCat+cat] += v
+		c.deposit(py*c.W+px, cat, v)
 		c.mark1(px, py)
 		c.touched = true
 	}
@@ -172,9 +232,14 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 // saturating at the largest uint32.
 func (c *Canvas) Count(cat, px, py int) {
 	p := py*c.W + px
-	i := p*c.NCat + cat
-	if c.Cov[i] != math.MaxUint32 {
-		c.Cov[i]++
+	cb := c.cats[p]
+	if bit := catBit(cat); cat < 7 && (cb == 0 || cb == bit) {
+		if c.tot[p] != math.MaxUint32 {
+			c.tot[p]++
+		}
+		c.cats[p] = bit
+	} else if cell := c.mixed(p, cat, cb); cell[cat] != math.MaxUint32 {
+		cell[cat]++
 	}
 	c.mark1(px, py)
 	c.touched = true
@@ -261,30 +326,44 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 				px := wi<<6 + bits.TrailingZeros64(left)
 				left &= left - 1
 				p := py*c.W + px
-				cell := c.Cov[p*n : p*n+n : p*n+n]
-				// Sum in 64 bits; one category alone gives its own colour.
 				var sum uint64
-				var inked uint64 // bit k: category k has coverage here
-				for k, w := range cell {
-					sum += uint64(w)
-					inked |= uint64((w|-w)>>31) << k
-				}
-				if inked == 0 {
-					continue
-				}
-				rgb := solid[bits.TrailingZeros64(inked)]
-				if inked&(inked-1) != 0 {
-					var r, g, b uint64
-					for k, w := range cell {
-						ww := uint64(w)
-						r += ww * cr[k]
-						g += ww * cg[k]
-						b += ww * cb[k]
+				var rgb uint32 // packed colour, alpha byte zero
+				if pc := c.cats[p]; single(pc) {
+					// One category (the common case): its own colour.
+					sum = uint64(c.tot[p])
+					rgb = solid[bits.TrailingZeros8(pc)]
+					if drain {
+						c.tot[p] = 0
+						c.cats[p] = 0
 					}
-					rgb = uint32((r+sum/2)/sum)<<24 | uint32((g+sum/2)/sum)<<16 | uint32((b+sum/2)/sum)<<8
-				}
-				if drain {
-					clear(cell)
+				} else {
+					if pc == 0 {
+						continue
+					}
+					cell := c.cov[p*n : p*n+n : p*n+n]
+					var inked uint64 // bit k: category k has coverage here
+					for k, w := range cell {
+						sum += uint64(w)
+						inked |= uint64((w|-w)>>31) << k
+					}
+					if inked == 0 {
+						continue
+					}
+					rgb = solid[bits.TrailingZeros64(inked)]
+					if inked&(inked-1) != 0 {
+						var r, g, b uint64
+						for k, w := range cell {
+							ww := uint64(w)
+							r += ww * cr[k]
+							g += ww * cg[k]
+							b += ww * cb[k]
+						}
+						rgb = uint32((r+sum/2)/sum)<<24 | uint32((g+sum/2)/sum)<<16 | uint32((b+sum/2)/sum)<<8
+					}
+					if drain {
+						clear(cell)
+						c.cats[p] = 0
+					}
 				}
 				var a uint64 = 255
 				if sum < sat {

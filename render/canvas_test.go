@@ -10,9 +10,31 @@ import (
 	"testing"
 )
 
+// coverage lists every pixel's coverage per category, as
+// cov[(y*W+x)*NCat+cat], whichever way the canvas keeps it.
+func coverage(c *Canvas) []uint32 {
+	out := make([]uint32, c.W*c.H*c.NCat)
+	for y := 0; y < c.H; y++ {
+		for x := 0; x < c.W; x++ {
+			for k := 0; k < c.NCat; k++ {
+				out[(y*c.W+x)*c.NCat+k] = c.Coverage(x, y, k)
+			}
+		}
+	}
+	return out
+}
+
+// refCanvas is a plain per-category coverage array.
+type refCanvas struct {
+	W, H, NCat int
+	Cov        []uint32
+}
+
+func newRef(w, h, n int) *refCanvas { return &refCanvas{w, h, n, make([]uint32, w*h*n)} }
+
 // refStamp is the plain reference for AddStamp: every pixel of the canvas
 // gets the disc rule of Add for a centre at ((x+0.5)/Sub, (y+0.5)/Sub).
-func refStamp(c *Canvas, cat, x, y int, d Dot) {
+func refStamp(c *refCanvas, cat, x, y int, d Dot) {
 	r, ink := d.Diameter/2, d.Opacity*One
 	ix, iy := int(math.Floor(float64(x)/Sub)), int(math.Floor(float64(y)/Sub))
 	fx, fy := x-ix*Sub, y-iy*Sub
@@ -30,7 +52,7 @@ func TestAddStampMatchesReference(t *testing.T) {
 	for _, diam := range []float64{1, 1.5, 2.2, 3, 4.7, 9} {
 		d := Dot{Diameter: diam, Opacity: 0.8}
 		st := NewStamp(d)
-		got, want := NewCanvas(24, 20, 3), NewCanvas(24, 20, 3)
+		got, want := NewCanvas(24, 20, 3), newRef(24, 20, 3)
 		for i := 0; i < 300; i++ {
 			// Centres from well outside to well inside, edges included.
 			x, y := rng.IntN(40*Sub)-8*Sub, rng.IntN(36*Sub)-8*Sub
@@ -38,7 +60,7 @@ func TestAddStampMatchesReference(t *testing.T) {
 			got.AddStamp(cat, x, y, st)
 			refStamp(want, cat, x, y, d)
 		}
-		if !slices.Equal(got.Cov, want.Cov) {
+		if !slices.Equal(coverage(got), want.Cov) {
 			t.Errorf("diameter %v: AddStamp differs from the reference", diam)
 		}
 	}
@@ -55,9 +77,10 @@ func TestStampAgreesWithAdd(t *testing.T) {
 		x, y := 3*Sub+f%Sub, 4*Sub+f/Sub
 		a.AddStamp(0, x, y, st)
 		b.Add(0, (float64(x)+0.5)/Sub, (float64(y)+0.5)/Sub, d)
-		for i := range a.Cov {
-			if diff := int(a.Cov[i]) - int(b.Cov[i]); diff < -1 || diff > 1 {
-				t.Fatalf("step %d pixel %d: stamp %d, Add %d", f, i, a.Cov[i], b.Cov[i])
+		ac, bc := coverage(a), coverage(b)
+		for i := range ac {
+			if diff := int(ac[i]) - int(bc[i]); diff < -1 || diff > 1 {
+				t.Fatalf("step %d pixel %d: stamp %d, Add %d", f, i, ac[i], bc[i])
 			}
 		}
 	}
@@ -70,7 +93,7 @@ func refComposite(c *Canvas, colors []color.NRGBA, gain uint64) []uint8 {
 	for p := 0; p < c.W*c.H; p++ {
 		var sum, r, g, b uint64
 		for k := 0; k < c.NCat; k++ {
-			w := uint64(c.Cov[p*c.NCat+k])
+			w := uint64(c.Coverage(p%c.W, p/c.W, k))
 			sum += w
 			r += w * uint64(colors[k].R)
 			g += w * uint64(colors[k].G)
@@ -169,7 +192,7 @@ func TestResetClearsOnlyWhatWasUsed(t *testing.T) {
 		t.Fatal("canvas empty after drawing")
 	}
 	c.Reset()
-	if !c.Empty() || slices.ContainsFunc(c.Cov, func(v uint32) bool { return v != 0 }) {
+	if !c.Empty() || slices.ContainsFunc(coverage(c), func(v uint32) bool { return v != 0 }) {
 		t.Fatal("Reset left coverage behind")
 	}
 }
@@ -225,5 +248,29 @@ func BenchmarkComposite(b *testing.B) {
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		c.Composite(testColors, dst)
+	}
+}
+
+// BenchmarkDrawTile draws n 3-px dots on a reused canvas and composites
+// them into a reused Tile: the whole per-tile drawing cost.
+func BenchmarkDrawTile(b *testing.B) {
+	for _, n := range []int{0, 1, 350, 5000} {
+		b.Run(fmt.Sprintf("dots=%d", n), func(b *testing.B) {
+			c := NewCanvas(256, 256, 5)
+			t := NewTile(256, 256)
+			st := NewStamp(Dot{Diameter: 3, Opacity: 0.9})
+			rng := rand.New(rand.NewPCG(2, 2))
+			type dot struct{ cat, x, y int }
+			dots := make([]dot, n)
+			for i := range dots {
+				dots[i] = dot{rng.IntN(5), rng.IntN(256 * Sub), rng.IntN(256 * Sub)}
+			}
+			for b.Loop() {
+				for _, d := range dots {
+					c.AddStamp(d.cat, d.x, d.y, st)
+				}
+				c.CompositeTile(testColors, t)
+			}
+		})
 	}
 }

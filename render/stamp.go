@@ -94,14 +94,25 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 	ix, iy := x>>4, y>>4 // floor division by Sub
 	f := (y&(Sub-1))*Sub + (x & (Sub - 1))
 	cells := s.cells[f]
-	n := c.NCat
 	R := s.reach
 	if ix >= R && iy >= R && ix+R < c.W && iy+R < c.H {
 		pix := iy*c.W + ix
-		base := pix*n + cat
-		for _, e := range cells {
-			off := int(e.dy)*c.W + int(e.dx)
-			c.Cov[base+off*n] += e.w
+		if cat < 7 {
+			bit := uint8(1) << cat
+			for _, e := range cells {
+				q := pix + int(e.dy)*c.W + int(e.dx)
+				if cb := c.cats[q]; cb == 0 || cb == bit {
+					c.tot[q] += e.w
+					c.cats[q] = bit
+				} else {
+					c.mixed(q, cat, cb)[cat] += e.w
+				}
+			}
+		} else {
+			for _, e := range cells {
+				q := pix + int(e.dy)*c.W + int(e.dx)
+				c.mixed(q, cat, c.cats[q])[cat] += e.w
+			}
 		}
 		for _, sp := range s.spans[f] {
 			c.mark(iy+int(sp.dy), ix+int(sp.x0), ix+int(sp.x1))
@@ -114,7 +125,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 		if px < 0 || py < 0 || px >= c.W || py >= c.H {
 			continue
 		}
-		c.Cov[(py*c.W+px)*n+cat] += e.w
+		c.deposit(py*c.W+px, cat, e.w)
 		c.mark1(px, py)
 		c.touched = true
 	}
