@@ -94,7 +94,7 @@ func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
 		data = st.write(t.w, t.h, t.pal, t.ind, 1+t.w, 1)
 	} else {
 		rows := t.rgba
-		if e.Filter != FilterNone && (e.Filter != FilterAuto || dense(t.Image, t.w, t.h)) {
+		if e.Filter != FilterNone && (e.Filter != FilterAuto || 2*t.inked > t.w*t.h) {
 			rows = st.rgbaRows(t.Image, t.w, t.h, e.Filter)
 		}
 		data = st.write(t.w, t.h, nil, rows, 0, 0)
@@ -155,20 +155,19 @@ func (st *encState) write(w, h int, pal []uint32, ind []byte, stride, off int) [
 	return st.out.Bytes()
 }
 
-// dense reports whether more than half of the pixels of every 8th row are
-// inked: FilterAuto's test for the Up filter.
+// dense reports whether more than half of the pixels have ink (alpha not
+// zero): FilterAuto's test for the Up filter.
 func dense(img *image.NRGBA, w, h int) bool {
-	inked, seen := 0, 0
-	for y := 0; y < h; y += 8 {
+	inked := 0
+	for y := 0; y < h; y++ {
 		src := img.Pix[y*img.Stride:][:4*w]
 		for i := 3; i < len(src); i += 4 {
 			if src[i] != 0 {
 				inked++
 			}
 		}
-		seen += w
 	}
-	return 2*inked > seen
+	return 2*inked > w*h
 }
 
 // rgbaRows returns truecolour scanlines of img with the given filter.

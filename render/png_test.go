@@ -180,3 +180,109 @@ func BenchmarkEncode(b *testing.B) {
 		run("image-png-bestspeed", func(w *bytes.Buffer) error { return fast.Encode(w, img) })
 	}
 }
+
+// BenchmarkEncodeTile encodes composited tiles like those of a city's
+// zooms 10–12: a few hundred 3-px dots, or thousands of 1.5-px ones.
+func BenchmarkEncodeTile(b *testing.B) {
+	for _, tc := range []struct {
+		dots int
+		diam float64
+	}{{350, 3}, {1500, 2.1}, {5000, 1.5}} {
+		b.Run(fmt.Sprintf("dots=%d", tc.dots), func(b *testing.B) {
+			c := NewCanvas(256, 256, 5)
+			t := NewTile(256, 256)
+			st := NewStamp(Dot{Diameter: tc.diam, Opacity: 0.9})
+			rng := rand.New(rand.NewPCG(2, 2))
+			for range tc.dots {
+				c.AddStamp(rng.IntN(5), rng.IntN(256*Sub), rng.IntN(256*Sub), st)
+			}
+			c.CompositeTile(testColors, t)
+			e := NewEncoder()
+			var buf bytes.Buffer
+			for b.Loop() {
+				buf.Reset()
+				e.EncodeTile(&buf, t)
+			}
+			b.ReportMetric(float64(buf.Len()), "bytes")
+			_, ok := t.Colors()
+			b.ReportMetric(map[bool]float64{true: 1}[ok], "indexed")
+		})
+	}
+}
+
+// TestEncodeTileMatchesEncode: a Tile, whose palette is gathered while
+// compositing, encodes to the bytes Encode writes for the same pixels, for
+// every kind of tile (indexed at each bit depth, sparse and dense
+// truecolour, count canvases), and decodes to those pixels.
+func TestEncodeTileMatchesEncode(t *testing.T) {
+	for _, tc := range []struct {
+		name  string
+		dots  int
+		diam  float64
+		ncat  int
+		count bool
+	}{
+		{"one dot", 1, 3, 5, false},
+		{"few dots one category", 30, 3, 1, false},
+		{"sparse", 350, 3, 5, false},
+		{"small dots", 5000, 1.5, 5, false},
+		{"dense", 40000, 3, 5, false},
+		{"nine categories", 3000, 2.2, 9, false},
+		{"counts", 20000, 0, 5, true},
+		{"empty", 0, 3, 5, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			rng := rand.New(rand.NewPCG(uint64(tc.dots), 3))
+			colors := make([]color.NRGBA, tc.ncat)
+			for i := range colors {
+				colors[i] = color.NRGBA{uint8(rng.IntN(256)), uint8(rng.IntN(256)), uint8(rng.IntN(256)), 255}
+			}
+			c := NewCanvas(256, 256, tc.ncat)
+			tile := NewTile(256, 256)
+			for range 2 { // the second round reuses the drained canvas and the tile
+				if tc.count {
+					for range tc.dots {
+						c.Count(rng.IntN(tc.ncat), rng.IntN(256), rng.IntN(256))
+					}
+					c.CompositeCountsTile(colors, 0.2, tile)
+				} else {
+					st := NewStamp(Dot{Diameter: tc.diam, Opacity: 0.85})
+					for range tc.dots {
+						c.AddStamp(rng.IntN(tc.ncat), rng.IntN(256*Sub), rng.IntN(256*Sub), st)
+					}
+					c.CompositeTile(colors, tile)
+				}
+				if !c.Empty() {
+					t.Fatal("CompositeTile left the canvas touched")
+				}
+				e := NewEncoder()
+				var a, b bytes.Buffer
+				if err := e.EncodeTile(&a, tile); err != nil {
+					t.Fatal(err)
+				}
+				plain := image.NewNRGBA(tile.Image.Rect)
+				for y := 0; y < 256; y++ {
+					copy(plain.Pix[y*plain.Stride:][:4*256], tile.Image.Pix[y*tile.Image.Stride:])
+				}
+				if err := e.Encode(&b, plain); err != nil {
+					t.Fatal(err)
+				}
+				if !bytes.Equal(a.Bytes(), b.Bytes()) {
+					t.Fatalf("EncodeTile wrote %d bytes, Encode %d: they differ", a.Len(), b.Len())
+				}
+				got, err := png.Decode(bytes.NewReader(a.Bytes()))
+				if err != nil {
+					t.Fatal(err)
+				}
+				for y := 0; y < 256; y++ {
+					for x := 0; x < 256; x++ {
+						want := plain.NRGBAAt(x, y)
+						if g := color.NRGBAModel.Convert(got.At(x, y)).(color.NRGBA); g != want && !(g.A == 0 && want.A == 0) {
+							t.Fatalf("pixel (%d,%d) = %v; want %v", x, y, g, want)
+						}
+					}
+				}
+			}
+		})
+	}
+}

@@ -19,6 +19,7 @@ type Tile struct {
 	// pal holds the colours in order of first appearance, packed
 	// 0xRRGGBBAA; pal[0] is transparent.
 	pal      []uint32
+	inked    int // pixels with ink
 	paletted bool
 	table    colorTable
 	last     uint32
@@ -52,6 +53,7 @@ func (t *Tile) start() {
 	t.table.index(0, 0)
 	t.paletted = true
 	t.last, t.lastIdx = 0, 0
+	t.inked = 0
 }
 
 // row is row y of the indices, without its filter byte.
@@ -59,6 +61,7 @@ func (t *Tile) row(y int) []byte { return t.ind[y*(1+t.w)+1 : (y+1)*(1+t.w)] }
 
 // add records the colour of pixel (x, y), which is not transparent.
 func (t *Tile) add(y, x int, col uint32) {
+	t.inked++
 	if !t.paletted {
 		return
 	}
