@@ -28,9 +28,9 @@ type Canvas struct {
 	// rows[y] is set once coverage lands on row y; bit x%64 of
 	// mask[y*wpr+x/64] once it lands on pixel (x, y). Compositing and
 	// clearing visit the marked pixels only.
-	rows    []bool
-	mask    []uint64
-	wpr     int // mask words per row
+	rows []bool
+	mask []uint64
+	wpr  int // mask words per row
 	// cats[y*W+x] has bit k set when category k (k < 7) has coverage
 	// on the pixel, and bit 7 when any category from 7 on has; a pixel is
 	// single when cats is one bit below bit 7.
