@@ -234,46 +234,55 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		lit[b] = h.litLen.code[b] | uint32(h.litLen.len[b])<<16
 	}
 	ll, dc := &h.litLen, &h.distC
-	// Room for the longest codes: 15 bits a literal, 48 a match.
+	// Room for the longest codes (15 bits a literal, 48 a match) and for
+	// the 8-byte stores below.
 	o := len(w.out)
 	need := o + (15*len(data)+48*len(e.segs))/8 + 16
 	out := slices.Grow(w.out, need-o)[:need]
+	// acc holds nb < 8 bits between steps: a step adds at most 48 bits,
+	// stores all eight bytes of acc and keeps the last partial byte.
 	acc, nb := w.acc, w.nbits
+	for nb >= 8 {
+		out[o] = byte(acc)
+		o++
+		acc >>= 8
+		nb -= 8
+	}
 	pos := 0
 	for _, s := range e.segs {
 		lits := data[pos : pos+int(s.lits)]
 		pos += int(s.lits)
-		// Two literals (at most 30 bits) per step; acc holds under 32
-		// bits between steps.
-		for len(lits) >= 2 {
-			a, b := lit[lits[0]], lit[lits[1]]
-			la := uint(a >> 16)
-			acc |= (uint64(a&0xffff) | uint64(b&0xffff)<<la) << nb
-			nb += la + uint(b>>16)
-			if nb >= 32 {
-				binary.LittleEndian.PutUint32(out[o:], uint32(acc))
-				o += 4
-				acc >>= 32
-				nb -= 32
-			}
-			lits = lits[2:]
-		}
-		if len(lits) == 1 {
-			a := lit[lits[0]]
+		// Three literals (at most 45 bits) a step.
+		j := 0
+		for ; j+3 <= len(lits); j += 3 {
+			a := lit[lits[j]]
+			b := lit[lits[j+1]]
+			c := lit[lits[j+2]]
 			acc |= uint64(a&0xffff) << nb
 			nb += uint(a >> 16)
-			if nb >= 32 {
-				binary.LittleEndian.PutUint32(out[o:], uint32(acc))
-				o += 4
-				acc >>= 32
-				nb -= 32
-			}
+			acc |= uint64(b&0xffff) << nb
+			nb += uint(b >> 16)
+			acc |= uint64(c&0xffff) << nb
+			nb += uint(c >> 16)
+			binary.LittleEndian.PutUint64(out[o:], acc)
+			o += int(nb >> 3)
+			acc >>= nb &^ 7
+			nb &= 7
 		}
+		for ; j < len(lits); j++ {
+			a := lit[lits[j]]
+			acc |= uint64(a&0xffff) << nb
+			nb += uint(a >> 16)
+		}
+		binary.LittleEndian.PutUint64(out[o:], acc)
+		o += int(nb >> 3)
+		acc >>= nb &^ 7
+		nb &= 7
 		if s.mlen == 0 {
 			continue
 		}
 		// Length code and extra bits, distance code and extra bits: at
-		// most 15 + 5 + 15 + 13 = 48 bits, added to under 32 in acc.
+		// most 15 + 5 + 15 + 13 = 48 bits.
 		m := int(s.mlen) - 3
 		lc := int(lengthCode[m])
 		acc |= uint64(ll.code[257+lc]) << nb
@@ -284,20 +293,12 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		c := distCode(d)
 		acc |= uint64(dc.code[c]) << nb
 		nb += uint(dc.len[c])
-		if nb >= 32 {
-			binary.LittleEndian.PutUint32(out[o:], uint32(acc))
-			o += 4
-			acc >>= 32
-			nb -= 32
-		}
 		acc |= uint64(d-1-int(distBase[c])) << nb
 		nb += uint(distExtra[c])
-		if nb >= 32 {
-			binary.LittleEndian.PutUint32(out[o:], uint32(acc))
-			o += 4
-			acc >>= 32
-			nb -= 32
-		}
+		binary.LittleEndian.PutUint64(out[o:], acc)
+		o += int(nb >> 3)
+		acc >>= nb &^ 7
+		nb &= 7
 		pos += int(s.mlen)
 	}
 	out = out[:o]
