@@ -312,7 +312,7 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 		row := pix[py*stride : py*stride+4*c.W]
 		clear(row)
 		if t != nil {
-			clear(t.row(py))
+			t.clearRow(py)
 		}
 		if !c.rows[py] {
 			continue

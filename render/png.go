@@ -6,6 +6,7 @@ import (
 	"hash/crc32"
 	"image"
 	"io"
+	"math/bits"
 	"sync"
 
 	"github.com/stipple-maps/stipple/render/deflate"
@@ -51,6 +52,8 @@ type encState struct {
 	ind   []uint8  // palette index of every pixel
 	raw   []byte   // filtered scanlines
 	z     []byte
+	ink   []uint64 // non-zero pixels, for Encode
+	runs  []uint32
 	out   bytes.Buffer
 	zlib  deflate.Encoder
 }
@@ -72,10 +75,25 @@ func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
 	b := img.Bounds()
 	wd, h := b.Dx(), b.Dy()
 	var data []byte
-	if st.palettize(img, wd, h) {
-		data = st.write(wd, h, st.pal, st.ind, wd, 0)
-	} else {
-		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, e.Filter), 0, 0)
+	switch {
+	case st.palettize(img, wd, h):
+		data = st.write(wd, h, st.pal, st.ind, wd, 0, nil)
+	case e.Filter == FilterNone || (e.Filter == FilterAuto && !dense(img, wd, h)):
+		// As EncodeTile does: the empty pixels are known runs of zeros.
+		wpr := (wd + 63) / 64
+		st.ink = growWords(st.ink, wpr*h)
+		for y := 0; y < h; y++ {
+			src := img.Pix[(b.Min.Y-img.Rect.Min.Y+y)*img.Stride+(b.Min.X-img.Rect.Min.X)*4:][:4*wd]
+			for x := 0; x < wd; x++ {
+				if binary.LittleEndian.Uint32(src[4*x:]) != 0 {
+					st.ink[y*wpr+x>>6] |= 1 << (x & 63)
+				}
+			}
+		}
+		st.runs = inkRuns(st.runs[:0], st.ink, wpr, wd, h)
+		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, FilterNone), 0, 0, st.runs)
+	default:
+		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, e.Filter), 0, 0, nil)
 	}
 	_, err := w.Write(data)
 	return err
@@ -91,13 +109,14 @@ func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
 	defer e.pool.Put(st)
 	var data []byte
 	if t.paletted {
-		data = st.write(t.w, t.h, t.pal, t.ind, 1+t.w, 1)
+		data = st.write(t.w, t.h, t.pal, t.ind, 1+t.w, 1, nil)
+	} else if e.Filter == FilterNone || (e.Filter == FilterAuto && 2*t.inked <= t.w*t.h) {
+		// The rows as they are, coded as literal pixels and runs of
+		// empty ones.
+		st.runs = inkRuns(st.runs[:0], t.ink, t.wpr, t.w, t.h)
+		data = st.write(t.w, t.h, nil, t.rgba, 0, 0, st.runs)
 	} else {
-		rows := t.rgba
-		if e.Filter != FilterNone && (e.Filter != FilterAuto || 2*t.inked > t.w*t.h) {
-			rows = st.rgbaRows(t.Image, t.w, t.h, e.Filter)
-		}
-		data = st.write(t.w, t.h, nil, rows, 0, 0)
+		data = st.write(t.w, t.h, nil, st.rgbaRows(t.Image, t.w, t.h, e.Filter), 0, 0, nil)
 	}
 	_, err := w.Write(data)
 	return err
@@ -105,8 +124,9 @@ func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
 
 // write makes the PNG file. With a palette, ind holds the indices, row y
 // at ind[y*stride+off:]; without one, rows holds the filtered truecolour
-// scanlines (passed as ind).
-func (st *encState) write(w, h int, pal []uint32, ind []byte, stride, off int) []byte {
+// scanlines (passed as ind), and runs, if not nil, their literal and zero
+// stretches (deflate.Encoder.ZlibRuns).
+func (st *encState) write(w, h int, pal []uint32, ind []byte, stride, off int, runs []uint32) []byte {
 	st.out.Reset()
 	st.out.Write(pngSignature)
 	var depth uint8 = 8
@@ -149,7 +169,11 @@ func (st *encState) write(w, h int, pal []uint32, ind []byte, stride, off int) [
 			rows = st.packRows(ind, stride, off, w, h, depth)
 		}
 	}
-	st.z = st.zlib.Zlib(st.z[:0], rows, bpp)
+	if runs != nil {
+		st.z = st.zlib.ZlibRuns(st.z[:0], rows, runs)
+	} else {
+		st.z = st.zlib.Zlib(st.z[:0], rows, bpp)
+	}
 	st.chunk("IDAT", st.z)
 	st.chunk("IEND", nil)
 	return st.out.Bytes()
@@ -208,6 +232,50 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int, f RowFilter) []byte {
 		}
 	}
 	return st.raw
+}
+
+// inkRuns lists the stretches of truecolour scanlines (filter byte, then
+// 4 bytes a pixel) for deflate.Encoder.ZlibRuns: literal bytes for the
+// pixels whose bit is set in ink (wpr words a row), zero bytes for the
+// filter bytes and the other pixels.
+func inkRuns(runs []uint32, ink []uint64, wpr, w, h int) []uint32 {
+	var lit, zero uint32
+	add := func(inked bool, n uint32) {
+		if !inked {
+			zero += n
+			return
+		}
+		if zero > 0 {
+			runs = append(runs, lit, zero)
+			lit, zero = 0, 0
+		}
+		lit += n
+	}
+	for y := 0; y < h; y++ {
+		add(false, 1) // filter type 0
+		row := ink[y*wpr : (y+1)*wpr]
+		for x := 0; x < w; {
+			m := row[x>>6] >> (x & 63)
+			inked := m&1 != 0
+			if !inked {
+				m = ^m
+			}
+			// Pixels from x on with the same state, within this word.
+			n := min(bits.TrailingZeros64(^m), 64-x&63, w-x)
+			add(inked, uint32(4*n))
+			x += n
+		}
+	}
+	return append(runs, lit, zero)
+}
+
+func growWords(b []uint64, n int) []uint64 {
+	if cap(b) < n {
+		return make([]uint64, n)
+	}
+	b = b[:n]
+	clear(b)
+	return b
 }
 
 func grow(b []byte, n int) []byte {

@@ -20,6 +20,9 @@ type Tile struct {
 	// 0xRRGGBBAA; pal[0] is transparent.
 	pal      []uint32
 	inked    int // pixels with ink
+	// ink has bit x%64 of word y*wpr+x/64 set for every pixel with ink.
+	ink      []uint64
+	wpr      int
 	paletted bool
 	table    colorTable
 	last     uint32
@@ -28,7 +31,8 @@ type Tile struct {
 
 // NewTile returns a transparent w × h tile.
 func NewTile(w, h int) *Tile {
-	t := &Tile{w: w, h: h, rgba: make([]byte, h*(1+4*w)), ind: make([]byte, h*(1+w))}
+	wpr := (w + 63) / 64
+	t := &Tile{w: w, h: h, rgba: make([]byte, h*(1+4*w)), ind: make([]byte, h*(1+w)), ink: make([]uint64, h*wpr), wpr: wpr}
 	t.Image = &image.NRGBA{Pix: t.rgba[1:], Stride: 1 + 4*w, Rect: image.Rect(0, 0, w, h)}
 	t.start()
 	return t
@@ -56,12 +60,16 @@ func (t *Tile) start() {
 	t.inked = 0
 }
 
-// row is row y of the indices, without its filter byte.
-func (t *Tile) row(y int) []byte { return t.ind[y*(1+t.w)+1 : (y+1)*(1+t.w)] }
+// clearRow forgets the indices and ink of row y.
+func (t *Tile) clearRow(y int) {
+	clear(t.ind[y*(1+t.w)+1 : (y+1)*(1+t.w)])
+	clear(t.ink[y*t.wpr : (y+1)*t.wpr])
+}
 
 // add records the colour of pixel (x, y), which is not transparent.
 func (t *Tile) add(y, x int, col uint32) {
 	t.inked++
+	t.ink[y*t.wpr+x>>6] |= 1 << (x & 63)
 	if !t.paletted {
 		return
 	}

@@ -66,6 +66,67 @@ func (e *Encoder) Zlib(dst, data []byte, bpp int) []byte {
 	return binary.BigEndian.AppendUint32(dst, sum)
 }
 
+// ZlibRuns is Zlib for data whose layout the caller already knows, such as
+// a tile's scanlines with their empty space: runs lists, in turn, a number
+// of bytes to code as literals and a number of zero bytes that follow them
+// (their sum is len(data)). Runs of zeros become matches and nothing else
+// is searched, so the cost is one pass over the literal bytes. The bytes in
+// the zero stretches must be zero; they are not read.
+func (e *Encoder) ZlibRuns(dst, data []byte, runs []uint32) []byte {
+	e.segs = e.segs[:0]
+	clear(e.lit[:])
+	clear(e.dist[:])
+	a := adler{s1: 1}
+	pos, start := 0, 0
+	for k := 0; k+1 < len(runs); k += 2 {
+		l, z := int(runs[k]), int(runs[k+1])
+		e.literals(data[pos:pos+l], &a)
+		pos += l
+		if z == 0 {
+			continue
+		}
+		if pos == 0 || data[pos-1] != 0 {
+			// A run repeats the byte before it: the first zero is a
+			// literal.
+			e.literals(data[pos:pos+1], &a)
+			pos++
+			z--
+		}
+		if z < 3 {
+			e.literals(data[pos:pos+z], &a)
+			pos += z
+			continue
+		}
+		a.run(0, z)
+		start, pos = e.matches(start, pos, z, 1), pos+z
+	}
+	e.segs = append(e.segs, seg{lits: uint32(len(data) - start)})
+	e.lit[endBlock]++
+	dst = append(dst, 0x78, 0x01)
+	dst = e.block(dst, data)
+	return binary.BigEndian.AppendUint32(dst, a.sum())
+}
+
+// matches records a match of l ≥ 3 bytes at distance d starting at i, the
+// literals since start before it, as matches of at most maxMatch bytes,
+// none shorter than 3 (a tail of 1 or 2 is folded into the match before
+// it). It returns the position after the match.
+func (e *Encoder) matches(start, i, l, d int) int {
+	for l > 0 {
+		m := min(l, maxMatch)
+		if r := l - m; r > 0 && r < 3 {
+			m -= 3 - r
+		}
+		e.segs = append(e.segs, seg{lits: uint32(i - start), mlen: uint16(m), dist: uint16(d)})
+		e.lit[257+int(lengthCode[m-3])]++
+		e.dist[distCode(d)]++
+		i += m
+		l -= m
+		start = i
+	}
+	return i
+}
+
 // parse splits data into segments, counts the symbols they will use and
 // returns the Adler-32 checksum of data (RFC 1950 §8.2), summed along: a
 // run of one byte costs one step there too.
@@ -93,20 +154,8 @@ func (e *Encoder) parse(data []byte, bpp int) uint32 {
 			l = repeatLen(data, i, d)
 			a.bytes(data[i : i+l])
 		}
-		// Matches of at most maxMatch bytes, none shorter than 3 (a tail
-		// of 1 or 2 is folded into the match before it).
-		for l > 0 {
-			m := min(l, maxMatch)
-			if r := l - m; r > 0 && r < 3 {
-				m -= 3 - r
-			}
-			e.segs = append(e.segs, seg{lits: uint32(i - start), mlen: uint16(m), dist: uint16(d)})
-			e.lit[257+int(lengthCode[m-3])]++
-			e.dist[distCode(d)]++
-			i += m
-			l -= m
-			start = i
-		}
+		i = e.matches(start, i, l, d)
+		start = i
 	}
 	e.segs = append(e.segs, seg{lits: uint32(n - start)})
 	e.lit[endBlock]++
@@ -190,6 +239,14 @@ func matchStarts(x uint64) uint64 {
 func runLen(data []byte, i int, b byte) int {
 	j := i
 	pat := uint64(b) * 0x0101010101010101
+	// Long runs, such as the empty space of a tile, 32 bytes a step.
+	for ; j+32 <= len(data); j += 32 {
+		p := data[j : j+32 : j+32]
+		if (binary.LittleEndian.Uint64(p)^pat)|(binary.LittleEndian.Uint64(p[8:])^pat)|
+			(binary.LittleEndian.Uint64(p[16:])^pat)|(binary.LittleEndian.Uint64(p[24:])^pat) != 0 {
+			break
+		}
+	}
 	for j+8 <= len(data) {
 		if x := binary.LittleEndian.Uint64(data[j:]) ^ pat; x != 0 {
 			return j - i + bits.TrailingZeros64(x)>>3

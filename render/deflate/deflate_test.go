@@ -337,3 +337,54 @@ func BenchmarkZlib(b *testing.B) {
 		})
 	}
 }
+
+// runsOf lists data's stretches for ZlibRuns: literal bytes where data is
+// not zero, zero bytes where it is (every zero in a zero stretch).
+func runsOf(data []byte) []uint32 {
+	var runs []uint32
+	var lit, zero uint32
+	for _, b := range data {
+		if b == 0 {
+			zero++
+			continue
+		}
+		if zero > 0 {
+			runs = append(runs, lit, zero)
+			lit, zero = 0, 0
+		}
+		lit++
+	}
+	return append(runs, lit, zero)
+}
+
+func TestZlibRunsRoundTrip(t *testing.T) {
+	cases := map[string][]byte{
+		"empty":          {},
+		"zeros":          make([]byte, 1000),
+		"one zero":       {0},
+		"two zeros":      {0, 0},
+		"short gaps":     {1, 0, 2, 0, 0, 3, 0, 0, 0, 4, 0, 0, 0, 0, 5},
+		"gap of 260":     append(append([]byte{7}, make([]byte, 260)...), 7),
+		"no zeros":       bytes.Repeat([]byte{1, 2, 3}, 100),
+		"sparse tile":    scanlines(256, 256, 0.05, 4),
+		"dense tile":     scanlines(256, 256, 0.8, 5),
+		"leading zeros":  append(make([]byte, 9), 1, 2),
+		"trailing zeros": append([]byte{1, 2}, make([]byte, 9)...),
+	}
+	var e Encoder
+	for name, data := range cases {
+		t.Run(name, func(t *testing.T) {
+			z := e.ZlibRuns(nil, data, runsOf(data))
+			if got := inflate(t, z); !bytes.Equal(got, data) {
+				t.Fatalf("round trip differs at %d", firstDiff(got, data))
+			}
+		})
+	}
+	// Literal stretches may hold zeros too: only the zero stretches are
+	// skipped.
+	data := append(scanlines(64, 64, 0.3, 6), make([]byte, 10)...)
+	z := e.ZlibRuns(nil, data, []uint32{uint32(len(data) - 10), 10})
+	if got := inflate(t, z); !bytes.Equal(got, data) {
+		t.Fatal("round trip with zeros among literals differs")
+	}
+}
