@@ -18,8 +18,8 @@ type Tile struct {
 	ind   []byte // rows of 1 + W bytes: filter type 0, then indices
 	// pal holds the colours in order of first appearance, packed
 	// 0xRRGGBBAA; pal[0] is transparent.
-	pal      []uint32
-	inked    int // pixels with ink
+	pal   []uint32
+	inked int // pixels with ink
 	// ink has bit x%64 of word y*wpr+x/64 set for every pixel with ink.
 	ink      []uint64
 	wpr      int
