@@ -310,12 +310,21 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 	}
 	for py := 0; py < c.H; py++ {
 		row := pix[py*stride : py*stride+4*c.W]
-		clear(row)
-		if t != nil {
+		switch {
+		case t == nil:
+			clear(row)
+		case t.dirty[py]:
+			// A tile's rows are cleared only where its last image had
+			// ink.
+			clear(row)
 			t.clearRow(py)
+			t.dirty[py] = false
 		}
 		if !c.rows[py] {
 			continue
+		}
+		if t != nil {
+			t.dirty[py] = true
 		}
 		m := c.mask[py*c.wpr : (py+1)*c.wpr]
 		for wi, left := range m {

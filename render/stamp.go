@@ -24,8 +24,8 @@ type stampSpan struct {
 }
 
 type stampCell struct {
-	dx, dy int32
-	w      uint32
+	dx, dy int8
+	w      uint16 // at most One
 }
 
 // MaxStampDiameter is the largest diameter NewStamp accepts; bigger dots are
@@ -45,19 +45,19 @@ func NewStamp(d Dot) *Stamp {
 			for dy := -s.reach; dy <= s.reach; dy++ {
 				for dx := -s.reach; dx <= s.reach; dx++ {
 					if w := stampWeight(r, ink, dx, dy, fx, fy); w > 0 {
-						cells = append(cells, stampCell{int32(dx), int32(dy), w})
+						cells = append(cells, stampCell{int8(dx), int8(dy), uint16(w)})
 					}
 				}
 			}
 			s.cells[fy*Sub+fx] = cells
 			var spans []stampSpan
 			for _, e := range cells {
-				if k := len(spans) - 1; k >= 0 && spans[k].dy == e.dy {
-					spans[k].x0 = min(spans[k].x0, e.dx)
-					spans[k].x1 = max(spans[k].x1, e.dx+1)
+				if k := len(spans) - 1; k >= 0 && spans[k].dy == int32(e.dy) {
+					spans[k].x0 = min(spans[k].x0, int32(e.dx))
+					spans[k].x1 = max(spans[k].x1, int32(e.dx)+1)
 					continue
 				}
-				spans = append(spans, stampSpan{e.dy, e.dx, e.dx + 1})
+				spans = append(spans, stampSpan{int32(e.dy), int32(e.dx), int32(e.dx) + 1})
 			}
 			s.spans[fy*Sub+fx] = spans
 		}
@@ -102,16 +102,16 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 			for _, e := range cells {
 				q := pix + int(e.dy)*c.W + int(e.dx)
 				if cb := c.cats[q]; cb == 0 || cb == bit {
-					c.tot[q] += e.w
+					c.tot[q] += uint32(e.w)
 					c.cats[q] = bit
 				} else {
-					c.mixed(q, cat, cb)[cat] += e.w
+					c.mixed(q, cat, cb)[cat] += uint32(e.w)
 				}
 			}
 		} else {
 			for _, e := range cells {
 				q := pix + int(e.dy)*c.W + int(e.dx)
-				c.mixed(q, cat, c.cats[q])[cat] += e.w
+				c.mixed(q, cat, c.cats[q])[cat] += uint32(e.w)
 			}
 		}
 		for _, sp := range s.spans[f] {
@@ -125,7 +125,7 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 		if px < 0 || py < 0 || px >= c.W || py >= c.H {
 			continue
 		}
-		c.deposit(py*c.W+px, cat, e.w)
+		c.deposit(py*c.W+px, cat, uint32(e.w))
 		c.mark1(px, py)
 		c.touched = true
 	}

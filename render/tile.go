@@ -23,6 +23,8 @@ type Tile struct {
 	// ink has bit x%64 of word y*wpr+x/64 set for every pixel with ink.
 	ink      []uint64
 	wpr      int
+	dirty    []bool // rows that may hold ink
+
 	paletted bool
 	table    colorTable
 	last     uint32
@@ -32,7 +34,7 @@ type Tile struct {
 // NewTile returns a transparent w × h tile.
 func NewTile(w, h int) *Tile {
 	wpr := (w + 63) / 64
-	t := &Tile{w: w, h: h, rgba: make([]byte, h*(1+4*w)), ind: make([]byte, h*(1+w)), ink: make([]uint64, h*wpr), wpr: wpr}
+	t := &Tile{w: w, h: h, rgba: make([]byte, h*(1+4*w)), ind: make([]byte, h*(1+w)), ink: make([]uint64, h*wpr), wpr: wpr, dirty: make([]bool, h)}
 	t.Image = &image.NRGBA{Pix: t.rgba[1:], Stride: 1 + 4*w, Rect: image.Rect(0, 0, w, h)}
 	t.start()
 	return t
