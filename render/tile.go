@@ -24,7 +24,6 @@ type Tile struct {
 	ink      []uint64
 	wpr      int
 	dirty    []bool // rows that may hold ink
-
 	paletted bool
 	table    colorTable
 	last     uint32
