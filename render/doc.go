@@ -13,6 +13,12 @@
 // integer additions; a dot narrower than a pixel only adds one to its pixel's
 // count for its category, and CompositeCounts turns counts into ink (count ×
 // the dot's mass). Both sum integers, so any drawing order gives the same
-// bytes. Encoder writes indexed PNG when a tile has at most 256 colours and
-// truecolour otherwise, with its own minimal writer over klauspost's zlib.
+// bytes.
+//
+// Tiles skip the general image path: Canvas.CompositeTile writes the
+// colours straight into PNG scanlines of a Tile, gathers the palette while
+// the tile has at most 256 colours, marks the inked pixels and empties the
+// canvas as it reads it; Encoder.EncodeTile then writes indexed PNG, or
+// truecolour coded as literal pixels and runs of empty ones, through
+// render/deflate. Encoder.Encode writes the same bytes for a plain image.
 package render
