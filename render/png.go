@@ -365,24 +365,29 @@ func (st *encState) packRows(ind []byte, stride, off, w, h int, depth uint8) []b
 		}
 		out := r[1:]
 		clear(out)
-		switch depth {
-		case 4:
-			for x := 0; x+1 < len(src); x += 2 {
-				out[x>>1] = src[x]<<4 | src[x+1]
+		// Eight pixels a step; a step of index 0 only (transparent, most
+		// of a sparse tile) leaves out zero.
+		n8 := len(src) &^ 7
+		for x := 0; x < n8; x += 8 {
+			s := src[x : x+8 : x+8]
+			if binary.LittleEndian.Uint64(s) == 0 {
+				continue
 			}
-		case 2:
-			for x := 0; x+3 < len(src); x += 4 {
-				out[x>>2] = src[x]<<6 | src[x+1]<<4 | src[x+2]<<2 | src[x+3]
-			}
-		case 1:
-			for x := 0; x+7 < len(src); x += 8 {
-				s := src[x : x+8 : x+8]
+			switch depth {
+			case 4:
+				o := out[x>>1 : x>>1+4 : x>>1+4]
+				o[0], o[1], o[2], o[3] = s[0]<<4|s[1], s[2]<<4|s[3], s[4]<<4|s[5], s[6]<<4|s[7]
+			case 2:
+				o := out[x>>2 : x>>2+2 : x>>2+2]
+				o[0] = s[0]<<6 | s[1]<<4 | s[2]<<2 | s[3]
+				o[1] = s[4]<<6 | s[5]<<4 | s[6]<<2 | s[7]
+			case 1:
 				out[x>>3] = s[0]<<7 | s[1]<<6 | s[2]<<5 | s[3]<<4 | s[4]<<3 | s[5]<<2 | s[6]<<1 | s[7]
 			}
 		}
-		// The last, partly filled byte.
+		// The pixels after the last whole step, into partly filled bytes.
 		d := uint(depth)
-		for x := len(src) / per * per; x < len(src); x++ {
+		for x := n8; x < len(src); x++ {
 			out[x/per] |= src[x] << (8 - d*uint(x%per+1))
 		}
 	}

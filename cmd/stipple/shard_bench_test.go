@@ -246,7 +246,7 @@ func BenchmarkShardParts(b *testing.B) {
 	for _, row := range table {
 		fmt.Println(row)
 	}
-	c, ok := leastSquares(rows, cpus)
+	c, ok := leastSquares(rows, cpus, 4)
 	if !ok {
 		fmt.Println("\nthe fit is singular (too few parts?)")
 		return
@@ -254,8 +254,28 @@ func BenchmarkShardParts(b *testing.B) {
 	fmt.Printf("\nCPU fit over %d parts: %.0f ns per sampled dot, %.0f ns per disc dot-zoom, %.3f ms per tile, %.2f s fixed per part\n",
 		len(rows), c[0]*1e9, c[1]*1e9, c[2]*1e3, c[3])
 	if c[0] <= 0 || c[1] <= 0 || c[2] <= 0 {
-		fmt.Println("a rate came out ≤ 0: too few or too alike parts to fit; keep MeasuredRates")
-		return
+		// Sampled and drawn dots go together in most parts, so the fit
+		// cannot tell them apart: fix the sampling rate to the one measured
+		// on its own (STIPPLE_SHARD_SAMPLE_NS, from stipple bench's placing
+		// phase) and fit the rest.
+		sampleNs, err := strconv.ParseFloat(envOr(b, "STIPPLE_SHARD_SAMPLE_NS", "450"), 64)
+		if err != nil {
+			b.Fatal(err)
+		}
+		rest := make([][4]float64, len(rows))
+		y := make([]float64, len(cpus))
+		for k, row := range rows {
+			rest[k] = [4]float64{row[1], row[2], row[3]}
+			y[k] = cpus[k] - row[0]*sampleNs*1e-9
+		}
+		c3, ok := leastSquares(rest, y, 3)
+		if !ok || c3[0] <= 0 || c3[1] <= 0 {
+			fmt.Println("a rate came out ≤ 0 with the sampling rate fixed too: keep MeasuredRates")
+			return
+		}
+		c = [4]float64{sampleNs * 1e-9, c3[0], c3[1], c3[2]}
+		fmt.Printf("with %.0f ns per sampled dot fixed: %.0f ns per disc dot-zoom, %.3f ms per tile, %.2f s fixed per part\n",
+			sampleNs, c[1]*1e9, c[2]*1e3, c[3])
 	}
 	fmt.Printf("\nshard.Rates{SampleNsPerDot: %.0f, CountNsPerDot: %.1f, DiscNsPerDot: %.0f, TileNs: %.3ge6, CountBytes: %.0f, DiscBytes: %.0f}\n",
 		c[0]*1e9, c[1]*1e9*r.CountNsPerDot/r.DiscNsPerDot, c[1]*1e9, c[2]*1e3, r.CountBytes, r.DiscBytes)
@@ -268,22 +288,22 @@ func envOr(b *testing.B, name, def string) string {
 	return def
 }
 
-// leastSquares solves min |X c − y|² through the normal equations
-// (Gaussian elimination with partial pivoting); ok is false when they are
-// singular.
-func leastSquares(x [][4]float64, y []float64) (c [4]float64, ok bool) {
+// leastSquares solves min |X c − y|² over the first n ≤ 4 columns of x
+// through the normal equations (Gaussian elimination with partial
+// pivoting); ok is false when they are singular.
+func leastSquares(x [][4]float64, y []float64, n int) (c [4]float64, ok bool) {
 	var a [4][5]float64
 	for k, row := range x {
-		for i := 0; i < 4; i++ {
-			for j := 0; j < 4; j++ {
+		for i := 0; i < n; i++ {
+			for j := 0; j < n; j++ {
 				a[i][j] += row[i] * row[j]
 			}
 			a[i][4] += row[i] * y[k]
 		}
 	}
-	for col := 0; col < 4; col++ {
+	for col := 0; col < n; col++ {
 		p := col
-		for i := col + 1; i < 4; i++ {
+		for i := col + 1; i < n; i++ {
 			if math.Abs(a[i][col]) > math.Abs(a[p][col]) {
 				p = i
 			}
@@ -292,7 +312,7 @@ func leastSquares(x [][4]float64, y []float64) (c [4]float64, ok bool) {
 			return c, false
 		}
 		a[col], a[p] = a[p], a[col]
-		for i := 0; i < 4; i++ {
+		for i := 0; i < n; i++ {
 			if i == col {
 				continue
 			}
@@ -302,7 +322,7 @@ func leastSquares(x [][4]float64, y []float64) (c [4]float64, ok bool) {
 			}
 		}
 	}
-	for i := 0; i < 4; i++ {
+	for i := 0; i < n; i++ {
 		c[i] = a[i][4] / a[i][i]
 	}
 	return c, true
