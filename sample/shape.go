@@ -12,7 +12,7 @@ const degToRad = math.Pi / 180
 // boxFill is the fill ratio (part area / box area) from which a simple part
 // is sampled by rejection against its box instead of by triangles, and
 // boxMaxEdges the most edges such a part may have. Measured here (2 noisy
-// cores, medians of 3, BENCHMARKS.part.md):
+// cores, medians of 3, BENCHMARKS.md, "Dot placement"):
 //   - BenchmarkFillThreshold, 64-vertex parallelogram, prepare + 100 dots:
 //     box 127/66/68/40/41/36/47 µs against triangles 59/64/61/51/52/77/51 µs
 //     at fill 0.1/0.2/0.3/0.4/0.5/0.6/0.8: box rejection pays from about

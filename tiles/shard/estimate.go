@@ -8,8 +8,8 @@ import (
 )
 
 // Rates are measured costs that turn counts of dots and tiles into time
-// and bytes. MeasuredRates holds the values measured for this package's
-// BENCHMARKS.part.md; re-measure them on the machines a job will run on.
+// and bytes. MeasuredRates holds the values measured for BENCHMARKS.md;
+// re-measure them on the machines a job will run on.
 type Rates struct {
 	// Source says where the rates were measured.
 	Source string `json:"source"`
@@ -29,21 +29,24 @@ type Rates struct {
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
 // synthetic counts, 1 dot = 10 people: 30.9 million dots, zooms 0–12,
-// 296 000 tiles) on a 2-core machine. Their ratio (a tile costs as much as
-// about 250 dots) is a least-squares fit of the wall time of 22 part
-// renders (N = 2, 4 and 16) to their tiles and kept dots: wall time is
-// what a part's balance is about, and tiles weigh more in it than in CPU
-// time, since tiles.Write creates files from one goroutine. Their scale is
-// CPU time (user + sys): 0.35 s per 1000 tiles and 1.74 s per million dots
-// fitted over the same parts, whose CPU time added up to 155–160 s for
-// every N against 143 s for a single-machine render. See
-// BENCHMARKS.part.md.
+// 296 000 tiles) on a 2-core machine, with the tiles on tmpfs so that the
+// rates are the renderer's work rather than the disk's: a least-squares
+// fit of the CPU time (user + sys) of 22 part renders (N = 2, 4 and 16)
+// to their drawn dot-zooms, tiles and a fixed cost per part, with the
+// sampling rate fixed to the placing rate stipple bench measures (sampled
+// and drawn dots go together in most parts, so the fit cannot separate
+// them). The fixed cost, 0.26 s a part, is the same for every part and
+// does not move the cuts. Creating tile files on a virtual disk costs
+// about as much again as rendering them (BENCHMARKS.md, "Sharded
+// renders"). Rerun: go test ./cmd/stipple -run '^$' -bench ShardParts
+// -benchtime 1x, with STIPPLE_SHARD_PER_DOT=10 and STIPPLE_SHARD_DIR on
+// tmpfs.
 var MeasuredRates = Rates{
-	Source:         "the national benchmark, 2 cores (tiles/shard/BENCHMARKS.part.md)",
-	SampleNsPerDot: 270,
-	CountNsPerDot:  11,
-	DiscNsPerDot:   640,
-	TileNs:         0.40e6,
+	Source:         "the national benchmark, 2 cores, tiles on tmpfs (BENCHMARKS.md)",
+	SampleNsPerDot: 450,
+	CountNsPerDot:  10,
+	DiscNsPerDot:   580,
+	TileNs:         0.123e6,
 	CountBytes:     6400,
 	DiscBytes:      3800,
 }

@@ -22,5 +22,5 @@
 // come with build tags: -tags stipple_cloud builds all three, stipple_s3,
 // stipple_gcs and stipple_azure one each. Without a tag, local folders and
 // file:// URLs work and a bucket URL is a clear error (measurements in
-// tiles/shard/BENCHMARKS.part.md).
+// BENCHMARKS.md, "Sharded renders").
 package sink
