@@ -10,6 +10,13 @@ import (
 // MetadataFile is the name of the metadata file beside the pyramid.
 const MetadataFile = "map.json"
 
+// Tile path templates relative to map.json, as Metadata.Tiles and
+// Metadata.Tiles2x give them for a pyramid written by Write.
+const (
+	TilesTemplate   = "{z}/{x}/{y}.png"    // the 1× tiles
+	Tiles2xTemplate = "{z}/{x}/{y}@2x.png" // the tiles of twice the pixels (Options.HiDPI)
+)
+
 // Metadata describes a written map. The viewer reads it; so can any script.
 // Field names are stipple's own; coordinates are lon/lat degrees.
 type Metadata struct {
@@ -31,6 +38,10 @@ type Metadata struct {
 	TileSize int        `json:"tile_size"`
 	// Tiles is the tile path template relative to this file.
 	Tiles string `json:"tiles"`
+	// Tiles2x is the template of the high-density tiles (Tiles2xTemplate):
+	// the same tiles as Tiles, in the same folder, at twice the pixels for
+	// the same area. "" (and absent from map.json) when none were written.
+	Tiles2x string `json:"tiles_2x,omitempty"`
 	// Outline is the template of the boundary outline tiles relative to
 	// this file (OutlineTemplate), "" when none were drawn.
 	Outline      string     `json:"outline,omitempty"`

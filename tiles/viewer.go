@@ -55,6 +55,11 @@ func WriteViewer(dir string, m *Metadata) error {
 // never asks for a tile that was not written). The layers' tiles must be
 // written first: their folders are read to build the index.
 //
+// A layer whose Metadata.Tiles2x names high-density tiles has them asked
+// for on screens of more than one device pixel per CSS pixel, drawn at the
+// same size, with the 1× tile as the fallback; the index lists the 1×
+// tiles, so Tiles2x must name files in the same folders.
+//
 // With two or more layers the viewer shows a layer switch and a compare
 // mode (two layers side by side with a draggable divider). Layer keys
 // (Metadata.Layer, or "1", "2", … when empty) must be unique.
@@ -99,6 +104,11 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 		dots, err := indexSet(dir, l.Dir, prefix, m.Tiles, len(sets), m.MinZoom, m.MaxZoom)
 		if err != nil {
 			return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
+		}
+		if m.Tiles2x != "" {
+			if dots.tiles2x, err = denseURL(prefix, m.Tiles, m.Tiles2x); err != nil {
+				return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
+			}
 		}
 		vl.Dots = len(sets)
 		sets = append(sets, dots)
@@ -191,6 +201,9 @@ type viewerLayerData struct {
 type tileSetData struct {
 	// Tiles is the URL template relative to the viewer, e.g. "2010/{z}/{x}/{y}.png".
 	Tiles string `json:"tiles"`
+	// Tiles2x is the URL template of the same tiles at twice the pixels,
+	// which the viewer asks for on high-density screens; "" for none.
+	Tiles2x string `json:"tiles_2x,omitempty"`
 	// Index is the URL template of the index scripts, with {z}.
 	Index string `json:"index"`
 	Zooms []int  `json:"zooms"` // zooms that have tiles, ascending
@@ -205,14 +218,15 @@ type tileIndex struct {
 }
 
 type tileSet struct {
-	id    int
-	tiles string
-	zooms []int
-	index map[int]tileIndex
+	id      int
+	tiles   string
+	tiles2x string
+	zooms   []int
+	index   map[int]tileIndex
 }
 
 func (s tileSet) public() tileSetData {
-	return tileSetData{Tiles: s.tiles, Index: IndexDir + "/" + strconv.Itoa(s.id) + "-{z}.js", Zooms: s.zooms}
+	return tileSetData{Tiles: s.tiles, Tiles2x: s.tiles2x, Index: IndexDir + "/" + strconv.Itoa(s.id) + "-{z}.js", Zooms: s.zooms}
 }
 
 // layerPrefix checks a layer folder and returns it as an escaped URL path
@@ -248,12 +262,12 @@ func splitTemplate(t string) (prefix, ext string, err error) {
 	return prefix, t[i+11:], nil
 }
 
-// indexSet reads which tiles of template t (relative to layer folder
-// layerDir in viewer folder dir) exist, for zooms minZ..maxZ.
-func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, error) {
+// tileURL turns template t (relative to a layer folder whose URL prefix is
+// urlPrefix) into a URL template relative to the viewer, escaped.
+func tileURL(urlPrefix, t string) (string, error) {
 	prefix, ext, err := splitTemplate(t)
 	if err != nil {
-		return tileSet{}, err
+		return "", err
 	}
 	var parts []string
 	for _, p := range strings.Split(strings.TrimSuffix(prefix, "/"), "/") {
@@ -261,11 +275,43 @@ func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, 
 			parts = append(parts, url.PathEscape(p))
 		}
 	}
-	urlT := urlPrefix + strings.Join(parts, "/")
+	u := urlPrefix + strings.Join(parts, "/")
 	if len(parts) > 0 {
-		urlT += "/"
+		u += "/"
 	}
-	set := tileSet{id: id, tiles: urlT + "{z}/{x}/{y}" + url.PathEscape(ext), index: map[int]tileIndex{}}
+	return u + "{z}/{x}/{y}" + url.PathEscape(ext), nil
+}
+
+// denseURL is the viewer's URL template for high-density template t2x. The
+// viewer asks for a dense tile only where the index of template t lists
+// one, so both must name the same folder and a different file.
+func denseURL(urlPrefix, t, t2x string) (string, error) {
+	p1, ext1, err := splitTemplate(t)
+	if err != nil {
+		return "", err
+	}
+	p2, ext2, err := splitTemplate(t2x)
+	if err != nil {
+		return "", fmt.Errorf("tiles_2x: %w", err)
+	}
+	if p2 != p1 || ext2 == ext1 {
+		return "", fmt.Errorf("tiles_2x template %q: want the folder of tiles %q and another file suffix", t2x, t)
+	}
+	return tileURL(urlPrefix, t2x)
+}
+
+// indexSet reads which tiles of template t (relative to layer folder
+// layerDir in viewer folder dir) exist, for zooms minZ..maxZ.
+func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, error) {
+	prefix, ext, err := splitTemplate(t)
+	if err != nil {
+		return tileSet{}, err
+	}
+	urlT, err := tileURL(urlPrefix, t)
+	if err != nil {
+		return tileSet{}, err
+	}
+	set := tileSet{id: id, tiles: urlT, index: map[int]tileIndex{}}
 	root := filepath.Join(dir, filepath.FromSlash(layerDir), filepath.FromSlash(prefix))
 	for z := minZ; z <= maxZ; z++ {
 		idx, ok, err := scanZoom(filepath.Join(root, strconv.Itoa(z)), z, ext)

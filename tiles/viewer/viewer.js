@@ -65,6 +65,25 @@
     return false;
   }
 
+  // ---- Tile images. On a screen with more than one device pixel per CSS
+  // pixel, a set with high-density tiles (tiles_2x: twice the pixels, the
+  // same area) is asked for those; CSS draws every tile 256 px wide, so a
+  // dense tile is as big on screen as a 1× one, only sharper. A dense tile
+  // that fails to load is asked for again at 1×. ----
+  function tileURL(t, z, x, y) { return t.replace("{z}", z).replace("{x}", x).replace("{y}", y); }
+  function dense(set) { return !!sets[set].tiles_2x && (window.devicePixelRatio || 1) > 1; }
+  function tileArrived() { this.stDone = true; schedule(); }
+  function tileFailed() {
+    var plain = this.stPlain;
+    if (plain) {
+      this.stPlain = null;
+      this.src = plain;
+      return;
+    }
+    this.stDone = true;
+    schedule();
+  }
+
   // ---- A tile layer: one tile set drawn at the zoom nearest the view's,
   // keeping the previous zoom's tiles, scaled, until the new ones are in. ----
   var drawCount = 0;
@@ -123,10 +142,16 @@
             img.alt = "";
             img.decoding = "async";
             img.draggable = false;
-            img.onload = img.onerror = function () { this.stDone = true; schedule(); };
+            img.onload = tileArrived;
+            img.onerror = tileFailed;
             img.style.left = (tx - L.ax) * T + "px";
             img.style.top = (ty - L.ay) * T + "px";
-            img.src = sets[set].tiles.replace("{z}", tz).replace("{x}", wx).replace("{y}", ty);
+            if (dense(set)) {
+              img.stPlain = tileURL(sets[set].tiles, tz, wx, ty);
+              img.src = tileURL(sets[set].tiles_2x, tz, wx, ty);
+            } else {
+              img.src = tileURL(sets[set].tiles, tz, wx, ty);
+            }
             L.tiles[key] = img;
             L.el.appendChild(img);
           }

@@ -53,7 +53,28 @@ type viewerFixture struct {
 	once   sync.Once
 }
 
-var demo2, dotMap viewerFixture
+var demo2, dotMap, denseMap viewerFixture
+
+// demoDense renders the demo city at 10 people per dot with @2x tiles
+// (build.Options.HiDPI), viewer and all, as `stipple render --hidpi` does.
+func demoDense(t *testing.T) *viewerFixture {
+	t.Helper()
+	denseMap.once.Do(func() {
+		dir := filepath.Join(tmpRoot, "dense")
+		m := demoMap(t, 10, dir)
+		sum, err := build.Run(context.Background(), m, build.Options{Layer: demo.City(1), HiDPI: true})
+		if err != nil {
+			denseMap.err = err
+			return
+		}
+		denseMap.Layers = []layerFixture{{Map: m, Meta: sum.Metadata}}
+		denseMap.Dir = dir
+	})
+	if denseMap.err != nil {
+		t.Fatalf("dense demo fixture: %v", denseMap.err)
+	}
+	return &denseMap
+}
 
 // demoTwo renders the demo city twice, at 10 and at 25 people per dot, into
 // sub-folders "ten" and "quarter" with boundary outlines, and writes one

@@ -18,16 +18,21 @@ import (
 	"github.com/stipple-maps/stipple/tiles"
 )
 
-// Metadata describes the finished map.
+// Metadata describes the finished map. It names the @2x tile template
+// when s counts @2x tiles, so a one-machine render, the final step of a
+// sharded one and a batch extent all say the same.
 func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 	b := s.Bounds
 	md := &tiles.Metadata{
 		Format: "stipple-map/1", Version: Version, Title: m.Title, Credit: m.Credit,
 		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
-		Tiles: "{z}/{x}/{y}.png", PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
+		Tiles: tiles.TilesTemplate, PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
 		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution,
 		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
+	}
+	if s.Tiles.Tiles2x > 0 {
+		md.Tiles2x = tiles.Tiles2xTemplate
 	}
 	md.Center = [3]float64{(b.Min[0] + b.Max[0]) / 2, (b.Min[1] + b.Max[1]) / 2, float64(FitZoom(b, 900, 600, m.Tiles.MinZoom, m.Tiles.MaxZoom))}
 	for k, c := range m.Categories {
