@@ -18,10 +18,12 @@ import (
 // for the palette's alpha), truecolour with alpha otherwise. Indexed rows
 // and sparse truecolour rows are stored with filter type 0 (None); mostly
 // inked truecolour tiles use Up (see FilterAuto). The zlib stream comes from
-// render/deflate, which codes only runs and pixel repeats: on dot tiles,
-// mostly empty or flat, that is several times faster than general LZ77 and
-// about as small (BenchmarkEncode). The output depends on the pixels alone.
-// An Encoder is safe for concurrent use.
+// render/deflate: indexed rows are coded as runs, pixel repeats and
+// literals; sparse truecolour rows as their inked pixels and runs of empty
+// ones; filtered rows with Huffman codes only. On dot tiles, mostly empty or
+// flat, that is many times faster than image/png and about as small
+// (BenchmarkEncode). The output depends on the pixels alone. An Encoder is
+// safe for concurrent use.
 type Encoder struct {
 	// Filter chooses the PNG row filter of truecolour tiles; indexed rows
 	// are never filtered.
@@ -93,7 +95,7 @@ func (e *Encoder) Encode(w io.Writer, img *image.NRGBA) error {
 		st.runs = inkRuns(st.runs[:0], st.ink, wpr, wd, h)
 		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, FilterNone), 0, 0, st.runs)
 	default:
-		data = st.write(wd, h, nil, st.rgbaRows(img, wd, h, e.Filter), 0, 0, nil)
+		data = st.writeFiltered(wd, h, st.rgbaRows(img, wd, h, e.Filter))
 	}
 	_, err := w.Write(data)
 	return err
@@ -116,10 +118,19 @@ func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
 		st.runs = inkRuns(st.runs[:0], t.ink, t.wpr, t.w, t.h)
 		data = st.write(t.w, t.h, nil, t.rgba, 0, 0, st.runs)
 	} else {
-		data = st.write(t.w, t.h, nil, st.rgbaRows(t.Image, t.w, t.h, e.Filter), 0, 0, nil)
+		data = st.writeFiltered(t.w, t.h, st.rgbaRows(t.Image, t.w, t.h, e.Filter))
 	}
 	_, err := w.Write(data)
 	return err
+}
+
+// writeFiltered makes the PNG file of truecolour rows filtered with Sub or
+// Up, Huffman-coded only: a mostly inked tile after the filter is small
+// differences with few long repeats, where searching for matches costs more
+// than it saves (BenchmarkEncode, dots=20000).
+func (st *encState) writeFiltered(w, h int, rows []byte) []byte {
+	st.runs = append(st.runs[:0], uint32(len(rows)), 0)
+	return st.write(w, h, nil, rows, 0, 0, st.runs)
 }
 
 // write makes the PNG file. With a palette, ind holds the indices, row y
