@@ -36,6 +36,10 @@ type Canvas struct {
 	// single when cats is one bit below bit 7.
 	cats    []uint8
 	touched bool
+	// stampCells are the cells of stamp as offsets into this canvas
+	// (bindStamp).
+	stamp      *Stamp
+	stampCells [Sub * Sub][]boundCell
 }
 
 // catBit is the bit of category k in Canvas.cats.

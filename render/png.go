@@ -250,30 +250,32 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int, f RowFilter) []byte {
 // pixels whose bit is set in ink (wpr words a row), zero bytes for the
 // filter bytes and the other pixels.
 func inkRuns(runs []uint32, ink []uint64, wpr, w, h int) []uint32 {
-	var lit, zero uint32
-	add := func(inked bool, n uint32) {
-		if !inked {
-			zero += n
-			return
-		}
-		if zero > 0 {
-			runs = append(runs, lit, zero)
-			lit, zero = 0, 0
-		}
-		lit += n
-	}
+	var lit, zero uint32 // the stretch being gathered: literals, then zeros
 	for y := 0; y < h; y++ {
-		add(false, 1) // filter type 0
+		zero++ // filter type 0
 		row := ink[y*wpr : (y+1)*wpr]
 		for x := 0; x < w; {
-			m := row[x>>6] >> (x & 63)
-			inked := m&1 != 0
-			if !inked {
-				m = ^m
+			wi, sh := x>>6, uint(x&63)
+			m := row[wi] >> sh
+			left := min(64-int(sh), w-x) // pixels of this word from x on
+			if m == 0 {
+				zero += uint32(4 * left)
+				x += left
+				continue
 			}
-			// Pixels from x on with the same state, within this word.
-			n := min(bits.TrailingZeros64(^m), 64-x&63, w-x)
-			add(inked, uint32(4*n))
+			// Empty pixels, then inked ones.
+			if e := bits.TrailingZeros64(m); e > 0 {
+				zero += uint32(4 * e)
+				x += e
+				m >>= uint(e)
+				left -= e
+			}
+			n := min(bits.TrailingZeros64(^m), left)
+			if zero > 0 {
+				runs = append(runs, lit, zero)
+				lit, zero = 0, 0
+			}
+			lit += uint32(4 * n)
 			x += n
 		}
 	}

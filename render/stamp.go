@@ -81,6 +81,25 @@ func stampWeight(r, ink float64, dx, dy, fx, fy int) uint32 {
 	return uint32(cov*ink + 0.5)
 }
 
+// boundCell is a stamp cell as an offset into one canvas's pixels.
+type boundCell struct {
+	off int32
+	w   uint32
+}
+
+// bindStamp turns s's cells into offsets for c's width; AddStamp keeps the
+// last stamp's, so drawing many dots of one stamp computes them once.
+func (c *Canvas) bindStamp(s *Stamp) {
+	c.stamp = s
+	for f := range s.cells {
+		bc := c.stampCells[f][:0]
+		for _, e := range s.cells[f] {
+			bc = append(bc, boundCell{int32(int(e.dy)*c.W + int(e.dx)), uint32(e.w)})
+		}
+		c.stampCells[f] = bc
+	}
+}
+
 // Dot is the look the stamp draws.
 func (s *Stamp) Dot() Dot { return s.d }
 
@@ -97,21 +116,25 @@ func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 	R := s.reach
 	if ix >= R && iy >= R && ix+R < c.W && iy+R < c.H {
 		pix := iy*c.W + ix
+		if c.stamp != s {
+			c.bindStamp(s)
+		}
+		cells := c.stampCells[f]
 		if cat < 7 {
 			bit := uint8(1) << cat
 			for _, e := range cells {
-				q := pix + int(e.dy)*c.W + int(e.dx)
+				q := pix + int(e.off)
 				if cb := c.cats[q]; cb == 0 || cb == bit {
-					c.tot[q] += uint32(e.w)
+					c.tot[q] += e.w
 					c.cats[q] = bit
 				} else {
-					c.mixed(q, cat, cb)[cat] += uint32(e.w)
+					c.mixed(q, cat, cb)[cat] += e.w
 				}
 			}
 		} else {
 			for _, e := range cells {
-				q := pix + int(e.dy)*c.W + int(e.dx)
-				c.mixed(q, cat, c.cats[q])[cat] += uint32(e.w)
+				q := pix + int(e.off)
+				c.mixed(q, cat, c.cats[q])[cat] += e.w
 			}
 		}
 		for _, sp := range s.spans[f] {
