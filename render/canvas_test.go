@@ -49,19 +49,40 @@ func TestAddStampMatchesReference(t *testing.T) {
 	const seed = 3
 	t.Logf("seed %d", seed)
 	rng := rand.New(rand.NewPCG(seed, 9))
-	for _, diam := range []float64{1, 1.5, 2.2, 3, 4.7, 9} {
-		d := Dot{Diameter: diam, Opacity: 0.8}
-		st := NewStamp(d)
-		got, want := NewCanvas(24, 20, 3), newRef(24, 20, 3)
-		for i := 0; i < 300; i++ {
-			// Centres from well outside to well inside, edges included.
-			x, y := rng.IntN(40*Sub)-8*Sub, rng.IntN(36*Sub)-8*Sub
-			cat := rng.IntN(3)
-			got.AddStamp(cat, x, y, st)
-			refStamp(want, cat, x, y, d)
-		}
-		if !slices.Equal(coverage(got), want.Cov) {
-			t.Errorf("diameter %v: AddStamp differs from the reference", diam)
+	// Three categories; nine, so that categories 7 and 8 share the
+	// canvas's "7 and above" bit and always take the per-category cells.
+	for _, ncat := range []int{3, 9} {
+		for _, diam := range []float64{1, 1.5, 2.2, 3, 4.7, 9} {
+			d := Dot{Diameter: diam, Opacity: 0.8}
+			st := NewStamp(d)
+			got, want := NewCanvas(24, 20, ncat), newRef(24, 20, ncat)
+			for i := 0; i < 300; i++ {
+				// Centres from well outside to well inside, edges included.
+				x, y := rng.IntN(40*Sub)-8*Sub, rng.IntN(36*Sub)-8*Sub
+				cat := rng.IntN(ncat)
+				got.AddStamp(cat, x, y, st)
+				refStamp(want, cat, x, y, d)
+			}
+			if !slices.Equal(coverage(got), want.Cov) {
+				t.Errorf("%d categories, diameter %v: AddStamp differs from the reference", ncat, diam)
+			}
+			// Compositing drains the canvas; the pixels match the
+			// reference compositing of the reference coverage.
+			colors := make([]color.NRGBA, ncat)
+			for k := range colors {
+				colors[k] = color.NRGBA{uint8(30 * k), uint8(255 - 20*k), uint8(90 + 15*k), 255}
+			}
+			tile := NewTile(24, 20)
+			wantPix := refComposite(&Canvas{W: 24, H: 20, NCat: ncat}, colors, 1<<gainBits, want.Cov)
+			got.CompositeTile(colors, tile)
+			for y := 0; y < 20; y++ {
+				if g, w := tile.Image.Pix[y*tile.Image.Stride:][:4*24], wantPix[y*4*24:][:4*24]; !slices.Equal(g, w) {
+					t.Fatalf("%d categories, diameter %v: row %d composited differently", ncat, diam, y)
+				}
+			}
+			if !got.Empty() || slices.ContainsFunc(coverage(got), func(v uint32) bool { return v != 0 }) {
+				t.Fatalf("CompositeTile left coverage behind")
+			}
 		}
 	}
 }
@@ -86,14 +107,21 @@ func TestStampAgreesWithAdd(t *testing.T) {
 	}
 }
 
-// refComposite is the plain per-pixel reference for composite.
-func refComposite(c *Canvas, colors []color.NRGBA, gain uint64) []uint8 {
+// refComposite is the plain per-pixel reference for composite, over c's
+// coverage or, when given, over cov laid out as cov[(y*W+x)*NCat+cat].
+func refComposite(c *Canvas, colors []color.NRGBA, gain uint64, cov ...[]uint32) []uint8 {
 	out := make([]uint8, 4*c.W*c.H)
+	at := func(p, k int) uint32 {
+		if len(cov) > 0 {
+			return cov[0][p*c.NCat+k]
+		}
+		return c.Coverage(p%c.W, p/c.W, k)
+	}
 	full := uint64(One) << gainBits
 	for p := 0; p < c.W*c.H; p++ {
 		var sum, r, g, b uint64
 		for k := 0; k < c.NCat; k++ {
-			w := uint64(c.Coverage(p%c.W, p/c.W, k))
+			w := uint64(at(p, k))
 			sum += w
 			r += w * uint64(colors[k].R)
 			g += w * uint64(colors[k].G)
