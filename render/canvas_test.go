@@ -302,3 +302,41 @@ func BenchmarkDrawTile(b *testing.B) {
 		})
 	}
 }
+
+// TestCountNIsRepeatedCount: CountN(n) leaves the canvas as n calls of
+// Count would, in single and mixed pixels, for categories below and from
+// 7 on, and saturates the same way.
+func TestCountNIsRepeatedCount(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		adds [][2]int // category, n
+	}{
+		{"one category", [][2]int{{2, 5}, {2, 7}}},
+		{"two categories", [][2]int{{1, 3}, {4, 2}, {1, 1}}},
+		{"high categories", [][2]int{{8, 4}, {7, 2}, {0, 1}}},
+		{"zero", [][2]int{{3, 0}}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			a, b := NewCanvas(4, 4, 9), NewCanvas(4, 4, 9)
+			for _, add := range tc.adds {
+				a.CountN(add[0], 1, 2, uint32(add[1]))
+				for range add[1] {
+					b.Count(add[0], 1, 2)
+				}
+			}
+			if !slices.Equal(coverage(a), coverage(b)) || a.Empty() != b.Empty() {
+				t.Errorf("CountN %v differs from repeated Count", tc.adds)
+			}
+		})
+	}
+	c := NewCanvas(2, 2, 3)
+	c.CountN(1, 0, 0, math.MaxUint32-1)
+	c.CountN(1, 0, 0, 5)
+	if got := c.Coverage(0, 0, 1); got != math.MaxUint32 {
+		t.Errorf("saturated single count = %d", got)
+	}
+	c.CountN(2, 0, 0, 3) // now mixed: the saturated count moves to its cell
+	if c.Coverage(0, 0, 1) != math.MaxUint32 || c.Coverage(0, 0, 2) != 3 {
+		t.Errorf("mixed counts %d, %d", c.Coverage(0, 0, 1), c.Coverage(0, 0, 2))
+	}
+}

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"image"
 	"image/color"
 	"math"
 	"runtime"
@@ -87,7 +86,7 @@ func RenderLow(ctx context.Context, s *Summary, l *Layout, out sink.Sink, opt Lo
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			r := &lowRenderer{enc: render.NewEncoder(), ncat: len(opt.Colors), canvas: map[int]*render.Canvas{}, img: map[int]*image.NRGBA{}}
+			r := &lowRenderer{enc: render.NewEncoder(), ncat: len(opt.Colors), canvas: map[int]*render.Canvas{}, tile: map[int]*render.Tile{}}
 			for j := range ch {
 				if failed.Load() != nil || ctx.Err() != nil {
 					continue
@@ -131,7 +130,7 @@ type lowRenderer struct {
 	enc    *render.Encoder
 	ncat   int
 	canvas map[int]*render.Canvas
-	img    map[int]*image.NRGBA
+	tile   map[int]*render.Tile
 	buf    bytes.Buffer
 }
 
@@ -141,7 +140,7 @@ func (r *lowRenderer) draw(s *Summary, p Pyramid, j lowJob, colors []color.NRGBA
 	if c == nil {
 		c = render.NewCanvas(T, T, r.ncat)
 		r.canvas[T] = c
-		r.img[T] = image.NewNRGBA(image.Rect(0, 0, T, T))
+		r.tile[T] = render.NewTile(T, T)
 	}
 	c.Reset()
 	shift := log2(T)
@@ -154,17 +153,13 @@ func (r *lowRenderer) draw(s *Summary, p Pyramid, j lowJob, colors []color.NRGBA
 			return nil, fmt.Errorf("shard: summary has category %d; the map has %d", cat, r.ncat)
 		}
 		px, py := int(wx>>ps)-ox, int(wy>>ps)-oy
-		// One Count per dot, as tiles.Write does: the canvas keeps more
-		// than Cov (per-pixel totals, touched spans), so counts are not
-		// written into it directly. A count past the largest uint32 would
-		// saturate in Count anyway.
-		for k := min(s.Counts[i], math.MaxUint32); k > 0; k-- {
-			c.Count(cat, px, py)
-		}
+		// The summary's count at once: the same pixels as one Count per
+		// dot, which is what tiles.Write does.
+		c.CountN(cat, px, py, uint32(min(s.Counts[i], math.MaxUint32)))
 	}
-	c.CompositeCounts(colors, p.look(j.z, j.ps).Mass(), r.img[T])
+	c.CompositeCountsTile(colors, p.look(j.z, j.ps).Mass(), r.tile[T])
 	r.buf.Reset()
-	if err := r.enc.Encode(&r.buf, r.img[T]); err != nil {
+	if err := r.enc.EncodeTile(&r.buf, r.tile[T]); err != nil {
 		return nil, fmt.Errorf("shard: %d/%d/%d: %w", j.z, j.x, j.y, err)
 	}
 	return bytes.Clone(r.buf.Bytes()), nil
