@@ -8,7 +8,7 @@ import (
 	"testing"
 )
 
-// TestHiDPIMetadata renders the demo city (to zoom 12) without and with
+// TestHiDPIMetadata renders the demo city (to zoom 13) without and with
 // --hidpi: map.json and map-data.js name the @2x tiles exactly when they
 // were written. The same render as two parts and the final step must give
 // the same files, byte for byte, map.json included.
@@ -24,7 +24,7 @@ func TestHiDPIMetadata(t *testing.T) {
 	render := func(args ...string) {
 		t.Helper()
 		var out, errOut bytes.Buffer
-		args = append([]string{"render", m.Path, "--max-zoom", "12", "--workers", "2"}, args...)
+		args = append([]string{"render", m.Path, "--max-zoom", "13", "--workers", "2"}, args...)
 		if code := run(context.Background(), args, &out, &errOut); code != 0 {
 			t.Fatalf("stipple %s: exit %d\n%s%s", strings.Join(args, " "), code, out.String(), errOut.String())
 		}
