@@ -1,7 +1,10 @@
 package viewertest
 
 import (
+	"bytes"
 	"fmt"
+	"image"
+	"image/png"
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
@@ -9,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/chromedp/chromedp"
+	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
 )
 
@@ -141,4 +145,40 @@ func TestDenseTileFallsBackTo1x(t *testing.T) {
 			t.Errorf("exception: %s", m.String())
 		}
 	}
+}
+
+// TestDenseDotSizeOnScreen opens the one-dot map with @2x tiles (a dot 30
+// px wide at zoom 14) at device scale 2: the dot is drawn from the @2x tile
+// and is 30 CSS pixels (60 device pixels) wide, not twice that.
+func TestDenseDotSizeOnScreen(t *testing.T) {
+	f := oneDotDense(t)
+	srv := serve(t, f.Dir)
+	tb := newTab(t, 1280, 800, chromedp.EmulateScale(2))
+	st := tb.open(srv.URL + fmt.Sprintf("/index.html#z=14.00&lat=%.5f&lon=%.5f", dotAt[1], dotAt[0]))
+	checkDrawn(t, "one dot", tb, st, true)
+	shot, err := chromedp.Run(tb.ctx, chromedp.CaptureScreenshot())
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(shot))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if img.Bounds().Dx() != 2560 {
+		t.Fatalf("screenshot %v wide; want 2560 device pixels", img.Bounds())
+	}
+	want, _ := render.ParseHex(dotColor)
+	paper, _ := render.ParseHex("#f2efe7")
+	// Device pixels: the dot's centre is at (1280, 800), its radius 30.
+	for _, p := range []image.Point{{1280, 800}, {1280 - 25, 800}, {1280 + 25, 800}, {1280, 800 - 25}, {1280, 800 + 25}} {
+		if !near(img, p, want) {
+			t.Errorf("pixel %v is %v; want the category colour %s", p, img.At(p.X, p.Y), dotColor)
+		}
+	}
+	for _, p := range []image.Point{{1280 - 36, 800}, {1280 + 36, 800}, {1280, 800 - 36}, {1280, 800 + 36}} {
+		if !near(img, p, paper) {
+			t.Errorf("pixel %v is %v; want the map ground (a dot twice too big reaches it)", p, img.At(p.X, p.Y))
+		}
+	}
+	tb.clean()
 }

@@ -133,6 +133,54 @@ var dotAt = orb.Point{10.00002, 20.00002}
 
 const dotColor = "#D55E00" // Okabe & Ito vermillion
 
+var dotDense viewerFixture
+
+// oneDotDense renders the one-dot map of oneDot with @2x tiles, as a single
+// map with build's own viewer, with a dot 30 px wide at zoom 14 (60 px in the
+// @2x tiles: the renderer draws no disc wider than render.MaxStampDiameter).
+func oneDotDense(t *testing.T) *viewerFixture {
+	t.Helper()
+	dotDense.once.Do(func() {
+		dir := filepath.Join(tmpRoot, "onedot-dense")
+		layer, m, err := oneDotMap(dir, 30)
+		if err != nil {
+			dotDense.err = err
+			return
+		}
+		sum, err := build.Run(context.Background(), m, build.Options{Layer: layer, HiDPI: true})
+		if err != nil {
+			dotDense.err = err
+			return
+		}
+		dotDense.Layers = []layerFixture{{Map: m, Meta: sum.Metadata}}
+		dotDense.Dir = dir
+	})
+	if dotDense.err != nil {
+		t.Fatalf("dense one-dot fixture: %v", dotDense.err)
+	}
+	return &dotDense
+}
+
+// oneDotMap is the one-dot map's layer and map file, writing into dir, with
+// a dot diameter px wide at zoom 14.
+func oneDotMap(dir string, diameter float64) (*geo.Layer, *mapfile.Map, error) {
+	d := 0.00002
+	ring := orb.Ring{{dotAt[0] - d, dotAt[1] - d}, {dotAt[0] + d, dotAt[1] - d}, {dotAt[0] + d, dotAt[1] + d}, {dotAt[0] - d, dotAt[1] + d}, {dotAt[0] - d, dotAt[1] - d}}
+	layer := &geo.Layer{Path: "synthetic", Name: "synthetic", Fields: []string{"n"}, Features: []geo.Feature{{
+		Index: 0, ID: "only", Geometry: orb.MultiPolygon{{ring}}, Props: map[string]any{"n": int64(1)},
+	}}}
+	text := fmt.Sprintf("title = %q\ncredit = %q\npeople_per_dot = 1\nseed = 7\n", evilTitle, evilCredit) +
+		"[input]\nfile = \"synthetic.geojson\"\n[tiles]\nmin_zoom = 10\nmax_zoom = 14\nsize = 256\n" +
+		fmt.Sprintf("[dots]\ndiameter = %v\nmin_diameter = 2\nopacity = 1\n", diameter) +
+		fmt.Sprintf("[[category]]\nkey = \"n\"\nlabel = %q\ncolor = %q\nfields = [\"n\"]\n", evilLabel, dotColor)
+	m, err := mapfile.Parse(filepath.Join(dir, "map.toml"), []byte(text))
+	if err != nil {
+		return nil, nil, err
+	}
+	m.Out = dir
+	return layer, m, nil
+}
+
 // oneDot renders a synthetic map holding one person in a 4 m square at
 // dotAt: one dot, 40 px wide at zoom 14, fully opaque, labelled with hostile
 // text. Its viewer shows the map twice (two layers on the same tiles) so
@@ -141,21 +189,11 @@ func oneDot(t *testing.T) *viewerFixture {
 	t.Helper()
 	dotMap.once.Do(func() {
 		dir := filepath.Join(tmpRoot, "onedot")
-		d := 0.00002
-		ring := orb.Ring{{dotAt[0] - d, dotAt[1] - d}, {dotAt[0] + d, dotAt[1] - d}, {dotAt[0] + d, dotAt[1] + d}, {dotAt[0] - d, dotAt[1] + d}, {dotAt[0] - d, dotAt[1] - d}}
-		layer := &geo.Layer{Path: "synthetic", Name: "synthetic", Fields: []string{"n"}, Features: []geo.Feature{{
-			Index: 0, ID: "only", Geometry: orb.MultiPolygon{{ring}}, Props: map[string]any{"n": int64(1)},
-		}}}
-		text := fmt.Sprintf("title = %q\ncredit = %q\npeople_per_dot = 1\nseed = 7\n", evilTitle, evilCredit) +
-			"[input]\nfile = \"synthetic.geojson\"\n[tiles]\nmin_zoom = 10\nmax_zoom = 14\nsize = 256\n" +
-			"[dots]\ndiameter = 40\nmin_diameter = 2\nopacity = 1\n" +
-			fmt.Sprintf("[[category]]\nkey = \"n\"\nlabel = %q\ncolor = %q\nfields = [\"n\"]\n", evilLabel, dotColor)
-		m, err := mapfile.Parse(filepath.Join(dir, "map.toml"), []byte(text))
+		layer, m, err := oneDotMap(dir, 40)
 		if err != nil {
 			dotMap.err = err
 			return
 		}
-		m.Out = dir
 		sum, err := build.Run(context.Background(), m, build.Options{Layer: layer})
 		if err != nil {
 			dotMap.err = err
