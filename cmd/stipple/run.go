@@ -163,6 +163,9 @@ func (o *overrides) apply(m *mapfile.Map) error {
 	if err := m.CheckZooms(); err != nil {
 		return usageError{err.Error()}
 	}
+	if o.hidpi && m.Dots.Diameter > mapfile.MaxHiDPIDiameter {
+		return &mapfile.Error{Path: m.Path, Key: "dots.diameter", Msg: fmt.Sprintf("is %v; --hidpi draws dots at twice the pixels, at most 64, so want at most %v", m.Dots.Diameter, mapfile.MaxHiDPIDiameter)}
+	}
 	return nil
 }
 

@@ -120,6 +120,27 @@ func TestMapFileErrorsNameFileLineAndKey(t *testing.T) {
 			t.Errorf("got %q; want category[2].fields missing", stderr.String())
 		}
 	})
+	// @2x tiles draw dots at twice the pixels, and stamps stop at 64: a
+	// wider dot is refused with the key named, from the file or the flag.
+	t.Run("wide dots with hidpi", func(t *testing.T) {
+		for _, tc := range []struct{ hidpiKey, flag string }{{"hidpi = true\n", ""}, {"", "--hidpi"}} {
+			m := writeMap(t, input, t.TempDir(), "")
+			b, _ := os.ReadFile(m)
+			s := strings.Replace(string(b), "max_zoom = 14\n", "max_zoom = 14\n"+tc.hidpiKey+"\n[dots]\ndiameter = 40\n", 1)
+			os.WriteFile(m, []byte(s), 0o644)
+			args := []string{"render", m}
+			if tc.flag != "" {
+				args = append(args, tc.flag)
+			}
+			var stderr bytes.Buffer
+			if code := run(context.Background(), args, new(bytes.Buffer), &stderr); code != 1 {
+				t.Fatalf("%v: exit %d; want 1 (%s)", args, code, stderr.String())
+			}
+			if !strings.Contains(stderr.String(), "key dots.diameter: is 40") || !strings.Contains(stderr.String(), "at most 32") || strings.Count(strings.TrimSpace(stderr.String()), "\n") != 0 {
+				t.Errorf("%v: got %q", args, stderr.String())
+			}
+		}
+	})
 	t.Run("no input", func(t *testing.T) {
 		p := filepath.Join(t.TempDir(), "m.toml")
 		os.WriteFile(p, []byte("title = \"x\"\n"), 0o644)

@@ -108,6 +108,11 @@ var Defaults = Map{
 	Dots:         Dots{Diameter: 3, MinDiameter: 0.6, Opacity: 0.9},
 }
 
+// MaxHiDPIDiameter is the widest dot a map with @2x tiles may ask for:
+// @2x tiles draw it at twice the pixels, and the renderer's stamps are at
+// most 64 pixels wide.
+const MaxHiDPIDiameter = 32
+
 // Error is a problem at one place in a map file.
 type Error struct {
 	Path string
@@ -207,6 +212,9 @@ func (m *Map) check(md toml.MetaData, lines []string) error {
 	}
 	if !(m.Dots.Diameter > 0 && m.Dots.Diameter <= 64) {
 		return errAt("wants a diameter in pixels above 0 and at most 64", "dots", "diameter")
+	}
+	if m.Tiles.HiDPI && m.Dots.Diameter > MaxHiDPIDiameter {
+		return errAt(fmt.Sprintf("is %v with tiles.hidpi; @2x tiles draw dots at twice the pixels, at most 64, so want at most %v", m.Dots.Diameter, MaxHiDPIDiameter), "dots", "diameter")
 	}
 	if !(m.Dots.MinDiameter > 0 && m.Dots.MinDiameter <= m.Dots.Diameter) {
 		return errAt("wants a size above 0 and at most dots.diameter", "dots", "min_diameter")
