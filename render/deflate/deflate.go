@@ -8,7 +8,9 @@
 // stream is one dynamic-Huffman block whose codes are built from the
 // stream's own symbol counts. It makes no hash table and searches no
 // window, so its cost is one pass over the bytes (a word at a time through
-// runs) plus one pass writing codes.
+// runs) plus one pass writing codes. A caller that already knows where the
+// data is zero (a tile knows its empty pixels) passes that layout to
+// ZlibRuns and the empty stretches are not read at all.
 //
 // Output is a function of the input bytes and the pixel size alone, and any
 // zlib decoder reads it.
