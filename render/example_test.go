@@ -40,3 +40,27 @@ func ExampleEncoder() {
 	fmt.Println(cfg.Width, cfg.Height, "bit depth", buf.Bytes()[24], "colour type", buf.Bytes()[25])
 	// Output: 16 16 bit depth 4 colour type 3
 }
+
+// The tile path: dots composite straight into a Tile, which gathers its
+// palette on the way and leaves the canvas empty for the next tile;
+// EncodeTile writes the bytes Encode would write for the same pixels.
+func ExampleCanvas_CompositeTile() {
+	colors := []color.NRGBA{{0, 114, 178, 255}, {230, 159, 0, 255}}
+	c := render.NewCanvas(64, 64, 2)
+	t := render.NewTile(64, 64)
+	st := render.NewStamp(render.Dot{Diameter: 3, Opacity: 0.9})
+	for i := 0; i < 40; i++ {
+		c.AddStamp(i%2, (3+i*37%58)*render.Sub, (3+i*23%58)*render.Sub, st)
+	}
+	c.CompositeTile(colors, t)
+	pal, indexed := t.Colors()
+	var a, b bytes.Buffer
+	e := render.NewEncoder()
+	e.EncodeTile(&a, t)
+	e.Encode(&b, t.Image)
+	fmt.Println("indexed:", indexed, "colours:", len(pal), "first:", pal[0])
+	fmt.Println("canvas empty:", c.Empty(), "same bytes as Encode:", bytes.Equal(a.Bytes(), b.Bytes()))
+	// Output:
+	// indexed: true colours: 11 first: {0 0 0 0}
+	// canvas empty: true same bytes as Encode: true
+}
