@@ -233,16 +233,29 @@ func (st *encState) rgbaRows(img *image.NRGBA, w, h int, f RowFilter) []byte {
 			if y == 0 {
 				copy(r[1:], src)
 			} else {
-				up := row(y - 1)
-				for i := range src {
-					r[1+i] = src[i] - up[i]
-				}
+				subBytes(r[1:], src, row(y-1))
 			}
 		default:
 			copy(r[1:], src)
 		}
 	}
 	return st.raw
+}
+
+// subBytes sets dst[i] = a[i] − b[i] (mod 256), eight bytes a step: the
+// low seven bits of each byte are subtracted with the top bit of a set,
+// so no borrow crosses into the next byte, and the top bit is then put
+// right (a classic SIMD-within-a-register subtraction).
+func subBytes(dst, a, b []byte) {
+	const hi = 0x8080808080808080
+	n := len(a) &^ 7
+	for i := 0; i < n; i += 8 {
+		x, y := binary.LittleEndian.Uint64(a[i:]), binary.LittleEndian.Uint64(b[i:])
+		binary.LittleEndian.PutUint64(dst[i:], ((x|hi)-(y&^hi))^((x^^y)&hi))
+	}
+	for i := n; i < len(a); i++ {
+		dst[i] = a[i] - b[i]
+	}
 }
 
 // inkRuns lists the stretches of truecolour scanlines (filter byte, then

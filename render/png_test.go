@@ -286,3 +286,20 @@ func TestEncodeTileMatchesEncode(t *testing.T) {
 		})
 	}
 }
+
+// TestSubBytesMatchesPlainLoop compares the word-at-a-time subtraction with
+// a byte loop on every pair of byte values and odd lengths.
+func TestSubBytesMatchesPlainLoop(t *testing.T) {
+	a, b := make([]byte, 256*256+5), make([]byte, 256*256+5)
+	for i := range 256 * 256 {
+		a[i], b[i] = byte(i>>8), byte(i)
+	}
+	a[len(a)-1], b[len(b)-1] = 3, 250
+	got := make([]byte, len(a))
+	subBytes(got, a, b)
+	for i := range a {
+		if want := a[i] - b[i]; got[i] != want {
+			t.Fatalf("byte %d: %d − %d = %d, want %d", i, a[i], b[i], got[i], want)
+		}
+	}
+}

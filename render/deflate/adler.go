@@ -20,7 +20,16 @@ func (a *adler) bytes(p []byte) {
 	for len(p) > 0 {
 		c := p[:min(len(p), adlerBlock)]
 		p = p[len(c):]
-		for _, b := range c {
+		// Four bytes a step: s2 gains 4·s1 and the bytes weighted 4, 3,
+		// 2, 1, which keeps the step-to-step chain short.
+		n4 := len(c) &^ 3
+		for i := 0; i < n4; i += 4 {
+			q := c[i : i+4 : i+4]
+			b0, b1, b2, b3 := uint64(q[0]), uint64(q[1]), uint64(q[2]), uint64(q[3])
+			s2 += 4*s1 + 4*b0 + 3*b1 + 2*b2 + b3
+			s1 += b0 + b1 + b2 + b3
+		}
+		for _, b := range c[n4:] {
 			s1 += uint64(b)
 			s2 += s1
 		}

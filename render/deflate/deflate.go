@@ -289,9 +289,14 @@ func (e *Encoder) block(dst, data []byte) []byte {
 	h.writeHeader(&w)
 	// Each literal's code and length in one word: code | length<<16.
 	var lit [256]uint32
+	longest := uint8(0)
 	for b := range lit {
 		lit[b] = h.litLen.code[b] | uint32(h.litLen.len[b])<<16
+		longest = max(longest, h.litLen.len[b])
 	}
+	// Four literals fit a step when no literal code is longer than 14
+	// bits: 4 × 14 + 7 left over ≤ 64.
+	four := longest <= 14
 	ll, dc := &h.litLen, &h.distC
 	// Room for the longest codes (15 bits a literal, 48 a match) and for
 	// the 8-byte stores below.
@@ -311,8 +316,29 @@ func (e *Encoder) block(dst, data []byte) []byte {
 	for _, s := range e.segs {
 		lits := data[pos : pos+int(s.lits)]
 		pos += int(s.lits)
-		// Three literals (at most 45 bits) a step.
 		j := 0
+		if four {
+			// Four literals (at most 4 × 14 bits) a step.
+			for ; j+4 <= len(lits); j += 4 {
+				a := lit[lits[j]]
+				b := lit[lits[j+1]]
+				c := lit[lits[j+2]]
+				d := lit[lits[j+3]]
+				acc |= uint64(a&0xffff) << nb
+				nb += uint(a >> 16)
+				acc |= uint64(b&0xffff) << nb
+				nb += uint(b >> 16)
+				acc |= uint64(c&0xffff) << nb
+				nb += uint(c >> 16)
+				acc |= uint64(d&0xffff) << nb
+				nb += uint(d >> 16)
+				binary.LittleEndian.PutUint64(out[o:], acc)
+				o += int(nb >> 3)
+				acc >>= nb &^ 7
+				nb &= 7
+			}
+		}
+		// Three literals (at most 45 bits) a step.
 		for ; j+3 <= len(lits); j += 3 {
 			a := lit[lits[j]]
 			b := lit[lits[j+1]]
