@@ -320,49 +320,24 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		if four {
 			// Four literals (at most 4 × 14 bits) a step.
 			for ; j+4 <= len(lits); j += 4 {
-				a := lit[lits[j]]
-				b := lit[lits[j+1]]
-				c := lit[lits[j+2]]
-				d := lit[lits[j+3]]
-				acc |= uint64(a&0xffff) << nb
-				nb += uint(a >> 16)
-				acc |= uint64(b&0xffff) << nb
-				nb += uint(b >> 16)
-				acc |= uint64(c&0xffff) << nb
-				nb += uint(c >> 16)
-				acc |= uint64(d&0xffff) << nb
-				nb += uint(d >> 16)
-				binary.LittleEndian.PutUint64(out[o:], acc)
-				o += int(nb >> 3)
-				acc >>= nb &^ 7
-				nb &= 7
+				acc, nb = put(acc, nb, lit[lits[j]])
+				acc, nb = put(acc, nb, lit[lits[j+1]])
+				acc, nb = put(acc, nb, lit[lits[j+2]])
+				acc, nb = put(acc, nb, lit[lits[j+3]])
+				o, acc, nb = store(out, o, acc, nb)
 			}
 		}
 		// Three literals (at most 45 bits) a step.
 		for ; j+3 <= len(lits); j += 3 {
-			a := lit[lits[j]]
-			b := lit[lits[j+1]]
-			c := lit[lits[j+2]]
-			acc |= uint64(a&0xffff) << nb
-			nb += uint(a >> 16)
-			acc |= uint64(b&0xffff) << nb
-			nb += uint(b >> 16)
-			acc |= uint64(c&0xffff) << nb
-			nb += uint(c >> 16)
-			binary.LittleEndian.PutUint64(out[o:], acc)
-			o += int(nb >> 3)
-			acc >>= nb &^ 7
-			nb &= 7
+			acc, nb = put(acc, nb, lit[lits[j]])
+			acc, nb = put(acc, nb, lit[lits[j+1]])
+			acc, nb = put(acc, nb, lit[lits[j+2]])
+			o, acc, nb = store(out, o, acc, nb)
 		}
-		for ; j < len(lits); j++ {
-			a := lit[lits[j]]
-			acc |= uint64(a&0xffff) << nb
-			nb += uint(a >> 16)
+		for _, l := range lits[j:] {
+			acc, nb = put(acc, nb, lit[l])
 		}
-		binary.LittleEndian.PutUint64(out[o:], acc)
-		o += int(nb >> 3)
-		acc >>= nb &^ 7
-		nb &= 7
+		o, acc, nb = store(out, o, acc, nb)
 		if s.mlen == 0 {
 			continue
 		}
@@ -380,16 +355,26 @@ func (e *Encoder) block(dst, data []byte) []byte {
 		nb += uint(dc.len[c])
 		acc |= uint64(d-1-int(distBase[c])) << nb
 		nb += uint(distExtra[c])
-		binary.LittleEndian.PutUint64(out[o:], acc)
-		o += int(nb >> 3)
-		acc >>= nb &^ 7
-		nb &= 7
+		o, acc, nb = store(out, o, acc, nb)
 		pos += int(s.mlen)
 	}
 	out = out[:o]
 	w.out, w.acc, w.nbits = out, acc, nb
 	w.put(ll.code[endBlock], uint(ll.len[endBlock]))
 	return w.flush()
+}
+
+// put adds a literal's code, packed code | length<<16, to the bit
+// accumulator acc of nb bits.
+func put(acc uint64, nb uint, code uint32) (uint64, uint) {
+	return acc | uint64(code&0xffff)<<nb, nb + uint(code>>16)
+}
+
+// store writes all eight bytes of acc at out[o:] and keeps the bits of the
+// last partial byte: out advances by the whole bytes of its nb bits.
+func store(out []byte, o int, acc uint64, nb uint) (int, uint64, uint) {
+	binary.LittleEndian.PutUint64(out[o:], acc)
+	return o + int(nb>>3), acc >> (nb &^ 7), nb & 7
 }
 
 // Length symbols (RFC 1951 §3.2.5): lengthCode[len-3] is the symbol minus
