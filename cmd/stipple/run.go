@@ -253,17 +253,23 @@ func printInputReport(w io.Writer, in *build.Input) {
 		fmt.Fprintf(w, "input: %s, %s, %d areas, coordinate system: %s\n", r.Layer.Path, r.Format, len(r.Layer.Features), crs)
 		if n := len(r.Notes); n > 0 {
 			fmt.Fprintf(w, "input: %d geometry notes:\n", n)
-			for i, note := range r.Notes {
-				if i == 10 {
-					fmt.Fprintf(w, "  … and %d more (stipple inspect lists them all)\n", n-10)
-					break
-				}
-				fmt.Fprintf(w, "  %s\n", note)
-			}
+			printFirst(w, "  ", r.Notes, " (stipple inspect lists them all)")
 		}
 	}
 	if in.Join != nil {
 		fmt.Fprintln(w, strings.TrimRight(in.Join.String(), "\n"))
+	}
+}
+
+// printFirst prints the first ten items, one a line after indent, and how
+// many more there are, followed by tail.
+func printFirst(w io.Writer, indent string, items []string, tail string) {
+	for i, it := range items {
+		if i == 10 {
+			fmt.Fprintf(w, "%s… and %d more%s\n", indent, len(items)-10, tail)
+			return
+		}
+		fmt.Fprintf(w, "%s%s\n", indent, it)
 	}
 }
 
@@ -276,25 +282,13 @@ func printSummary(w io.Writer, s *build.Summary) {
 	fmt.Fprintf(w, "  %s; seed %d\n", md.Note, md.Seed)
 	if s.NotDrawn > 0 {
 		fmt.Fprintf(w, "  not drawn: %s people in %d areas:\n", render.FormatCount(s.NotDrawn), len(s.Problems))
-		for i, p := range s.Problems {
-			if i == 10 {
-				fmt.Fprintf(w, "    … and %d more (see map.json)\n", len(s.Problems)-10)
-				break
-			}
-			fmt.Fprintf(w, "    %s\n", p)
-		}
+		printFirst(w, "    ", s.Problems, " (see map.json)")
 	} else {
 		fmt.Fprintln(w, "  not drawn: 0 people in areas")
 	}
 	if n := len(s.Notes); n > 0 {
 		fmt.Fprintf(w, "  drawn with a note: %d areas:\n", n)
-		for i, p := range s.Notes {
-			if i == 10 {
-				fmt.Fprintf(w, "    … and %d more\n", n-10)
-				break
-			}
-			fmt.Fprintf(w, "    %s\n", p)
-		}
+		printFirst(w, "    ", s.Notes, "")
 	}
 	if s.RowsWithoutArea > 0 {
 		fmt.Fprintf(w, "  not drawn: %s people in table rows that match no area (listed above)\n", render.FormatCount(s.RowsWithoutArea))
