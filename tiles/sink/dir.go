@@ -51,15 +51,9 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 	if err != nil {
 		return err
 	}
-	dir := filepath.Dir(full)
-	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
-	for _, m := range []string{dir, tmpDir} {
-		if _, ok := d.made.Load(m); !ok {
-			if err := os.MkdirAll(m, 0o755); err != nil {
-				return fmt.Errorf("sink: %w", err)
-			}
-			d.made.Store(m, true)
-		}
+	tmpDir, err := d.makeDirs(full)
+	if err != nil {
+		return fmt.Errorf("sink: %w", err)
 	}
 	f, err := os.CreateTemp(tmpDir, "put-*")
 	if err != nil {
@@ -204,15 +198,9 @@ func (d *Dir) link(src *Dir, p string) error {
 	if err != nil {
 		return err
 	}
-	dir := filepath.Dir(full)
-	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
-	for _, m := range []string{dir, tmpDir} {
-		if _, ok := d.made.Load(m); !ok {
-			if err := os.MkdirAll(m, 0o755); err != nil {
-				return err
-			}
-			d.made.Store(m, true)
-		}
+	tmpDir, err := d.makeDirs(full)
+	if err != nil {
+		return err
 	}
 	tmp := filepath.Join(tmpDir, fmt.Sprintf("link-%d-%d", os.Getpid(), linkSeq.Add(1)))
 	if err := os.Link(from, tmp); err != nil {
@@ -226,3 +214,18 @@ func (d *Dir) link(src *Dir, p string) error {
 }
 
 var linkSeq atomic.Int64
+
+// makeDirs makes, once per folder, the folder of the file full and the
+// folder for temporary files, whose path it returns.
+func (d *Dir) makeDirs(full string) (tmpDir string, err error) {
+	tmpDir = filepath.Join(d.root, filepath.FromSlash(TempDir))
+	for _, m := range []string{filepath.Dir(full), tmpDir} {
+		if _, ok := d.made.Load(m); !ok {
+			if err := os.MkdirAll(m, 0o755); err != nil {
+				return "", err
+			}
+			d.made.Store(m, true)
+		}
+	}
+	return tmpDir, nil
+}
