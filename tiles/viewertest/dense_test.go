@@ -1,10 +1,8 @@
 package viewertest
 
 import (
-	"bytes"
 	"fmt"
 	"image"
-	"image/png"
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
@@ -156,17 +154,7 @@ func TestDenseDotSizeOnScreen(t *testing.T) {
 	tb := newTab(t, 1280, 800, chromedp.EmulateScale(2))
 	st := tb.open(srv.URL + fmt.Sprintf("/index.html#z=14.00&lat=%.5f&lon=%.5f", dotAt[1], dotAt[0]))
 	checkDrawn(t, "one dot", tb, st, true)
-	shot, err := chromedp.Run(tb.ctx, chromedp.CaptureScreenshot())
-	if err != nil {
-		t.Fatal(err)
-	}
-	img, err := png.Decode(bytes.NewReader(shot))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if img.Bounds().Dx() != 2560 {
-		t.Fatalf("screenshot %v wide; want 2560 device pixels", img.Bounds())
-	}
+	img := tb.screenshot(2560)
 	want, _ := render.ParseHex(dotColor)
 	paper, _ := render.ParseHex("#f2efe7")
 	// Device pixels: the dot's centre is at (1280, 800), its radius 30.

@@ -1,8 +1,11 @@
 package viewertest
 
 import (
+	"bytes"
 	"context"
 	"fmt"
+	"image"
+	"image/png"
 	"net/http"
 	"net/http/httptest"
 	"os"
@@ -262,6 +265,24 @@ func (tb *tab) messages() []string {
 
 // clean checks that nothing failed: no console error or exception, no
 // failed request, no HTTP error status, no dialog.
+// screenshot captures the page and decodes it; the image must be wide
+// device pixels wide.
+func (tb *tab) screenshot(wide int) image.Image {
+	tb.t.Helper()
+	shot, err := chromedp.Run(tb.ctx, chromedp.CaptureScreenshot())
+	if err != nil {
+		tb.t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(shot))
+	if err != nil {
+		tb.t.Fatal(err)
+	}
+	if img.Bounds().Dx() != wide {
+		tb.t.Fatalf("screenshot %v wide; want %d device pixels", img.Bounds(), wide)
+	}
+	return img
+}
+
 func (tb *tab) clean() {
 	tb.t.Helper()
 	time.Sleep(100 * time.Millisecond) // let the last events arrive

@@ -1,11 +1,9 @@
 package viewertest
 
 import (
-	"bytes"
 	"context"
 	"fmt"
 	"image"
-	"image/png"
 	"math"
 	"net/http"
 	"net/http/httptest"
@@ -445,17 +443,7 @@ func TestDotColourOnScreen(t *testing.T) {
 	srv := serve(t, f.Dir)
 	tb := newTab(t, 1280, 800)
 	tb.open(srv.URL + fmt.Sprintf("/index.html#z=14.00&lat=%.5f&lon=%.5f", dotAt[1], dotAt[0]))
-	shot, err := chromedp.Run(tb.ctx, chromedp.CaptureScreenshot())
-	if err != nil {
-		t.Fatal(err)
-	}
-	img, err := png.Decode(bytes.NewReader(shot))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if img.Bounds().Dx() != 1280 {
-		t.Fatalf("screenshot %v wide", img.Bounds())
-	}
+	img := tb.screenshot(1280)
 	want, _ := render.ParseHex(dotColor)
 	paper, _ := render.ParseHex("#f2efe7")
 	// The dot is 40 px wide at zoom 14 and lies at the view's centre.
