@@ -29,7 +29,11 @@ import (
 // mean. It needs ../../../shared/data (skipped without it).
 //
 //	go test ./cmd/stipple -run '^$' -bench ShardBalance -benchtime 1x
-func BenchmarkShardBalance(b *testing.B) {
+//
+// nationalMap reads the national benchmark's map file, skipping the
+// benchmark when its input (../../../shared/data) is not here.
+func nationalMap(b *testing.B) (string, *mapfile.Map) {
+	b.Helper()
 	path := filepath.Join("..", "..", "examples", "us-counties-synthetic", "map.toml")
 	m, err := mapfile.Read(path)
 	if err != nil {
@@ -38,6 +42,11 @@ func BenchmarkShardBalance(b *testing.B) {
 	if _, err := os.Stat(m.Resolve(m.Input.File)); err != nil {
 		b.Skipf("national input not here: %v", err)
 	}
+	return path, m
+}
+
+func BenchmarkShardBalance(b *testing.B) {
+	_, m := nationalMap(b)
 	m.PeoplePerDot = 10
 	in, err := build.LoadInput(m, nil)
 	if err != nil {
@@ -133,14 +142,7 @@ func BenchmarkShardBalance(b *testing.B) {
 //
 //	STIPPLE_SHARD_PER_DOT=100 go test ./cmd/stipple -run '^$' -bench ShardParts -benchtime 1x -timeout 3h
 func BenchmarkShardParts(b *testing.B) {
-	path := filepath.Join("..", "..", "examples", "us-counties-synthetic", "map.toml")
-	m, err := mapfile.Read(path)
-	if err != nil {
-		b.Fatal(err)
-	}
-	if _, err := os.Stat(m.Resolve(m.Input.File)); err != nil {
-		b.Skipf("national input not here: %v", err)
-	}
+	path, m := nationalMap(b)
 	perDot := envOr(b, "STIPPLE_SHARD_PER_DOT", "10")
 	workers := envOr(b, "STIPPLE_SHARD_WORKERS", "2")
 	var counts []int
@@ -151,6 +153,7 @@ func BenchmarkShardParts(b *testing.B) {
 		}
 		counts = append(counts, n)
 	}
+	var err error
 	if m.PeoplePerDot, err = strconv.ParseFloat(perDot, 64); err != nil || !(m.PeoplePerDot > 0) {
 		b.Fatalf("STIPPLE_SHARD_PER_DOT: %q is not a positive number", perDot)
 	}
