@@ -21,15 +21,6 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
-// BenchmarkShardBalance measures, on the national input (synthetic
-// counts, 1 dot = 10 people), how evenly N = 2, 4 and 16 parts share the
-// work: the dots each part owns and samples and the tiles with dots it
-// draws, counted on the real dots (all areas placed once), and the work
-// those make at MeasuredRates. The metrics are the largest part over the
-// mean. It needs ../../../shared/data (skipped without it).
-//
-//	go test ./cmd/stipple -run '^$' -bench ShardBalance -benchtime 1x
-//
 // nationalMap reads the national benchmark's map file, skipping the
 // benchmark when its input (../../../shared/data) is not here.
 func nationalMap(b *testing.B) (string, *mapfile.Map) {
@@ -45,6 +36,14 @@ func nationalMap(b *testing.B) (string, *mapfile.Map) {
 	return path, m
 }
 
+// BenchmarkShardBalance measures, on the national input (synthetic
+// counts, 1 dot = 10 people), how evenly N = 2, 4 and 16 parts share the
+// work: the dots each part owns and samples and the tiles with dots it
+// draws, counted on the real dots (all areas placed once), and the work
+// those make at MeasuredRates. The metrics are the largest part over the
+// mean. It needs ../../../shared/data (skipped without it).
+//
+//	go test ./cmd/stipple -run '^$' -bench ShardBalance -benchtime 1x
 func BenchmarkShardBalance(b *testing.B) {
 	_, m := nationalMap(b)
 	m.PeoplePerDot = 10
