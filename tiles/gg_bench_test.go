@@ -10,7 +10,7 @@ import (
 
 	"github.com/fogleman/gg"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 var benchColors = []color.NRGBA{{230, 159, 0, 255}, {86, 180, 233, 255}, {0, 158, 115, 255}, {240, 228, 66, 255}, {204, 121, 167, 255}}

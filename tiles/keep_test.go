@@ -11,7 +11,7 @@ import (
 	"testing"
 
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // pngFiles lists a pyramid's tile files (relative paths) with their bytes.

@@ -16,7 +16,7 @@ import (
 	"sync/atomic"
 
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // Options describe one pyramid.

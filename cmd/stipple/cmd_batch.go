@@ -9,7 +9,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/batch"
+	"github.com/stipple-maps/stipple/tiles/batch"
 )
 
 // cmdBatch is "stipple batch FILE": many extents from one sampling.

@@ -13,9 +13,9 @@ import (
 	"time"
 
 	"github.com/stipple-maps/stipple/cmd/stipple/benchdata"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // benchColors are the Okabe & Ito (2008) "Color Universal Design" hues.
@@ -57,7 +57,7 @@ func cmdBench(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var budget int64
 	if *memory != "" {
-		v, err := build.ParseSize(*memory)
+		v, err := mapjob.ParseSize(*memory)
 		if err != nil {
 			return usageError{"--memory: " + err.Error()}
 		}
@@ -114,7 +114,7 @@ func cmdBench(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		what = fmt.Sprintf("invented country, %d areas, %s people (made in %s)", len(layer.Features), strconv.FormatInt(*people, 10), time.Since(t).Round(time.Millisecond))
 	}
 	fmt.Fprintf(stdout, "bench: %s, zooms %d–%d, %s\n", what, m.Tiles.MinZoom, m.Tiles.MaxZoom, filepath.Base(os.Args[0]))
-	s, err := build.Run(ctx, &m, build.Options{Workers: *workers, Log: stdout, Layer: layer, Memory: budget, HiDPI: *hidpi})
+	s, err := mapjob.Run(ctx, &m, mapjob.Options{Workers: *workers, Log: stdout, Layer: layer, Memory: budget, HiDPI: *hidpi})
 	if err != nil {
 		return err
 	}

@@ -12,12 +12,12 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // Planning rates for inspect's estimates, measured on the 2-core reference
@@ -62,7 +62,7 @@ func cmdInspect(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return nil
 	}
 	m.Input.File, _ = filepath.Abs(pos[0])
-	in, err := build.LoadInput(m, nil)
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		return err
 	}
@@ -188,7 +188,7 @@ func fieldStats(l *geo.Layer, name string) stats {
 	return s
 }
 
-func plan(w io.Writer, m *mapfile.Map, in *build.Input) {
+func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) {
 	if in.Join != nil {
 		fmt.Fprintln(w, strings.TrimRight(in.Join.String(), "\n"))
 	}

@@ -9,8 +9,8 @@ import (
 	"math"
 	"text/tabwriter"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/shard"
 )
 

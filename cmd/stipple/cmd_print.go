@@ -14,12 +14,12 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // printOptions are the flags of "stipple print".
@@ -171,7 +171,7 @@ func writeFile(path string, write func(io.Writer) error) (int64, error) {
 }
 
 // preparePrint reads the map, places the same seeded dots as the tile run
-// (build.Load and build.Place), and lays out the page.
+// (mapjob.Load and mapjob.Place), and lays out the page.
 func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJob, error) {
 	if o.seed >= 0 {
 		m.Seed = uint64(o.seed)
@@ -202,7 +202,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	if o.bbox != "" && o.ids != "" {
 		return nil, usageError{"give --bbox or --ids, not both"}
 	}
-	layer, counts, err := build.Load(m, nil)
+	layer, counts, err := mapjob.Load(m, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -263,7 +263,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	// All areas' dots, exactly as the tile run places them; the page
 	// shows those inside its frame (and, with --ids, inside the listed
 	// areas).
-	store, results, err := build.Place(layer, counts, m, workers)
+	store, results, err := mapjob.Place(layer, counts, m, workers)
 	if err != nil {
 		return nil, err
 	}
@@ -272,7 +272,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	}
 	var keep func(lon, lat float64) bool
 	if only != nil {
-		keep = build.InsideAny(layer, only)
+		keep = mapjob.InsideAny(layer, only)
 	}
 	// Lay out to learn what the frame shows, count the people of the
 	// areas it shows, then lay out again with the counts filled in. The

@@ -20,13 +20,13 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/sample"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/shard"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
@@ -170,7 +170,7 @@ type shardOptions struct {
 // the map and its input.
 type shardedMap struct {
 	m      *mapfile.Map
-	in     *build.Input
+	in     *mapjob.Input
 	layout *shard.Layout
 	look   string // fingerprint of the dots and their look
 	hidpi  bool
@@ -178,7 +178,7 @@ type shardedMap struct {
 
 // planShards loads the input and computes the layout for n shards.
 func planShards(m *mapfile.Map, n int, hidpi bool) (*shardedMap, error) {
-	in, err := build.LoadInput(m, nil)
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -197,10 +197,10 @@ const planPoints = 64
 // dots and, lazily, the first planPoints dots the area would get (the
 // sampler's dot i is the same point whatever the total, so these are
 // real dots of the render).
-func areasOf(m *mapfile.Map, in *build.Input) []shard.Area {
+func areasOf(m *mapfile.Map, in *mapjob.Input) []shard.Area {
 	fs := in.Layer.Features
 	areas := make([]shard.Area, len(fs))
-	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks, Streams: build.Streams(m)}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks, Streams: mapjob.Streams(m)}
 	for i := range fs {
 		f := &fs[i]
 		dots := make([]int, len(m.Categories))
@@ -232,10 +232,10 @@ func areasOf(m *mapfile.Map, in *build.Input) []shard.Area {
 }
 
 func pyramidOf(m *mapfile.Map, hidpi bool) shard.Pyramid {
-	return shard.Pyramid{MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size, HiDPI: hidpi, Look: build.Look(m)}
+	return shard.Pyramid{MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size, HiDPI: hidpi, Look: mapjob.Look(m)}
 }
 
-func layoutFor(m *mapfile.Map, in *build.Input, n int, hidpi bool) (*shard.Layout, error) {
+func layoutFor(m *mapfile.Map, in *mapjob.Input, n int, hidpi bool) (*shard.Layout, error) {
 	l, err := shard.Plan(areasOf(m, in), pyramidOf(m, hidpi), shard.PlanOptions{Shards: n})
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", m.Path, err)
@@ -246,14 +246,14 @@ func layoutFor(m *mapfile.Map, in *build.Input, n int, hidpi bool) (*shard.Layou
 // lookFingerprint hashes everything a part's tiles depend on: the areas'
 // geometry and counts, the sampling settings, and the tile settings and
 // look. Parts and the final step refuse to mix results of different ones.
-func lookFingerprint(m *mapfile.Map, in *build.Input, hidpi bool) string {
+func lookFingerprint(m *mapfile.Map, in *mapjob.Input, hidpi bool) string {
 	h := sha256.New()
 	fmt.Fprintf(h, "stipple-shard-look/1 %s\nid=%q seed=%d perdot=%x rounding=%q mask=%q size=%d zooms=%d-%d hidpi=%v\n",
-		build.Version, m.Input.ID, m.Seed, math.Float64bits(m.PeoplePerDot), m.Rounding, m.Input.Mask, m.Tiles.Size, m.Tiles.MinZoom, m.Tiles.MaxZoom, hidpi)
+		mapjob.Version, m.Input.ID, m.Seed, math.Float64bits(m.PeoplePerDot), m.Rounding, m.Input.Mask, m.Tiles.Size, m.Tiles.MinZoom, m.Tiles.MaxZoom, hidpi)
 	for _, c := range m.Categories {
 		fmt.Fprintf(h, "cat %q %q %q %q\n", c.Key, c.Label, c.Color, c.Fields)
 	}
-	look := build.Look(m)
+	look := mapjob.Look(m)
 	for z := 0; z <= 24; z++ {
 		d := look(z)
 		fmt.Fprintf(h, "z%d %x %x\n", z, math.Float64bits(d.Diameter), math.Float64bits(d.Opacity))
@@ -416,7 +416,7 @@ func runShard(ctx context.Context, sm *shardedMap, i int, out sink.Sink, opt sha
 		// edges of those, and the neighbours draw the tiles beyond.
 		if _, err := tiles.Write(ctx, store, tiles.Options{
 			Dir: work, MinZoom: l.Split, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
-			Colors: colors, Look: build.Look(m), Workers: opt.Workers, HiDPI: sm.hidpi,
+			Colors: colors, Look: mapjob.Look(m), Workers: opt.Workers, HiDPI: sm.hidpi,
 			Fingerprint: sm.look + "/" + rep.Layout + "/" + shard.Name(i, n) + "/own",
 			Keep:        func(z, x, y int) bool { return l.Owner(z, x, y) == i },
 		}); err != nil {
@@ -531,7 +531,7 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers
 		x, y, _ := dotstore.Split(k)
 		return l.Keeps(i, x, y)
 	}
-	store, results, _, err := build.PlaceStore(ctx, &sub, counts, m, build.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir), Dots: dots, Masks: in.Masks, Keep: keep})
+	store, results, _, err := mapjob.PlaceStore(ctx, &sub, counts, m, mapjob.PlaceOptions{Workers: workers, SpillDir: filepath.Join(work, tiles.StateDir), Dots: dots, Masks: in.Masks, Keep: keep})
 	if err != nil {
 		return nil, keptInfo{}, err
 	}
@@ -561,7 +561,7 @@ func placeShard(ctx context.Context, sm *shardedMap, i int, work string, workers
 
 // runFinal draws the zooms above the split from the parts' summaries and
 // writes the metadata, legend and viewer, as a single-machine render does.
-func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptions, logf func(string, ...any)) (*build.Summary, error) {
+func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptions, logf func(string, ...any)) (*mapjob.Summary, error) {
 	m, in, l := sm.m, sm.in, sm.layout
 	reps, merged, err := shard.Collect(ctx, out, l, sm.look)
 	if err != nil {
@@ -575,10 +575,10 @@ func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptio
 	}
 	logf("final: zooms %d–%d from %d summary cells (%d dots) in %s", m.Tiles.MinZoom, l.Split-1, len(merged.Keys), merged.Dots(), time.Since(t0).Round(time.Millisecond))
 
-	// The run summary, as build.Run makes it from all areas' results.
+	// The run summary, as mapjob.Run makes it from all areas' results.
 	nc := len(m.Categories)
 	fs := in.Layer.Features
-	s := &build.Summary{Features: len(fs), People: make([]float64, nc), Dots: make([]int, nc), Problems: []string{}}
+	s := &mapjob.Summary{Features: len(fs), People: make([]float64, nc), Dots: make([]int, nc), Problems: []string{}}
 	if in.Join != nil {
 		s.RowsWithoutArea = in.Join.PeopleInUnmatchedTotal
 	}
@@ -665,8 +665,8 @@ func runFinal(ctx context.Context, sm *shardedMap, out sink.Sink, opt shardOptio
 			return nil, fmt.Errorf("output: %w", err)
 		}
 	}
-	meta := build.Metadata(m, s)
-	leg := build.LegendOf(meta, colors)
+	meta := mapjob.Metadata(m, s)
+	leg := mapjob.LegendOf(meta, colors)
 	for _, lg := range []struct {
 		name  string
 		scale float64

@@ -17,11 +17,11 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render/page"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"golang.org/x/image/draw"
 )
 
@@ -69,7 +69,7 @@ func demoMap(t *testing.T) *mapfile.Map {
 	return m
 }
 
-// The page shows the tile run's dots: build.Load and build.Place on the
+// The page shows the tile run's dots: mapjob.Load and mapjob.Place on the
 // whole layer give the dot store; every dot of it is on the page, at the
 // projection of its cell's centre. Compared per category by count and by
 // the sums of x, y, x² and y² of the page positions (a fingerprint that a
@@ -82,11 +82,11 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, counts, err := build.Load(m, nil)
+	layer, counts, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	store, _, err := build.Place(layer, counts, m, 3)
+	store, _, err := mapjob.Place(layer, counts, m, 3)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -128,7 +128,7 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	}
 }
 
-// The dots build.Place gives the page are the tile run's own: render the
+// The dots mapjob.Place gives the page are the tile run's own: render the
 // demo, open the dot store it keeps (tiles.StateDir/dots.bin), and
 // compare key for key.
 func TestPrintDotsAreTheTileStore(t *testing.T) {
@@ -145,11 +145,11 @@ func TestPrintDotsAreTheTileStore(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, counts, err := build.Load(m, nil)
+	layer, counts, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	printStore, _, err := build.Place(layer, counts, m, 2)
+	printStore, _, err := mapjob.Place(layer, counts, m, 2)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -300,11 +300,11 @@ func TestPrintEqualArea(t *testing.T) {
 // their people.
 func TestPrintIDs(t *testing.T) {
 	m := demoMap(t)
-	layer, counts, err := build.Load(m, nil)
+	layer, counts, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, results, err := build.Place(layer, counts, m, 2)
+	_, results, err := mapjob.Place(layer, counts, m, 2)
 	if err != nil {
 		t.Fatal(err)
 	}

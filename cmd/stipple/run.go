@@ -13,12 +13,12 @@ import (
 	"strings"
 	"time"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -90,7 +90,7 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	case "batch":
 		return cmdBatch(ctx, args[1:], stdout, stderr)
 	case "version":
-		fmt.Fprintln(stdout, "stipple", build.Version)
+		fmt.Fprintln(stdout, "stipple", mapjob.Version)
 		return nil
 	case "help", "-h", "--help":
 		fmt.Fprint(stdout, usage)
@@ -124,10 +124,10 @@ func (o *overrides) register(fs *flag.FlagSet) {
 }
 
 // runOptions are the build options the flags and the map file give.
-func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (build.Options, error) {
-	opt := build.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI}
+func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (mapjob.Options, error) {
+	opt := mapjob.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI}
 	if o.memory != "" {
-		n, err := build.ParseSize(o.memory)
+		n, err := mapjob.ParseSize(o.memory)
 		if err != nil || n <= 0 {
 			return opt, usageError{fmt.Sprintf("--memory %q: want a size such as 2GiB or 512MiB", o.memory)}
 		}
@@ -227,14 +227,14 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	return renderMap(ctx, m, opt, stdout)
 }
 
-func renderMap(ctx context.Context, m *mapfile.Map, opt build.Options, stdout io.Writer) error {
-	in, err := build.LoadInput(m, nil)
+func renderMap(ctx context.Context, m *mapfile.Map, opt mapjob.Options, stdout io.Writer) error {
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		return err
 	}
 	printInputReport(stdout, in)
 	opt.Input = in
-	s, err := build.Run(ctx, m, opt)
+	s, err := mapjob.Run(ctx, m, opt)
 	if err != nil {
 		return err
 	}
@@ -243,7 +243,7 @@ func renderMap(ctx context.Context, m *mapfile.Map, opt build.Options, stdout io
 }
 
 // printInputReport says what reading and joining found, before the render.
-func printInputReport(w io.Writer, in *build.Input) {
+func printInputReport(w io.Writer, in *mapjob.Input) {
 	if in.Read != nil {
 		r := in.Read
 		crs := r.CRS.Name
@@ -273,7 +273,7 @@ func printFirst(w io.Writer, indent string, items []string, tail string) {
 	}
 }
 
-func printSummary(w io.Writer, s *build.Summary) {
+func printSummary(w io.Writer, s *mapjob.Summary) {
 	md := s.Metadata
 	fmt.Fprintf(w, "\n%s\n", md.Title)
 	for _, c := range md.Categories {

@@ -14,9 +14,9 @@ import (
 	"testing"
 	"time"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/shard"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
@@ -47,11 +47,11 @@ func nationalMap(b *testing.B) (string, *mapfile.Map) {
 func BenchmarkShardBalance(b *testing.B) {
 	_, m := nationalMap(b)
 	m.PeoplePerDot = 10
-	in, err := build.LoadInput(m, nil)
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
-	store, results, _, err := build.PlaceStore(context.Background(), in.Layer, in.Counts, m, build.PlaceOptions{})
+	store, results, _, err := mapjob.PlaceStore(context.Background(), in.Layer, in.Counts, m, mapjob.PlaceOptions{})
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -90,7 +90,7 @@ func BenchmarkShardBalance(b *testing.B) {
 				for i := range zt {
 					tilesN[i] += zt[i]
 				}
-				if build.Look(m)(z).Diameter >= 1 {
+				if mapjob.Look(m)(z).Diameter >= 1 {
 					perDot += r.DiscNsPerDot
 				} else {
 					perDot += r.CountNsPerDot
@@ -166,7 +166,7 @@ func BenchmarkShardParts(b *testing.B) {
 	if out, err := gob.CombinedOutput(); err != nil {
 		b.Fatalf("go build: %v\n%s", err, out)
 	}
-	in, err := build.LoadInput(m, nil)
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -198,7 +198,7 @@ func BenchmarkShardParts(b *testing.B) {
 		return s
 	}
 	r := shard.MeasuredRates
-	look := build.Look(m)
+	look := mapjob.Look(m)
 	// One row per part for the fit: sampled dots, disc-equivalent
 	// dot-zooms, tiles, 1; and its CPU seconds.
 	var rows [][4]float64

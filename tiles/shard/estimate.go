@@ -4,7 +4,7 @@ import (
 	"math"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // Rates are measured costs that turn counts of dots and tiles into time

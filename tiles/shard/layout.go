@@ -10,7 +10,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // Area is what the planner knows of one input area before any dot is

@@ -16,8 +16,8 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/maptile"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 

@@ -7,7 +7,7 @@ import (
 	"slices"
 	"sort"
 
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // Summary counts dots per category in the pixels of one level: Keys[i] is

@@ -9,11 +9,11 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // demoMap is the invented demo city's map file, with the zooms cut to 9–13
@@ -56,13 +56,13 @@ type viewerFixture struct {
 var demo2, dotMap, denseMap viewerFixture
 
 // demoDense renders the demo city at 10 people per dot with @2x tiles
-// (build.Options.HiDPI), viewer and all, as `stipple render --hidpi` does.
+// (mapjob.Options.HiDPI), viewer and all, as `stipple render --hidpi` does.
 func demoDense(t *testing.T) *viewerFixture {
 	t.Helper()
 	denseMap.once.Do(func() {
 		dir := filepath.Join(tmpRoot, "dense")
 		m := demoMap(t, 10, dir)
-		sum, err := build.Run(context.Background(), m, build.Options{Layer: demo.City(1), HiDPI: true})
+		sum, err := mapjob.Run(context.Background(), m, mapjob.Options{Layer: demo.City(1), HiDPI: true})
 		if err != nil {
 			denseMap.err = err
 			return
@@ -94,7 +94,7 @@ func demoTwo(t *testing.T) *viewerFixture {
 			perDot          float64
 		}{{"ten", "ten", "1 dot = 10", 10}, {"quarter", "quarter", "1 dot = 25", 25}} {
 			m := demoMap(t, l.perDot, filepath.Join(dir, l.sub))
-			sum, err := build.Run(context.Background(), m, build.Options{Layer: city})
+			sum, err := mapjob.Run(context.Background(), m, mapjob.Options{Layer: city})
 			if err != nil {
 				demo2.err = err
 				return
@@ -147,7 +147,7 @@ func oneDotDense(t *testing.T) *viewerFixture {
 			dotDense.err = err
 			return
 		}
-		sum, err := build.Run(context.Background(), m, build.Options{Layer: layer, HiDPI: true})
+		sum, err := mapjob.Run(context.Background(), m, mapjob.Options{Layer: layer, HiDPI: true})
 		if err != nil {
 			dotDense.err = err
 			return
@@ -194,7 +194,7 @@ func oneDot(t *testing.T) *viewerFixture {
 			dotMap.err = err
 			return
 		}
-		sum, err := build.Run(context.Background(), m, build.Options{Layer: layer})
+		sum, err := mapjob.Run(context.Background(), m, mapjob.Options{Layer: layer})
 		if err != nil {
 			dotMap.err = err
 			return

@@ -3,8 +3,8 @@ package batch_test
 import (
 	"fmt"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/batch"
 	"github.com/stipple-maps/stipple/geo/demo"
+	"github.com/stipple-maps/stipple/tiles/batch"
 )
 
 // Pick chooses an extent's areas; their counts make its legend.

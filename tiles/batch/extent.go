@@ -11,10 +11,10 @@ import (
 	"strconv"
 	"time"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // Files an extent's folder holds besides the tiles and the viewer.
@@ -40,7 +40,7 @@ type extentInfo struct {
 }
 
 // finish writes one extent's folder from the cache and the sampling.
-func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *build.Input, p *placed,
+func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *mapjob.Input, p *placed,
 	m *mapfile.Map, cache *tileCache, colors []color.NRGBA, look func(int) render.Dot, printSlots chan struct{}, cats []string) error {
 	start := time.Now()
 	e := j.e
@@ -82,10 +82,10 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *bu
 	me.Title = e.Title
 	me.PeoplePerDot = e.PeoplePerDot
 	me.Tiles.MinZoom, me.Tiles.MaxZoom = e.MinZoom, e.MaxZoom
-	sum := &build.Summary{Features: len(j.picked.Features), People: tot.People, Dots: tot.Dots, NotDrawn: tot.NotDrawn,
+	sum := &mapjob.Summary{Features: len(j.picked.Features), People: tot.People, Dots: tot.Dots, NotDrawn: tot.NotDrawn,
 		Problems: tot.Problems, Tiles: st, Bounds: j.picked.Bound}
-	md := build.Metadata(&me, sum)
-	if err := build.WriteLegends(dir, md, colors); err != nil {
+	md := mapjob.Metadata(&me, sum)
+	if err := mapjob.WriteLegends(dir, md, colors); err != nil {
 		return err
 	}
 	if err := tiles.WriteMetadata(dir, md); err != nil {

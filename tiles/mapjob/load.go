@@ -1,15 +1,15 @@
-package build
+package mapjob
 
 import (
 	"fmt"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/geo/table"
 	"github.com/stipple-maps/stipple/sample"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 // Input is what Load found in the map's inputs.

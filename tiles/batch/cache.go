@@ -15,8 +15,8 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // tileCache holds every tile any extent of one sampling needs, each

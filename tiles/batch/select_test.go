@@ -16,7 +16,7 @@ import (
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/geo/read"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
 // TestRepresentativePointIsGEOSCentroid compares the point a box extent

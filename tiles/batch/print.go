@@ -9,11 +9,11 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // PrintCaution is printed on every page: the map caution and a word on
@@ -38,7 +38,7 @@ func parsePage(p Print) (page.Size, error) {
 // in the frame, every dot of the store inside the frame (the tiles' dots,
 // neighbours' included), and a legend with the extent's own totals. It
 // writes print.png and/or print.pdf and returns their names.
-func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m *mapfile.Map, colors []color.NRGBA, tot Totals) ([]string, error) {
+func writePrint(dir string, e *Extent, p *Picked, in *mapjob.Input, pl *placed, m *mapfile.Map, colors []color.NRGBA, tot Totals) ([]string, error) {
 	ps := *e.Print
 	size, err := parsePage(ps)
 	if err != nil {
@@ -68,7 +68,7 @@ func writePrint(dir string, e *Extent, p *Picked, in *build.Input, pl *placed, m
 		spec.Footnotes = append(spec.Footnotes, "People: "+p.Rule+". Dots: every dot inside the frame, those of areas whose centre lies outside the box included.")
 	} else {
 		// Like the tiles' legend, the page shows the extent's own areas.
-		keep = build.InsideAny(in.Layer, p.Features)
+		keep = mapjob.InsideAny(in.Layer, p.Features)
 		spec.Footnotes = append(spec.Footnotes, "People and dots: "+p.Rule+".")
 	}
 	if tot.NotDrawn > 0 {

@@ -1,6 +1,6 @@
 //go:build linux || darwin || freebsd
 
-package build
+package mapjob
 
 import (
 	"runtime"

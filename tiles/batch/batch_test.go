@@ -15,9 +15,9 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 func needTool(t *testing.T, name string) string {
@@ -182,23 +182,23 @@ func TestOverlappingExtents(t *testing.T) {
 	})
 
 	t.Run("tiles are those of the whole map", func(t *testing.T) {
-		// Reference: the whole city's pyramid from build.Place and
+		// Reference: the whole city's pyramid from mapjob.Place and
 		// tiles.Write, the single-map path.
 		m, err := mapfile.Read(demoMap(t))
 		if err != nil {
 			t.Fatal(err)
 		}
-		layer, counts, err := build.Load(m, nil)
+		layer, counts, err := mapjob.Load(m, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		store, _, err := build.Place(layer, counts, m, 2)
+		store, _, err := mapjob.Place(layer, counts, m, 2)
 		if err != nil {
 			t.Fatal(err)
 		}
 		ref := t.TempDir()
 		if _, err := tiles.Write(context.Background(), store, tiles.Options{Dir: ref, MinZoom: 9, MaxZoom: 14,
-			TileSize: m.Tiles.Size, Colors: m.RGBA(), Look: build.Look(m), Workers: 2}); err != nil {
+			TileSize: m.Tiles.Size, Colors: m.RGBA(), Look: mapjob.Look(m), Workers: 2}); err != nil {
 			t.Fatal(err)
 		}
 		whole := tileFiles(t, ref)

@@ -11,10 +11,10 @@ import (
 	"testing"
 	"time"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/geo/read"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // countiesFile is the shared benchmark input: real county outlines with
@@ -96,7 +96,7 @@ max_zoom = 9
 // every dot and draw the extent's tiles ("separate"): what it takes to make
 // the same 20 maps with consistent dots without the batch.
 //
-//	go test ./cmd/stipple/batch -run '^$' -bench Counties20 -benchtime 1x -timeout 60m
+//	go test ./tiles/batch -run '^$' -bench Counties20 -benchtime 1x -timeout 60m
 func BenchmarkCounties20(b *testing.B) {
 	if _, err := os.Stat(countiesFile); err != nil {
 		b.Skipf("%s not here", countiesFile)
@@ -155,7 +155,7 @@ func BenchmarkCounties20(b *testing.B) {
 				m := *all.Map
 				m.Input.File = in
 				m.Out = filepath.Join(dir, fmt.Sprintf("render%02d", i+1))
-				if _, err := build.Run(context.Background(), &m, build.Options{}); err != nil {
+				if _, err := mapjob.Run(context.Background(), &m, mapjob.Options{}); err != nil {
 					b.Fatal(err)
 				}
 				os.RemoveAll(m.Out)

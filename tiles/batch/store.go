@@ -15,13 +15,13 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/sample"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // storeFormat names the layout of a batch's store folder; change it when
@@ -55,7 +55,7 @@ func storeDir(out string, perDot float64) string {
 
 // place returns the sampling of in at m's people per dot: the store kept in
 // dir when its fingerprint matches, else a new one placed there.
-func place(ctx context.Context, dir string, in *build.Input, m *mapfile.Map, workers int, memory int64) (*placed, error) {
+func place(ctx context.Context, dir string, in *mapjob.Input, m *mapfile.Map, workers int, memory int64) (*placed, error) {
 	start := time.Now()
 	fp := samplingFingerprint(in.Layer, in.Counts, m)
 	if p := reuse(dir, fp, len(in.Layer.Features), len(m.Categories)); p != nil {
@@ -68,7 +68,7 @@ func place(ctx context.Context, dir string, in *build.Input, m *mapfile.Map, wor
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("batch: %w", err)
 	}
-	store, results, _, err := build.PlaceStore(ctx, in.Layer, in.Counts, m, build.PlaceOptions{
+	store, results, _, err := mapjob.PlaceStore(ctx, in.Layer, in.Counts, m, mapjob.PlaceOptions{
 		Workers: workers, Memory: memory, SpillDir: dir, StorePath: filepath.Join(dir, "dots.bin"),
 	})
 	if err != nil {
@@ -123,9 +123,9 @@ func reuse(dir, fp string, nf, nc int) *placed {
 // of the sampler itself.
 func samplingFingerprint(layer *geo.Layer, counts [][]float64, m *mapfile.Map) string {
 	h := sha256.New()
-	fmt.Fprintf(h, "%s\n%s\nprobe=%s\n", storeFormat, build.Version, samplerProbe())
+	fmt.Fprintf(h, "%s\n%s\nprobe=%s\n", storeFormat, mapjob.Version, samplerProbe())
 	fmt.Fprintf(h, "%s\n", samplingSettings(m))
-	build.HashAreas(h, layer, counts)
+	mapjob.HashAreas(h, layer, counts)
 	return hex.EncodeToString(h.Sum(nil))
 }
 

@@ -2,4 +2,4 @@
 // counts, place the dots, write the tile pyramid, legend, metadata and
 // viewer, and account for every person in the input (drawn, or counted as
 // not drawn with a reason).
-package build
+package mapjob

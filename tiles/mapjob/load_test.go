@@ -1,11 +1,11 @@
-package build
+package mapjob
 
 import (
 	"math"
 	"testing"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 func TestDotsPerFeatureMatchCountsWithinRounding(t *testing.T) {

@@ -1,5 +1,5 @@
 //go:build !(linux || darwin || freebsd)
 
-package build
+package mapjob
 
 func peakRSS() int64 { return 0 }

@@ -1,4 +1,4 @@
-package build
+package mapjob
 
 import (
 	"bytes"
@@ -9,8 +9,8 @@ import (
 	"testing"
 
 	"github.com/stipple-maps/stipple/cmd/stipple/benchdata"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 // benchMap is a map of the invented benchmark country.

@@ -11,10 +11,10 @@ import (
 
 	"github.com/fogleman/gg"
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // Thumbnail size in pixels.
@@ -36,7 +36,7 @@ var (
 func Thumbnail(store *dotstore.Store, p *Picked, layer *geo.Layer, e *Extent, colors []color.NRGBA, look func(int) render.Dot, tileSize int) *image.RGBA {
 	pad := 8
 	scale := tileSize / 256 // a 512 map's pixel is half a 256 map's
-	z := build.FitZoom(p.Bound, (ThumbW-2*pad)/scale, (ThumbH-2*pad)/scale, 0, max(e.MaxZoom, 0))
+	z := mapjob.FitZoom(p.Bound, (ThumbW-2*pad)/scale, (ThumbH-2*pad)/scale, 0, max(e.MaxZoom, 0))
 	worldPx := float64(tileSize) * math.Exp2(float64(z)) // pixels across the world at z
 	toPx := func(lon, lat float64) (float64, float64) {
 		x, y := dotstore.World(lon, lat)

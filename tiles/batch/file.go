@@ -11,8 +11,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render/page"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 // DefaultMargin is the share of an extent's width and height added on every

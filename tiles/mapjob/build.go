@@ -1,4 +1,4 @@
-package build
+package mapjob
 
 import (
 	"context"
@@ -23,12 +23,12 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/sample"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 // Version is stipple's version, written into every map's metadata.

@@ -1,4 +1,4 @@
-package build
+package mapjob
 
 import (
 	"fmt"
@@ -12,10 +12,10 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/sample/dotstore"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
 // Metadata describes the finished map. It names the @2x tile template

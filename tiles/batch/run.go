@@ -19,11 +19,11 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/cmd/stipple/build"
-	"github.com/stipple-maps/stipple/cmd/stipple/mapfile"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // extentFormat names the layout of an extent's record; change it when an
@@ -35,7 +35,7 @@ type Options struct {
 	// Workers render tiles and finish extents in parallel; 0 = all cores.
 	Workers int
 	// Memory is the budget for the dot store and the print pages drawn at
-	// once, in bytes; 0 means build.DefaultMemory.
+	// once, in bytes; 0 means mapjob.DefaultMemory.
 	Memory int64
 	// Log receives progress lines; nil discards them.
 	Log io.Writer
@@ -141,7 +141,7 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	}
 	memory := opt.Memory
 	if memory <= 0 {
-		memory = build.DefaultMemory
+		memory = mapjob.DefaultMemory
 	}
 	defer debug.SetMemoryLimit(debug.SetMemoryLimit(memory + 512<<20))
 	log := newProgress(opt.Log, opt.ProgressEvery)
@@ -199,7 +199,7 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 
 func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int, memory int64, log *progress, cats []string) error {
 	m := f.Map
-	in, err := build.LoadInput(m, nil)
+	in, err := mapjob.LoadInput(m, nil)
 	if err != nil {
 		return err
 	}
@@ -225,13 +225,13 @@ func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int
 	// The base map's dot value first: it needs no second reading.
 	sort.SliceStable(perDots, func(a, b int) bool { return perDots[a] == m.PeoplePerDot && perDots[b] != m.PeoplePerDot })
 	colors := m.RGBA()
-	look := build.Look(m)
+	look := mapjob.Look(m)
 	for _, pd := range perDots {
 		mg := *m
 		mg.PeoplePerDot = pd
 		gin := in
 		if pd != m.PeoplePerDot {
-			if gin, err = build.LoadInput(&mg, nil); err != nil {
+			if gin, err = mapjob.LoadInput(&mg, nil); err != nil {
 				return err
 			}
 		}
@@ -261,7 +261,7 @@ func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int
 
 // drawGroup renders the tiles of one sampling's extents into the cache and
 // then finishes the extents in parallel.
-func drawGroup(ctx context.Context, f *File, group []*job, in *build.Input, p *placed, m *mapfile.Map,
+func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, p *placed, m *mapfile.Map,
 	colors []color.NRGBA, look func(int) render.Dot, rep *Report, workers int, memory int64, log *progress, cats []string) error {
 	dir := storeDir(f.Out, m.PeoplePerDot)
 	tfp := tileFingerprint(p.fp, m.Tiles.Size, f.HiDPI, colors, look)
@@ -427,7 +427,7 @@ func extentFingerprint(f *File, e *Extent, inputs string) string {
 	m.PeoplePerDot = e.PeoplePerDot
 	h := sha256.New()
 	def, _ := json.Marshal(e)
-	fmt.Fprintf(h, "%s\n%s\nsampler=%s\nrenderer=%s\nextent=%s\n", extentFormat, build.Version, samplerProbe(), rendererProbe(), def)
+	fmt.Fprintf(h, "%s\n%s\nsampler=%s\nrenderer=%s\nextent=%s\n", extentFormat, mapjob.Version, samplerProbe(), rendererProbe(), def)
 	fmt.Fprintf(h, "%s", samplingSettings(&m))
 	fmt.Fprintf(h, "credit=%q size=%d anchor=%d dots=%+v hidpi=%v\n", m.Credit, m.Tiles.Size, m.Tiles.MaxZoom, m.Dots, f.HiDPI)
 	for _, c := range m.Categories {
@@ -451,12 +451,12 @@ func extentFingerprint(f *File, e *Extent, inputs string) string {
 
 // nearInput keeps the areas whose bounds meet some extent's box plus
 // margin, and renumbers the extents' picked areas to match.
-func nearInput(in *build.Input, group []*job) *build.Input {
+func nearInput(in *mapjob.Input, group []*job) *mapjob.Input {
 	var boxes []orb.Bound
 	for _, j := range group {
 		boxes = append(boxes, withMargin(j.picked.Bound, j.e.Margin))
 	}
-	sub := &build.Input{Read: in.Read, Join: in.Join, Masks: in.Masks, MaskFeatures: in.MaskFeatures, Unjoined: map[int]bool{}}
+	sub := &mapjob.Input{Read: in.Read, Join: in.Join, Masks: in.Masks, MaskFeatures: in.MaskFeatures, Unjoined: map[int]bool{}}
 	l := in.Layer
 	sub.Layer = &geo.Layer{Path: l.Path, Name: l.Name, CRS: l.CRS, Fields: l.Fields}
 	picked := map[int]bool{}
