@@ -34,7 +34,7 @@ func needTool(t *testing.T, name string) string {
 // demoMap is the committed copy of the demo's source (see
 // examples/batch/README.md).
 func demoMap(t *testing.T) string {
-	p, err := filepath.Abs("../../../examples/batch/quillmere.toml")
+	p, err := filepath.Abs("../../examples/batch/quillmere.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -126,7 +126,7 @@ type demoFeature struct {
 
 func readDemo(t *testing.T) []demoFeature {
 	t.Helper()
-	data, err := os.ReadFile("../../../examples/batch/quillmere.geojson")
+	data, err := os.ReadFile("../../examples/batch/quillmere.geojson")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -532,7 +532,7 @@ max_zoom = 10
 	where := fmt.Sprintf("ST_X(ST_Centroid(geometry)) >= %v AND ST_X(ST_Centroid(geometry)) < %v AND ST_Y(ST_Centroid(geometry)) >= %v AND ST_Y(ST_Centroid(geometry)) < %v",
 		box[0], box[2], box[1], box[3])
 	sql := "SELECT COUNT(*) AS n, " + strings.Join(sel, ", ") + " FROM quillmere WHERE " + where
-	out, err := exec.Command(ogr, "-f", "CSV", "/vsistdout/", "-dialect", "SQLite", "-sql", sql, "../../../examples/batch/quillmere.geojson").Output()
+	out, err := exec.Command(ogr, "-f", "CSV", "/vsistdout/", "-dialect", "SQLite", "-sql", sql, "../../examples/batch/quillmere.geojson").Output()
 	if err != nil {
 		t.Fatal(err)
 	}

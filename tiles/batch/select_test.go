@@ -26,7 +26,7 @@ import (
 func TestRepresentativePointIsGEOSCentroid(t *testing.T) {
 	ogr := needTool(t, "ogr2ogr")
 	for _, c := range []struct{ file, layer, id string }{
-		{"../../../examples/batch/quillmere.geojson", "quillmere", "code"},
+		{"../../examples/batch/quillmere.geojson", "quillmere", "code"},
 		{"/work/shared/data/us-counties.geojson", "us-counties", "geoid"},
 	} {
 		if _, err := os.Stat(c.file); err != nil {
@@ -206,7 +206,7 @@ func TestExampleSourceIsTheDemo(t *testing.T) {
 		t.Fatal(err)
 	}
 	a, _ := os.ReadFile(fresh)
-	b, err := os.ReadFile("../../../examples/batch/quillmere.geojson")
+	b, err := os.ReadFile("../../examples/batch/quillmere.geojson")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -216,7 +216,7 @@ func TestExampleSourceIsTheDemo(t *testing.T) {
 	if testing.Short() {
 		t.Skip("the example's render is skipped with -short")
 	}
-	f, err := Read("../../../examples/batch/districts.toml")
+	f, err := Read("../../examples/batch/districts.toml")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -9,7 +9,7 @@ import (
 )
 
 func TestDotsPerFeatureMatchCountsWithinRounding(t *testing.T) {
-	m, err := mapfile.Read("../../../testdata/small/map.toml")
+	m, err := mapfile.Read("../../testdata/small/map.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -41,7 +41,7 @@ func TestDotsPerFeatureMatchCountsWithinRounding(t *testing.T) {
 }
 
 func TestFeatureWithPeopleButNoAreaIsReported(t *testing.T) {
-	m, err := mapfile.Read("../../../testdata/small/map.toml")
+	m, err := mapfile.Read("../../testdata/small/map.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -62,7 +62,7 @@ func TestFeatureWithPeopleButNoAreaIsReported(t *testing.T) {
 }
 
 func TestMasksKeepDotsOut(t *testing.T) {
-	m, err := mapfile.Read("../../../testdata/small/map.toml")
+	m, err := mapfile.Read("../../testdata/small/map.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -99,7 +99,7 @@ func TestMasksKeepDotsOut(t *testing.T) {
 }
 
 func TestExactRoundingGivesRoundedTotals(t *testing.T) {
-	m, err := mapfile.Read("../../../testdata/small/map.toml")
+	m, err := mapfile.Read("../../testdata/small/map.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
