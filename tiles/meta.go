@@ -1,10 +1,13 @@
 package tiles
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
+
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // MetadataFile is the name of the metadata file beside the pyramid.
@@ -84,11 +87,16 @@ type NotDrawn struct {
 // WriteMetadata writes m as indented JSON to dir/map.json. encoding/json
 // escapes <, > and & in strings, so labels are safe to embed in HTML too.
 func WriteMetadata(dir string, m *Metadata) error {
+	return PutMetadata(context.Background(), sink.NewDir(dir), m)
+}
+
+// PutMetadata writes m as indented JSON to map.json in out.
+func PutMetadata(ctx context.Context, out sink.Sink, m *Metadata) error {
 	b, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {
 		return fmt.Errorf("tiles: metadata: %w", err)
 	}
-	return writeFile(filepath.Join(dir, MetadataFile), append(b, '\n'))
+	return sink.PutFile(ctx, out, MetadataFile, append(b, '\n'))
 }
 
 // ReadMetadata reads dir/map.json.
@@ -102,18 +110,4 @@ func ReadMetadata(dir string) (*Metadata, error) {
 		return nil, fmt.Errorf("tiles: %s: %w", filepath.Join(dir, MetadataFile), err)
 	}
 	return &m, nil
-}
-
-func writeFile(path string, data []byte) error {
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		return fmt.Errorf("tiles: %w", err)
-	}
-	tmp := path + ".tmp"
-	if err := os.WriteFile(tmp, data, 0o644); err != nil {
-		return fmt.Errorf("tiles: %w", err)
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("tiles: %w", err)
-	}
-	return nil
 }

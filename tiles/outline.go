@@ -119,7 +119,7 @@ func WriteOutlines(ctx context.Context, polys []orb.MultiPolygon, opt OutlineOpt
 					buf.Reset()
 					err := enc.Encode(&buf, img)
 					if err == nil {
-						err = writeFile(filepath.Join(root, strconv.Itoa(z), strconv.Itoa(x), strconv.Itoa(y)+".png"), buf.Bytes())
+						err = WriteFileAtomic(filepath.Join(root, strconv.Itoa(z), strconv.Itoa(x), strconv.Itoa(y)+".png"), buf.Bytes())
 					}
 					mu.Lock()
 					if err != nil && failed == nil {

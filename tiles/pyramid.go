@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"image/color"
 	"math/bits"
-	"os"
-	"path/filepath"
 	"runtime"
 	"slices"
 	"sort"
@@ -17,12 +15,18 @@ import (
 
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // Options describe one pyramid.
 type Options struct {
-	// Dir is the output folder; tiles go to Dir/{z}/{x}/{y}.png.
-	Dir              string
+	// Dir is a local folder for the run's state (Dir/.stipple holds the
+	// resume manifest); unless Out is set, the tiles go there too, as
+	// Dir/{z}/{x}/{y}.png.
+	Dir string
+	// Out, when set, is where the tiles go instead ({z}/{x}/{y}.png in a
+	// folder or a bucket); every tile is one atomic Put.
+	Out              sink.Sink
 	MinZoom, MaxZoom int
 	// TileSize is the tile edge in pixels: 256 or 512.
 	TileSize int
@@ -131,18 +135,16 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if workers <= 0 {
 		workers = runtime.NumCPU()
 	}
-	w := &writer{opt: opt, src: asIndexed(src), dirs: map[string]bool{}, st: Stats{PerZoom: map[int]int64{}}}
+	if opt.Out == nil {
+		opt.Out = sink.NewDir(opt.Dir)
+	}
+	w := &writer{ctx: ctx, opt: opt, src: asIndexed(src), st: Stats{PerZoom: map[int]int64{}}}
 	w.rel, _ = src.(releaser)
-	man, resuming, err := openManifest(opt.Dir, opt.Fingerprint)
+	man, resuming, err := openManifest(ctx, opt.Dir, opt.Out, opt.Fingerprint)
 	if err != nil {
 		return Stats{}, err
 	}
 	w.man, w.resuming = man, resuming
-	w.tmp = filepath.Join(opt.Dir, StateDir, "tmp")
-	os.RemoveAll(w.tmp) // stale temporary tiles of a killed run
-	if err := os.MkdirAll(w.tmp, 0o755); err != nil {
-		return Stats{}, fmt.Errorf("tiles: %w", err)
-	}
 	passes := []*pass{{size: opt.TileSize, look: opt.Look}}
 	if opt.HiDPI {
 		look := opt.Look
@@ -220,7 +222,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 				if failed.Load() != nil {
 					continue
 				}
-				err := w.place(f.dir, f.final, f.j, f.data)
+				err := w.opt.Out.Put(ctx, f.path, f.data, "image/png", sink.CacheTiles)
 				if err == nil {
 					err = w.account(f.j, int64(len(f.data)), false)
 				}
@@ -300,16 +302,15 @@ func (w *writer) keep(z, x, y int) bool { return w.opt.Keep == nil || w.opt.Keep
 func zoomKey(z int, suffix string) string { return strconv.Itoa(z) + suffix }
 
 type writer struct {
+	ctx       context.Context
 	opt       Options
 	src       indexed
 	rel       releaser
 	read      atomic.Int64
 	man       *manifest
 	resuming  bool
-	tmp       string
 	mu        sync.Mutex
 	st        Stats
-	dirs      map[string]bool
 	left      map[string]*int64
 	zoomStats map[string]*ZoomStats
 	io        chan tileFile
@@ -336,11 +337,12 @@ func (w *writer) finishZoom(zk string) error {
 
 // do renders and encodes one tile and hands it to the writers (w.io).
 func (w *writer) do(r *tileRenderer, j job) error {
-	dir := filepath.Join(w.opt.Dir, strconv.Itoa(j.z), strconv.Itoa(j.x))
-	final := filepath.Join(dir, strconv.Itoa(j.y)+j.p.suffix+".png")
+	p := TilePath(j.z, j.x, j.y, j.p.suffix)
 	if w.resuming {
-		if fi, err := os.Stat(final); err == nil && fi.Mode().IsRegular() {
-			return w.account(j, fi.Size(), true)
+		if size, ok, err := w.opt.Out.Exists(w.ctx, p); err != nil {
+			return err
+		} else if ok {
+			return w.account(j, size, true)
 		}
 	}
 	t := r.render(j)
@@ -351,15 +353,21 @@ func (w *writer) do(r *tileRenderer, j job) error {
 	if err := r.enc.EncodeTile(&r.buf, t); err != nil {
 		return fmt.Errorf("tiles: %d/%d/%d: %w", j.z, j.x, j.y, err)
 	}
-	w.io <- tileFile{j: j, dir: dir, final: final, data: bytes.Clone(r.buf.Bytes())}
+	w.io <- tileFile{j: j, path: p, data: bytes.Clone(r.buf.Bytes())}
 	return nil
 }
 
 // tileFile is an encoded tile on its way to disk.
 type tileFile struct {
-	j          job
-	dir, final string
-	data       []byte
+	j    job
+	path string
+	data []byte
+}
+
+// TilePath is the slash path of tile z/x/y with a file suffix ("" or
+// "@2x") under a pyramid's root: "z/x/y.png" or "z/x/y@2x.png".
+func TilePath(z, x, y int, suffix string) string {
+	return strconv.Itoa(z) + "/" + strconv.Itoa(x) + "/" + strconv.Itoa(y) + suffix + ".png"
 }
 
 // account adds one finished tile (size −1: no ink) to the totals and marks
@@ -393,28 +401,6 @@ func (w *writer) account(j job, size int64, kept bool) error {
 	}
 	if atomic.AddInt64(w.left[zk], -1) == 0 {
 		return w.finishZoom(zk)
-	}
-	return nil
-}
-
-// place writes a tile to a temporary file and renames it into place, so a
-// tile path holds either nothing or a whole tile, even after a kill.
-func (w *writer) place(dir, final string, j job, data []byte) error {
-	w.mu.Lock()
-	if !w.dirs[dir] {
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			w.mu.Unlock()
-			return fmt.Errorf("tiles: %w", err)
-		}
-		w.dirs[dir] = true
-	}
-	w.mu.Unlock()
-	tmp := filepath.Join(w.tmp, fmt.Sprintf("%d-%d-%d%s.png", j.z, j.x, j.y, j.p.suffix))
-	if err := os.WriteFile(tmp, data, 0o644); err != nil {
-		return fmt.Errorf("tiles: %w", err)
-	}
-	if err := os.Rename(tmp, final); err != nil {
-		return fmt.Errorf("tiles: %w", err)
 	}
 	return nil
 }

@@ -1,12 +1,15 @@
 package tiles
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
+
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // StateDir is the folder inside the output folder where stipple keeps what a
@@ -39,7 +42,7 @@ func manifestPath(dir string) string { return filepath.Join(dir, StateDir, manif
 // true when an earlier run with the same fingerprint left tiles to keep. A
 // manifest with another fingerprint has its zoom folders removed first, so
 // no tile of an old look survives beside the new ones.
-func openManifest(dir, fp string) (man *manifest, resuming bool, err error) {
+func openManifest(ctx context.Context, dir string, out sink.Sink, fp string) (man *manifest, resuming bool, err error) {
 	man = &manifest{Fingerprint: fp, Done: map[string]ZoomStats{}}
 	data, err := os.ReadFile(manifestPath(dir))
 	if err == nil {
@@ -52,7 +55,7 @@ func openManifest(dir, fp string) (man *manifest, resuming bool, err error) {
 		}
 		if json.Unmarshal(data, &old) == nil {
 			for _, zk := range old.Zooms {
-				if err := removeZoom(dir, zk); err != nil {
+				if err := removeZoom(ctx, out, zk); err != nil {
 					return nil, false, err
 				}
 			}
@@ -63,18 +66,35 @@ func openManifest(dir, fp string) (man *manifest, resuming bool, err error) {
 	return man, false, man.save(dir)
 }
 
-// removeZoom deletes the tiles of zoom key zk ("z" or "z@2x") and nothing
-// else: the other pass's files in the same folders are kept.
-func removeZoom(dir, zk string) error {
+// removeZoom deletes the tiles of zoom key zk ("z" or "z@2x") from out and
+// nothing else: the other pass's files in the same folders are kept.
+func removeZoom(ctx context.Context, out sink.Sink, zk string) error {
 	z, suffix, _ := strings.Cut(zk, "@")
 	if _, err := strconv.Atoi(z); err != nil {
 		return nil // not ours
 	}
-	zdir := filepath.Join(dir, z)
-	if suffix == "" {
-		return walkRemove(zdir, func(name string) bool { return strings.HasSuffix(name, ".png") && !strings.Contains(name, "@") })
+	match := func(name string) bool { return strings.HasSuffix(name, ".png") && !strings.Contains(name, "@") }
+	if suffix != "" {
+		match = func(name string) bool { return strings.HasSuffix(name, "@"+suffix+".png") }
 	}
-	return walkRemove(zdir, func(name string) bool { return strings.HasSuffix(name, "@"+suffix+".png") })
+	if d, ok := out.(*sink.Dir); ok {
+		return walkRemove(filepath.Join(d.Root(), z), match)
+	}
+	var old []string
+	if err := out.List(ctx, z+"/", func(p string, _ int64) error {
+		if match(p) {
+			old = append(old, p)
+		}
+		return nil
+	}); err != nil {
+		return err
+	}
+	for _, p := range old {
+		if err := out.Delete(ctx, p); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 func walkRemove(zdir string, match func(string) bool) error {
@@ -125,19 +145,33 @@ func (m *manifest) began(zk string) bool {
 	return false
 }
 
-// WriteFileAtomic writes data to a temporary file beside path and renames it
-// into place, so path holds either its old content or all of data, even if
-// the process is killed.
+// WriteFileAtomic writes data to a temporary file beside path (a name of
+// its own, so two writers never share one) and renames it into place, so
+// path holds either its old content or all of data, even if the process is
+// killed (rename is atomic within a file system, POSIX rename(2)).
 func WriteFileAtomic(path string, data []byte) error {
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+	dir := filepath.Dir(path)
+	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
-	tmp := path + ".tmp"
-	if err := os.WriteFile(tmp, data, 0o644); err != nil {
+	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	if err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
-	if err := os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("tiles: %w", err)
+	tmp := f.Name()
+	_, werr := f.Write(data)
+	if cerr := f.Close(); werr == nil {
+		werr = cerr
+	}
+	if werr == nil {
+		werr = os.Chmod(tmp, 0o644) // CreateTemp makes 0600 files; these are served
+	}
+	if werr == nil {
+		werr = os.Rename(tmp, path)
+	}
+	if werr != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("tiles: %w", werr)
 	}
 	return nil
 }

@@ -2,12 +2,12 @@ package tiles
 
 import (
 	"bytes"
+	"context"
 	"embed"
 	"encoding/json"
 	"fmt"
 	"html/template"
 	"net/url"
-	"os"
 	"path"
 	"path/filepath"
 	"slices"
@@ -15,6 +15,7 @@ import (
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 //go:embed viewer/page.html viewer/viewer.js viewer/viewer.css
@@ -49,11 +50,17 @@ func WriteViewer(dir string, m *Metadata) error {
 	return WriteViewerLayers(dir, []ViewerLayer{{Meta: m}})
 }
 
-// WriteViewerLayers writes, into dir, a viewer over one or more maps:
+// WriteViewerLayers is PutViewer into the local folder dir.
+func WriteViewerLayers(dir string, layers []ViewerLayer) error {
+	return PutViewer(context.Background(), sink.NewDir(dir), layers)
+}
+
+// PutViewer writes, into out, a viewer over one or more maps:
 // index.html (full page), embed.html (for an iframe), viewer.js, viewer.css,
 // map-data.js, alt.txt and tile-index/ (which tiles exist, so the viewer
 // never asks for a tile that was not written). The layers' tiles must be
-// written first: their folders are read to build the index.
+// written first: out is listed to build the index, so a folder and a
+// bucket get the same viewer.
 //
 // A layer whose Metadata.Tiles2x names high-density tiles has them asked
 // for on screens of more than one device pixel per CSS pixel, drawn at the
@@ -67,7 +74,7 @@ func WriteViewer(dir string, m *Metadata) error {
 // Every text from the map file is escaped where it lands: html/template for
 // the pages (the legend is written into the HTML, not built by script),
 // encoding/json for map-data.js, which carries no map-file text but keys.
-func WriteViewerLayers(dir string, layers []ViewerLayer) error {
+func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 	if len(layers) == 0 {
 		return fmt.Errorf("tiles: viewer: no layers")
 	}
@@ -101,7 +108,7 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 		vl := viewerLayerData{
 			Key: key, Bounds: m.Bounds, Center: m.Center, MinZoom: m.MinZoom, MaxZoom: m.MaxZoom, Outline: -1,
 		}
-		dots, err := indexSet(dir, l.Dir, prefix, m.Tiles, len(sets), m.MinZoom, m.MaxZoom)
+		dots, err := indexSet(ctx, out, l.Dir, prefix, m.Tiles, len(sets), m.MinZoom, m.MaxZoom)
 		if err != nil {
 			return fmt.Errorf("tiles: viewer: layer %d: %w", i+1, err)
 		}
@@ -113,7 +120,7 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 		vl.Dots = len(sets)
 		sets = append(sets, dots)
 		if m.Outline != "" {
-			ol, err := indexSet(dir, l.Dir, prefix, m.Outline, len(sets), 0, 24)
+			ol, err := indexSet(ctx, out, l.Dir, prefix, m.Outline, len(sets), 0, 24)
 			if err != nil {
 				return fmt.Errorf("tiles: viewer: layer %d outline: %w", i+1, err)
 			}
@@ -134,7 +141,7 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 				return fmt.Errorf("tiles: viewer: %w", err)
 			}
 			js := fmt.Sprintf("stippleTileIndex(%d,%d,%s);\n", s.id, z, b)
-			if err := writeFile(filepath.Join(dir, IndexDir, fmt.Sprintf("%d-%d.js", s.id, z)), []byte(js)); err != nil {
+			if err := sink.PutFile(ctx, out, fmt.Sprintf("%s/%d-%d.js", IndexDir, s.id, z), []byte(js)); err != nil {
 				return err
 			}
 		}
@@ -153,7 +160,7 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 		if err := tmpl.Execute(&buf, pages); err != nil {
 			return fmt.Errorf("tiles: viewer: %w", err)
 		}
-		if err := writeFile(filepath.Join(dir, p.name), buf.Bytes()); err != nil {
+		if err := sink.PutFile(ctx, out, p.name, buf.Bytes()); err != nil {
 			return err
 		}
 	}
@@ -162,7 +169,7 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 		if err != nil {
 			return fmt.Errorf("tiles: %w", err)
 		}
-		if err := writeFile(filepath.Join(dir, name), b); err != nil {
+		if err := sink.PutFile(ctx, out, name, b); err != nil {
 			return err
 		}
 	}
@@ -170,14 +177,14 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 	if err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
-	if err := writeFile(filepath.Join(dir, DataScript), []byte("window.stippleMap = "+string(js)+";\n")); err != nil {
+	if err := sink.PutFile(ctx, out, DataScript, []byte("window.stippleMap = "+string(js)+";\n")); err != nil {
 		return err
 	}
 	metas := make([]*Metadata, len(layers))
 	for i, l := range layers {
 		metas[i] = l.Meta
 	}
-	return writeFile(filepath.Join(dir, AltFile), []byte(AltText(metas...)))
+	return sink.PutFile(ctx, out, AltFile, []byte(AltText(metas...)))
 }
 
 // viewerData is map-data.js: numbers, keys and paths only. Everything the
@@ -300,9 +307,9 @@ func denseURL(urlPrefix, t, t2x string) (string, error) {
 	return tileURL(urlPrefix, t2x)
 }
 
-// indexSet reads which tiles of template t (relative to layer folder
-// layerDir in viewer folder dir) exist, for zooms minZ..maxZ.
-func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, error) {
+// indexSet lists which tiles of template t (relative to layer folder
+// layerDir of out) exist, for zooms minZ..maxZ.
+func indexSet(ctx context.Context, out sink.Sink, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, error) {
 	prefix, ext, err := splitTemplate(t)
 	if err != nil {
 		return tileSet{}, err
@@ -312,9 +319,14 @@ func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, 
 		return tileSet{}, err
 	}
 	set := tileSet{id: id, tiles: urlT, index: map[int]tileIndex{}}
-	root := filepath.Join(dir, filepath.FromSlash(layerDir), filepath.FromSlash(prefix))
+	root := path.Join(layerDir, prefix)
+	if root == "." || root == "" {
+		root = ""
+	} else {
+		root += "/"
+	}
 	for z := minZ; z <= maxZ; z++ {
-		idx, ok, err := scanZoom(filepath.Join(root, strconv.Itoa(z)), z, ext)
+		idx, ok, err := scanZoom(ctx, out, root+strconv.Itoa(z)+"/", z, ext)
 		if err != nil {
 			return tileSet{}, err
 		}
@@ -329,37 +341,29 @@ func indexSet(dir, layerDir, urlPrefix, t string, id, minZ, maxZ int) (tileSet, 
 	return set, nil
 }
 
-// scanZoom lists zdir/{x}/{y}EXT; ok is false when there are none.
-func scanZoom(zdir string, z int, ext string) (tileIndex, bool, error) {
-	xs, err := os.ReadDir(zdir)
-	if os.IsNotExist(err) {
-		return tileIndex{}, false, nil
-	}
-	if err != nil {
-		return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
-	}
+// scanZoom lists zdir{x}/{y}EXT in out; ok is false when there are none.
+func scanZoom(ctx context.Context, out sink.Sink, zdir string, z int, ext string) (tileIndex, bool, error) {
 	n := 1 << z
 	rows := map[int][]int{}
-	for _, xe := range xs {
-		x, err := strconv.Atoi(xe.Name())
-		if err != nil || !xe.IsDir() || x < 0 || x >= n {
-			continue
+	err := out.List(ctx, zdir, func(p string, _ int64) error {
+		xs, name, found := strings.Cut(strings.TrimPrefix(p, zdir), "/")
+		if !found || strings.Contains(name, "/") {
+			return nil
 		}
-		ys, err := os.ReadDir(filepath.Join(zdir, xe.Name()))
-		if err != nil {
-			return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
+		name, found = strings.CutSuffix(name, ext)
+		if !found {
+			return nil
 		}
-		for _, ye := range ys {
-			name, found := strings.CutSuffix(ye.Name(), ext)
-			if !found || ye.IsDir() {
-				continue
-			}
-			y, err := strconv.Atoi(name)
-			if err != nil || y < 0 || y >= n {
-				continue
-			}
-			rows[y] = append(rows[y], x)
+		x, err1 := strconv.Atoi(xs)
+		y, err2 := strconv.Atoi(name)
+		if err1 != nil || err2 != nil || x < 0 || x >= n || y < 0 || y >= n {
+			return nil
 		}
+		rows[y] = append(rows[y], x)
+		return nil
+	})
+	if err != nil {
+		return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
 	}
 	if len(rows) == 0 {
 		return tileIndex{}, false, nil

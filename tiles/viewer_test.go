@@ -1,6 +1,7 @@
 package tiles
 
 import (
+	"context"
 	"encoding/json"
 	"math/rand/v2"
 	"os"
@@ -11,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // Colours of the viewer's stylesheet, by custom property name.
@@ -200,7 +202,7 @@ func TestScanZoomReadsOnlyTiles(t *testing.T) {
 		os.MkdirAll(filepath.Join(dir, filepath.Dir(p)), 0o755)
 		os.WriteFile(filepath.Join(dir, p), []byte("x"), 0o644)
 	}
-	idx, ok, err := scanZoom(filepath.Join(dir, "3"), 3, ".png")
+	idx, ok, err := scanZoom(context.Background(), sink.NewDir(dir), "3/", 3, ".png")
 	if err != nil || !ok {
 		t.Fatal(ok, err)
 	}
@@ -214,7 +216,7 @@ func TestScanZoomReadsOnlyTiles(t *testing.T) {
 			t.Errorf("tile %v missing from %v", k, got)
 		}
 	}
-	if _, ok, err := scanZoom(filepath.Join(dir, "4"), 4, ".png"); ok || err != nil {
+	if _, ok, err := scanZoom(context.Background(), sink.NewDir(dir), "4/", 4, ".png"); ok || err != nil {
 		t.Errorf("a missing zoom folder: ok %v err %v", ok, err)
 	}
 }
