@@ -77,6 +77,9 @@ func altOne(m *Metadata) string {
 	if m.NotDrawn.People+m.NotDrawn.RowsWithoutArea > 0 {
 		fmt.Fprintf(&b, " %s people are not drawn.", render.FormatCount(m.NotDrawn.People+m.NotDrawn.RowsWithoutArea))
 	}
+	if m.NotDrawn.BeyondTileLimit > 0 {
+		fmt.Fprintf(&b, " %s people are beyond the tile projection's latitude limit (85.05° north or south) and are not on the tiles.", render.FormatCount(m.NotDrawn.BeyondTileLimit))
+	}
 	if where := boundsText(m.Bounds); where != "" {
 		fmt.Fprintf(&b, " The map covers %s.", where)
 	}

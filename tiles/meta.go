@@ -72,13 +72,19 @@ type Category struct {
 	// DotsExpected is People / PeoplePerDot; DotsDrawn what was drawn.
 	DotsExpected float64 `json:"dots_expected"`
 	DotsDrawn    int     `json:"dots_drawn"`
+	// DotsBeyond are dots placed beyond Web Mercator's latitude limit
+	// (±85.0511°), which tiles cannot show; print pages draw them.
+	DotsBeyond int `json:"dots_beyond_tile_limit,omitempty"`
 }
 
 // NotDrawn counts people left off the map.
 type NotDrawn struct {
-	People   float64  `json:"people"`
-	Dots     int      `json:"dots"`
-	Features []string `json:"features"` // "id: reason", the first 100
+	People float64 `json:"people"`
+	// BeyondTileLimit is the people whose dots lie beyond Web Mercator's
+	// latitude limit (±85.0511°): on print pages, not on the tiles.
+	BeyondTileLimit float64  `json:"people_beyond_tile_latitude_limit"`
+	Dots            int      `json:"dots"`
+	Features        []string `json:"features"` // "id: reason", the first 100
 	// RowsWithoutArea is the people in count-table rows that matched no
 	// area: in the input, but on no area of the map.
 	RowsWithoutArea float64 `json:"people_in_rows_without_area"`

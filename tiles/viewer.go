@@ -455,6 +455,10 @@ func NotDrawnText(m *Metadata) string {
 		parts = append(parts, fmt.Sprintf("%s people (%d dots) are not drawn; map.json lists the areas and why.",
 			render.FormatCount(m.NotDrawn.People), m.NotDrawn.Dots))
 	}
+	if m.NotDrawn.BeyondTileLimit > 0 {
+		parts = append(parts, fmt.Sprintf("%s people live in areas beyond the tile projection's latitude limit (85.05° north or south) and are not on the tiles.",
+			render.FormatCount(m.NotDrawn.BeyondTileLimit)))
+	}
 	if m.NotDrawn.RowsWithoutArea > 0 {
 		parts = append(parts, fmt.Sprintf("%s people are in count rows that match no area and are not on the map.",
 			render.FormatCount(m.NotDrawn.RowsWithoutArea)))

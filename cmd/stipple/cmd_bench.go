@@ -12,7 +12,7 @@ import (
 	"strings"
 	"time"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/benchdata"
+	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"

@@ -1,7 +1,10 @@
 package mapjob
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
+	"os"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
@@ -31,21 +34,17 @@ type Input struct {
 	// Dots[i][k] is the number of dots feature i gets in category k, by the
 	// map's rounding rule (sample.Allocate).
 	Dots [][]int
+	// Fingerprint identifies everything the placed dots depend on (see
+	// samplingFingerprint): two inputs with the same one place the same
+	// dots.
+	Fingerprint string
 }
 
-// Load reads the map's areas and returns them with their counts per
-// category (counts[i][k] for feature i, category k). A non-nil layer is used
-// as it is instead of reading m.Input.File.
-func Load(m *mapfile.Map, layer *geo.Layer) (*geo.Layer, [][]float64, error) {
-	in, err := LoadInput(m, layer)
-	if err != nil {
-		return nil, nil, err
-	}
-	return in.Layer, in.Counts, nil
-}
-
-// LoadInput is Load with the reports of reading and joining.
-func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
+// Load reads the map's areas, joins their counts, reads the masks, and
+// allocates each area's dots by the map's rounding rule, with the reports
+// of reading and joining. A non-nil layer is used as it is instead of
+// reading m.Input.File. Every command that makes a map starts here.
+func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 	in := &Input{Layer: layer, Unjoined: map[int]bool{}}
 	if layer == nil {
 		res, err := read.File(m.Resolve(m.Input.File), read.Options{IDField: m.Input.ID, Layer: m.Input.Layer})
@@ -113,7 +112,7 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			in.Counts[i][k] = n
 		}
 	}
-	masks, n, err := LoadMasks(m)
+	masks, n, maskHash, err := loadMasks(m)
 	if err != nil {
 		return nil, err
 	}
@@ -123,17 +122,26 @@ func LoadInput(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 		idList[i] = f.ID
 	}
 	in.Dots = sample.AllocateStreams(idList, in.Counts, m.PeoplePerDot, m.Seed, m.Rounding == "exact", Streams(m))
+	in.Fingerprint = samplingFingerprint(m, layer, in.Counts, maskHash)
 	return in, nil
 }
 
-// LoadMasks reads the map's mask files (input.mask) into one mask index;
-// nil when the map has none. n is the number of mask polygons.
-func LoadMasks(m *mapfile.Map) (mask *sample.Mask, n int, err error) {
+// loadMasks reads the map's mask files (input.mask) into one mask index;
+// nil when the map has none. n is the number of mask polygons; sum hashes
+// the files' names and bytes, so editing a mask in place changes the
+// sampling fingerprint.
+func loadMasks(m *mapfile.Map) (mask *sample.Mask, n int, sum string, err error) {
 	var polys []orb.MultiPolygon
+	h := sha256.New()
 	for _, mf := range m.Input.Mask {
+		data, err := os.ReadFile(m.Resolve(mf))
+		if err != nil {
+			return nil, 0, "", fmt.Errorf("%s: key input.mask: %w", m.Path, err)
+		}
+		fmt.Fprintf(h, "%q %x\n", mf, sha256.Sum256(data))
 		res, err := read.File(m.Resolve(mf), read.Options{})
 		if err != nil {
-			return nil, 0, fmt.Errorf("%s: key input.mask: %w", m.Path, err)
+			return nil, 0, "", fmt.Errorf("%s: key input.mask: %w", m.Path, err)
 		}
 		for _, f := range res.Layer.Features {
 			if len(f.Geometry) > 0 {
@@ -141,10 +149,11 @@ func LoadMasks(m *mapfile.Map) (mask *sample.Mask, n int, err error) {
 			}
 		}
 	}
+	sum = hex.EncodeToString(h.Sum(nil))
 	if len(polys) == 0 {
-		return nil, 0, nil
+		return nil, 0, sum, nil
 	}
-	return sample.NewMask(polys), len(polys), nil
+	return sample.NewMask(polys), len(polys), sum, nil
 }
 
 // Streams are the random stream numbers of the map's categories, from

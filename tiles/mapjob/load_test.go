@@ -1,6 +1,7 @@
 package mapjob
 
 import (
+	"context"
 	"math"
 	"testing"
 
@@ -15,27 +16,30 @@ func TestDotsPerFeatureMatchCountsWithinRounding(t *testing.T) {
 	}
 	for _, perDot := range []float64{1, 5, 7.5, 100} {
 		m.PeoplePerDot = perDot
-		layer, counts, err := Load(m, nil)
+		in, err := Load(m, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		store, results, err := Place(layer, counts, m, 2)
+		pl, err := Place(context.Background(), in, m, PlaceOptions{Workers: 2})
 		if err != nil {
 			t.Fatal(err)
 		}
-		total := 0
-		for i, r := range results {
+		for i := range in.Dots {
 			for k := range m.Categories {
-				want := counts[i][k] / perDot
+				want := in.Counts[i][k] / perDot
 				// Unbiased rounding gives floor or ceil of count/N, never more.
-				if d := float64(r.Dots[k] + r.Lost[k]); d != math.Floor(want) && d != math.Ceil(want) {
-					t.Errorf("N=%v feature %s cat %d: %v dots; want ⌊%v⌋ or ⌈%v⌉", perDot, layer.Features[i].ID, k, d, want, want)
+				if d := float64(in.Dots[i][k]); d != math.Floor(want) && d != math.Ceil(want) {
+					t.Errorf("N=%v feature %s cat %d: %v dots; want ⌊%v⌋ or ⌈%v⌉", perDot, in.Layer.Features[i].ID, k, d, want, want)
 				}
-				total += r.Dots[k]
 			}
 		}
-		if store.Len() != total {
-			t.Errorf("N=%v: store holds %d dots; results say %d", perDot, store.Len(), total)
+		tally := TallyAreas(in, m, pl.Outcomes, nil)
+		total := 0
+		for _, d := range tally.Dots {
+			total += d
+		}
+		if pl.Store.Len() != total {
+			t.Errorf("N=%v: store holds %d dots; the tally says %d", perDot, pl.Store.Len(), total)
 		}
 	}
 }
@@ -45,19 +49,27 @@ func TestFeatureWithPeopleButNoAreaIsReported(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, counts, err := Load(m, nil)
+	in, err := Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	// Feature "010" has no geometry; give it people.
-	counts[3][0] = 50
-	_, results, err := Place(layer, counts, m, 1)
+	in.Counts[3][0] = 50
+	in.Dots[3][0] = 10
+	pl, err := Place(context.Background(), in, m, PlaceOptions{Workers: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
-	r := results[3]
-	if r.Lost[0] != 10 || r.Dots[0] != 0 || r.Problem == "" {
-		t.Errorf("no-area feature: lost %d, drew %d, problem %q; want 10 lost and a problem", r.Lost[0], r.Dots[0], r.Problem)
+	o := pl.Outcomes[3]
+	if o.Lost == nil || o.Lost[0] != 10 || o.Problem == "" {
+		t.Errorf("no-area feature: outcome %+v; want 10 lost and a problem", o)
+	}
+	// A tally without that outcome (as a shard's final step has, since no
+	// part samples an area without geometry) counts it the same.
+	delete(pl.Outcomes, 3)
+	tally := TallyAreas(in, m, pl.Outcomes, []int{3})
+	if tally.NotDrawn != 50 || tally.Dots[0] != 0 || len(tally.Problems) != 1 {
+		t.Errorf("no-area feature without outcome: not drawn %v, dots %v, problems %q; want 50, 0 and one problem", tally.NotDrawn, tally.Dots, tally.Problems)
 	}
 }
 
@@ -68,17 +80,18 @@ func TestMasksKeepDotsOut(t *testing.T) {
 	}
 	m.PeoplePerDot = 1
 	m.Input.Mask = []string{"water.geojson"} // the east half of area "007"
-	in, err := LoadInput(m, nil)
+	in, err := Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if in.Masks == nil || in.MaskFeatures != 1 {
 		t.Fatalf("masks not loaded: %v, %d", in.Masks, in.MaskFeatures)
 	}
-	store, results, err := Place(in.Layer, in.Counts, m, 2)
+	pl, err := Place(context.Background(), in, m, PlaceOptions{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
+	store := pl.Store
 	// Every dot of the store west of −140.0 lies in "007" or "009"; none of
 	// them may fall in the pond (lon −140.01 … −140.0, lat −30.02 … −30.0).
 	inPond := 0
@@ -93,7 +106,8 @@ func TestMasksKeepDotsOut(t *testing.T) {
 	if inPond != 0 {
 		t.Errorf("%d dots in the masked pond", inPond)
 	}
-	if got, want := results[0].Dots[0]+results[0].Dots[1], 1200+340; got != want {
+	if tally := TallyAreas(in, m, pl.Outcomes, []int{0}); tally.Dots[0]+tally.Dots[1] != 1200+340 || tally.NotDrawn != 0 {
+		got, want := tally.Dots[0]+tally.Dots[1], 1200+340
 		t.Errorf("area 007 drew %d dots; want all %d, outside the pond", got, want)
 	}
 }
@@ -105,20 +119,16 @@ func TestExactRoundingGivesRoundedTotals(t *testing.T) {
 	}
 	m.PeoplePerDot = 7
 	m.Rounding = "exact"
-	in, err := LoadInput(m, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	_, results, err := Place(in.Layer, in.Counts, m, 3)
+	in, err := Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	for k := range m.Categories {
 		var people float64
 		drawn := 0
-		for i := range results {
+		for i := range in.Dots {
 			people += in.Counts[i][k]
-			drawn += results[i].Dots[k] + results[i].Lost[k]
+			drawn += in.Dots[i][k]
 		}
 		if want := int(math.Round(people / 7)); drawn != want {
 			t.Errorf("category %d: %d dots; exact mode wants round(%v/7) = %d", k, drawn, people, want)

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/stipple-maps/stipple/cmd/stipple/benchdata"
+	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )

@@ -1,13 +1,12 @@
 package mapjob
 
 import (
+	"bytes"
+	"context"
 	"fmt"
-	"image"
 	"image/color"
 	"image/png"
 	"math"
-	"os"
-	"path/filepath"
 	"sort"
 	"strings"
 
@@ -16,6 +15,7 @@ import (
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // Metadata describes the finished map. It names the @2x tile template
@@ -38,11 +38,12 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 	for k, c := range m.Categories {
 		md.Categories = append(md.Categories, tiles.Category{
 			Key: c.Key, Label: c.Label, Color: strings.ToUpper(c.Color), People: s.People[k],
-			DotsExpected: s.People[k] / m.PeoplePerDot, DotsDrawn: s.Dots[k],
+			DotsExpected: s.People[k] / m.PeoplePerDot, DotsDrawn: s.Dots[k], DotsBeyond: s.Beyond[k],
 		})
 	}
 	md.NotDrawn.People = s.NotDrawn
 	md.NotDrawn.RowsWithoutArea = s.RowsWithoutArea
+	md.NotDrawn.BeyondTileLimit = s.BeyondPeople
 	md.NotDrawn.Dots = int(math.Round(s.NotDrawn / m.PeoplePerDot))
 	md.NotDrawn.Features = s.Problems
 	if len(md.NotDrawn.Features) > 100 {
@@ -82,39 +83,36 @@ func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
 	return l
 }
 
-// WriteLegends writes the map's legend into dir as legend.png (300 px
-// wide), legend@2x.png (the same at twice the pixels) and legend.svg (text
-// kept as text, for print and CMS workflows), and lists them in md.Legend.
-func WriteLegends(dir string, md *tiles.Metadata, colors []color.NRGBA) error {
+// PutFurniture writes a map's furniture into out, after its tiles: the
+// legend as legend.png (300 px wide), legend@2x.png (the same at twice the
+// pixels) and legend.svg (text kept as text, for print and CMS work), then
+// map.json, then the viewer (index.html, embed.html, alt.txt, its scripts
+// and the tile index listed from out). md.Legend is set to the legends'
+// names. Every command that makes a map writes its furniture here, so a
+// folder, a bucket, a shard's final step and a batch extent get the same
+// files.
+func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors []color.NRGBA) error {
 	leg := LegendOf(md, colors)
 	md.Legend = md.Legend[:0]
 	for _, s := range []struct {
 		name  string
 		scale float64
 	}{{"legend.png", 1}, {"legend@2x.png", 2}} {
-		if err := writePNG(filepath.Join(dir, s.name), render.DrawLegend(leg, 300, s.scale)); err != nil {
+		var buf bytes.Buffer
+		if err := png.Encode(&buf, render.DrawLegend(leg, 300, s.scale)); err != nil {
+			return fmt.Errorf("output: %s: %w", s.name, err)
+		}
+		if err := sink.PutFile(ctx, out, s.name, buf.Bytes()); err != nil {
 			return err
 		}
 		md.Legend = append(md.Legend, s.name)
 	}
-	if err := os.WriteFile(filepath.Join(dir, "legend.svg"), render.LegendSVG(leg, 300), 0o644); err != nil {
-		return fmt.Errorf("output: %w", err)
+	if err := sink.PutFile(ctx, out, "legend.svg", render.LegendSVG(leg, 300)); err != nil {
+		return err
 	}
 	md.Legend = append(md.Legend, "legend.svg")
-	return nil
-}
-
-func writePNG(path string, img image.Image) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return fmt.Errorf("output: %w", err)
+	if err := tiles.PutMetadata(ctx, out, md); err != nil {
+		return err
 	}
-	if err := png.Encode(f, img); err != nil {
-		f.Close()
-		return fmt.Errorf("output: %s: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("output: %w", err)
-	}
-	return nil
+	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})
 }

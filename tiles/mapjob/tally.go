@@ -1,0 +1,94 @@
+package mapjob
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/sample"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+)
+
+// Tally is the account of a set of areas, per category: the people
+// counted, the dots drawn on the tiles, the dots placed beyond the tiles'
+// latitude limit, and the people whose dots found no place. Every person
+// is in People; their dots are in Dots, in Beyond, or in NotDrawn.
+type Tally struct {
+	// Features is the number of areas tallied.
+	Features int
+	People   []float64
+	// Dots are the dots drawn on the tiles.
+	Dots []int
+	// Beyond are dots placed beyond Web Mercator's latitude limit: on
+	// print pages, not on tiles. BeyondPeople is their people (dots ×
+	// people per dot), over all categories.
+	Beyond       []int
+	BeyondPeople float64
+	// NotDrawn is the people with no dot (lost dots × people per dot).
+	NotDrawn float64
+	// Problems has one line per area with lost dots; Notes one line per
+	// area whose dots were all placed, but not plainly.
+	Problems []string
+	Notes    []string
+	// Bounds is the bound of the areas that have people and geometry.
+	Bounds orb.Bound
+}
+
+// TallyAreas tallies the areas idx of the input (all when idx is nil) from
+// their outcomes. An area without an Outcome had all its dots drawn, except
+// an area with no geometry, which no placement samples: its outcome is
+// taken from the sampler here, so every path counts it alike.
+func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
+	nc := len(m.Categories)
+	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}}
+	t.Bounds = orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Streams: Streams(m)}
+	add := func(i int) {
+		f := &in.Layer.Features[i]
+		t.Features++
+		has := false
+		for k := 0; k < nc; k++ {
+			t.People[k] += in.Counts[i][k]
+			has = has || in.Counts[i][k] > 0
+		}
+		if has && len(f.Geometry) > 0 {
+			t.Bounds = t.Bounds.Union(f.Geometry.Bound())
+		}
+		o, ok := outcomes[i]
+		if !ok && len(f.Geometry) == 0 {
+			r := sample.FeatureN(f, in.Dots[i], sopt, func(int, orb.Point) {})
+			o, ok = outcomeOf(r, nil)
+		}
+		lost := 0
+		for k := 0; k < nc; k++ {
+			d := in.Dots[i][k]
+			if ok && o.Lost != nil {
+				d -= o.Lost[k]
+				lost += o.Lost[k]
+			}
+			if ok && o.Beyond != nil {
+				d -= o.Beyond[k]
+				t.Beyond[k] += o.Beyond[k]
+				t.BeyondPeople += float64(o.Beyond[k]) * m.PeoplePerDot
+			}
+			t.Dots[k] += d
+		}
+		switch {
+		case lost > 0:
+			t.NotDrawn += float64(lost) * m.PeoplePerDot
+			t.Problems = append(t.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, o.Problem))
+		case ok && o.Problem != "":
+			t.Notes = append(t.Notes, fmt.Sprintf("feature %d (id %q): %s", f.Index, f.ID, o.Problem))
+		}
+	}
+	if idx == nil {
+		for i := range in.Layer.Features {
+			add(i)
+		}
+	} else {
+		for _, i := range idx {
+			add(i)
+		}
+	}
+	return t
+}
