@@ -12,8 +12,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
 )

@@ -8,8 +8,8 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/benchdata"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
 
