@@ -32,7 +32,7 @@ type Legend struct {
 	Note string
 	// Caution says that dots are placed at random within each area.
 	Caution string
-	// Credit names the source; the legend prefixes it with "Source: ".
+	// Credit names the source; the legend prints it as CreditLine does.
 	Credit string
 	// NotDrawn, when set, says how many people have no dot and why.
 	NotDrawn string
@@ -44,6 +44,20 @@ func DotNote(perDot float64) string {
 		return "1 dot = 1 person"
 	}
 	return fmt.Sprintf("1 dot = %s people", FormatCount(perDot))
+}
+
+// CreditLine is a map's credit as every output prints it: "Source: "
+// and the credit, unless the credit already starts with a word and a colon
+// of its own ("Source: …", "Data: …", "Sources: …"), which is kept as written.
+func CreditLine(credit string) string {
+	credit = strings.TrimSpace(credit)
+	if credit == "" {
+		return ""
+	}
+	if head, rest, ok := strings.Cut(credit, ":"); ok && head != "" && len(head) <= 24 && !strings.ContainsAny(head, " \t/") && strings.HasPrefix(rest, " ") {
+		return credit
+	}
+	return "Source: " + credit
 }
 
 // Caution is the standard caution printed with every map.
@@ -255,7 +269,7 @@ func legendLayout(l Legend, width int) (items []legendItem, height float64) {
 	lines(wrap(l.Caution, 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
 	y += 6
 	if l.Credit != "" {
-		lines(wrap("Source: "+l.Credit, 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
+		lines(wrap(CreditLine(l.Credit), 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
 	}
 	return items, y + legendPad
 }

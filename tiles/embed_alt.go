@@ -86,8 +86,8 @@ func altOne(m *Metadata) string {
 	if c := strings.TrimSpace(m.Caution); c != "" {
 		fmt.Fprintf(&b, " %s", c)
 	}
-	if c := strings.TrimSpace(m.Credit); c != "" {
-		fmt.Fprintf(&b, " Source: %s", c)
+	if c := render.CreditLine(m.Credit); c != "" {
+		fmt.Fprintf(&b, " %s", c)
 		if !strings.HasSuffix(c, ".") {
 			b.WriteString(".")
 		}

@@ -421,7 +421,7 @@ type legendRow struct {
 }
 
 func pageLayer(i int, key, label string, m *Metadata) legendData {
-	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: m.Credit}
+	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: render.CreditLine(m.Credit)}
 	total := 0.0
 	for _, c := range m.Categories {
 		total += c.People

@@ -62,7 +62,7 @@ func cmdInspect(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return nil
 	}
 	m.Input.File, _ = filepath.Abs(pos[0])
-	in, err := mapjob.LoadInput(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
 	}

@@ -20,6 +20,7 @@ import (
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // printOptions are the flags of "stipple print".
@@ -41,6 +42,7 @@ type printOptions struct {
 	seed        int64
 	perDot      float64
 	workers     int
+	memory      string
 }
 
 func (o *printOptions) register(fs *flag.FlagSet) {
@@ -61,14 +63,7 @@ func (o *printOptions) register(fs *flag.FlagSet) {
 	fs.Int64Var(&o.seed, "seed", -1, "random seed (overrides seed; keep it to match the tiles)")
 	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot (overrides people_per_dot)")
 	fs.IntVar(&o.workers, "workers", 0, "parallel workers for placing dots (default: all cores)")
-}
-
-// printJob is a laid-out page and what went into it.
-type printJob struct {
-	page     *page.Page
-	areas    int       // areas printed
-	people   []float64 // per category, in the areas printed
-	notDrawn float64   // people whose dots could not be placed
+	fs.StringVar(&o.memory, "memory", "", "memory budget when the dots must be placed again, e.g. 2GiB (default 2GiB)")
 }
 
 func cmdPrint(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -106,19 +101,24 @@ func cmdPrint(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return err
 	}
+
 	base := o.out
 	if base == "" {
-		base = filepath.Join(m.Resolve(m.Out), "print")
+		base = filepath.Join(m.Out, "print")
 	}
 	if err := os.MkdirAll(filepath.Dir(base), 0o755); err != nil {
 		return fmt.Errorf("output: %w", err)
 	}
-	p := job.page
+	p := job.Page
 	spec := p.Spec()
 	fmt.Fprintf(stdout, "%s page, %s; %s\n", spec.Size, page.Describe(spec.Projection), render.DotNote(m.PeoplePerDot))
-	fmt.Fprintf(stdout, "  %d dots from %d areas on the page", p.Len(), job.areas)
-	if job.notDrawn > 0 {
-		fmt.Fprintf(stdout, "; not drawn: %s people (no room in their areas)", render.FormatCount(job.notDrawn))
+	if job.Areas > 0 {
+		fmt.Fprintf(stdout, "  %d dots from %d areas on the page", p.Len(), job.Areas)
+	} else {
+		fmt.Fprintf(stdout, "  %d dots inside the frame", p.Len())
+	}
+	if job.NotDrawn > 0 {
+		fmt.Fprintf(stdout, "; not drawn: %s people (no room in their areas)", render.FormatCount(job.NotDrawn))
 	}
 	fmt.Fprintln(stdout)
 	if wantPNG {
@@ -170,9 +170,10 @@ func writeFile(path string, write func(io.Writer) error) (int64, error) {
 	return cw.n, nil
 }
 
-// preparePrint reads the map, places the same seeded dots as the tile run
-// (mapjob.Load and mapjob.Place), and lays out the page.
-func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJob, error) {
+// preparePrint reads the map, takes its dots from the render's store when
+// it holds this map's dots (same sampling fingerprint), else places them
+// under the same memory budget as a render, and lays out the page.
+func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*mapjob.PrintPage, error) {
 	if o.seed >= 0 {
 		m.Seed = uint64(o.seed)
 	}
@@ -202,185 +203,42 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*printJ
 	if o.bbox != "" && o.ids != "" {
 		return nil, usageError{"give --bbox or --ids, not both"}
 	}
-	layer, counts, err := mapjob.Load(m, nil)
-	if err != nil {
-		return nil, err
+	if _, err := page.Projection(o.projection, orb.Bound{Min: orb.Point{0, 0}, Max: orb.Point{1, 1}}); err != nil {
+		return nil, usageError{"--projection: " + err.Error()}
 	}
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-
-	// The extent, and for --ids the only areas printed.
-	var extent orb.Bound
-	var only []int
-	switch {
-	case o.ids != "":
-		only, err = selectIDs(layer, o.ids)
-		if err != nil {
-			return nil, err
+	var memory int64
+	if o.memory != "" {
+		if memory, err = mapjob.ParseSize(o.memory); err != nil {
+			return nil, usageError{"--memory: " + err.Error()}
 		}
-		extent = boundOf(layer, counts, only, false)
-	case o.bbox != "":
-		extent, err = parseBBox(o.bbox)
+	}
+	opt := mapjob.PrintOptions{Size: size, DPI: o.dpi, Margin: margin, Projection: o.projection, DotMM: o.dotMM,
+		Outlines: o.outlines, Title: o.title, Subtitle: o.subtitle}
+	if o.bbox != "" {
+		b, err := parseBBox(o.bbox)
 		if err != nil {
 			return nil, usageError{"--bbox: " + err.Error()}
 		}
-	default:
-		extent = boundOf(layer, counts, nil, true)
+		opt.Frame = &b
 	}
-	if extent.Min[0] > extent.Max[0] {
-		return nil, fmt.Errorf("%s: nothing to print: no area of the extent has both geometry and people", m.Path)
+	if !sink.IsBucketURL(m.Out) {
+		m.Out = m.Resolve(m.Out)
 	}
-	pr, err := page.Projection(o.projection, extent)
-	if err != nil {
-		return nil, usageError{"--projection: " + err.Error()}
-	}
-	nc := len(m.Categories)
-	colors := m.RGBA()
-	spec := page.Spec{
-		Size: size, DPI: o.dpi, Margin: margin,
-		Title: m.Title, Subtitle: o.subtitle,
-		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution, Credit: credit(m.Credit),
-		Projection: pr, Extent: extent, DotMM: o.dotMM, Opacity: m.Dots.Opacity,
-	}
-	if o.title != "" {
-		spec.Title = o.title
-	}
-	for k, c := range m.Categories {
-		spec.Entries = append(spec.Entries, page.Entry{Label: c.Label, Color: colors[k]})
-	}
-	if o.bbox != "" {
-		spec.Footnotes = append(spec.Footnotes, "People: all of each area the map shows in whole or in part; dots: those inside the frame.")
-	}
-	spec.Footnotes = append(spec.Footnotes, notDrawnNote(0))
-	if spec.Subtitle == "" {
-		spec.Subtitle = subtitle(0, 0)
-	}
-	workers := o.workers
-	if workers <= 0 {
-		workers = runtime.NumCPU()
-	}
-	// All areas' dots, exactly as the tile run places them; the page
-	// shows those inside its frame (and, with --ids, inside the listed
-	// areas).
-	store, results, err := mapjob.Place(layer, counts, m, workers)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return nil, err
 	}
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-	var keep func(lon, lat float64) bool
-	if only != nil {
-		keep = mapjob.InsideAny(layer, only)
-	}
-	// Lay out to learn what the frame shows, count the people of the
-	// areas it shows, then lay out again with the counts filled in. The
-	// frame depends on the extent and on how many lines the text takes,
-	// which the counts do not change in practice; should they, the areas
-	// are chosen again for the new frame.
-	var (
-		lay      *page.Layout
-		people   []float64
-		notDrawn float64
-		areas    int
-		used     image.Rectangle
-	)
-	for attempt := 0; ; attempt++ {
-		lay, err = page.NewLayout(spec)
-		if err != nil {
+	if o.ids != "" {
+		if opt.Areas, err = selectIDs(in.Layer, o.ids); err != nil {
 			return nil, err
 		}
-		if attempt > 0 && lay.FramePixels() == used {
-			break
-		}
-		if attempt == 3 {
-			return nil, fmt.Errorf("page: the layout does not settle for %s", spec.Size)
-		}
-		used = lay.FramePixels()
-		sel := only
-		if sel == nil {
-			for i, f := range layer.Features {
-				if len(f.Geometry) > 0 && lay.Shows(f.Geometry.Bound()) {
-					sel = append(sel, i)
-				}
-			}
-		}
-		people = make([]float64, nc)
-		notDrawn = 0
-		var outlines []orb.MultiPolygon
-		for _, i := range sel {
-			for k := range people {
-				people[k] += counts[i][k]
-			}
-			for _, n := range results[i].Lost {
-				notDrawn += float64(n) * m.PeoplePerDot
-			}
-			if o.outlines {
-				outlines = append(outlines, layer.Features[i].Geometry)
-			}
-		}
-		areas = len(sel)
-		total := 0.0
-		for k := range spec.Entries {
-			spec.Entries[k].People = people[k]
-			total += people[k]
-		}
-		if o.subtitle == "" {
-			spec.Subtitle = subtitle(total, areas)
-		}
-		spec.Footnotes[len(spec.Footnotes)-1] = notDrawnNote(notDrawn)
-		if o.outlines {
-			spec.Outlines = outlines
-			if spec.Outlines == nil {
-				spec.Outlines = []orb.MultiPolygon{}
-			}
-		}
 	}
-	p, err := lay.Place(storeDots(store, keep))
+	pl, err := mapjob.PlaceForPrint(ctx, in, m, mapjob.Options{Workers: o.workers, Memory: memory})
 	if err != nil {
 		return nil, err
 	}
-	return &printJob{page: p, areas: areas, people: people, notDrawn: notDrawn}, nil
-}
-
-// credit is the page's source line, worded as the legend words it.
-func credit(c string) string {
-	if c == "" {
-		return ""
-	}
-	return "Source: " + c
-}
-
-func subtitle(people float64, areas int) string {
-	return fmt.Sprintf("%s people in %s areas", render.FormatCount(people), render.FormatCount(float64(areas)))
-}
-
-func notDrawnNote(people float64) string {
-	if people == 0 {
-		return "Not drawn: 0 people; every dot found room in its area."
-	}
-	return fmt.Sprintf("Not drawn: %s people, in areas too small or too thin to hold their dots.", render.FormatCount(people))
-}
-
-// storeDots yields the store's dots at their cells' centres in
-// longitude/latitude: the inverse of Web Mercator (IOGP GN7-2, method
-// 1024: φ = π/2 − 2 atan(e^(−N/R)), λ = E/R) at the centre of each
-// 2^-29 world cell, which is within 4 cm of where the dot was placed.
-// keep, when not nil, picks the dots to show.
-func storeDots(s *dotstore.Store, keep func(lon, lat float64) bool) page.DotSource {
-	return func(yield func(lon, lat float64, cat int) bool) {
-		for _, k := range s.Range(0, math.MaxUint64) {
-			x, y, cat := dotstore.Split(k)
-			lon, lat := dotstore.CellLonLat(x, y)
-			if keep != nil && !keep(lon, lat) {
-				continue
-			}
-			if !yield(lon, lat, cat) {
-				return
-			}
-		}
-	}
+	defer pl.Store.Close()
+	return mapjob.Print(ctx, in, m, pl, opt)
 }
 
 // selectIDs returns the indexes of the features with the given ids.
@@ -409,38 +267,6 @@ func selectIDs(layer *geo.Layer, list string) ([]int, error) {
 		return nil, usageError{"--ids: no ids given"}
 	}
 	return out, nil
-}
-
-// boundOf is the union of the features' bounds (all features when idx is
-// nil); peopleOnly skips areas without people, as the tile run does.
-func boundOf(layer *geo.Layer, counts [][]float64, idx []int, peopleOnly bool) orb.Bound {
-	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
-	add := func(i int) {
-		f := layer.Features[i]
-		if len(f.Geometry) == 0 {
-			return
-		}
-		if peopleOnly {
-			has := false
-			for _, c := range counts[i] {
-				has = has || c > 0
-			}
-			if !has {
-				return
-			}
-		}
-		b = b.Union(f.Geometry.Bound())
-	}
-	if idx == nil {
-		for i := range layer.Features {
-			add(i)
-		}
-	} else {
-		for _, i := range idx {
-			add(i)
-		}
-	}
-	return b
 }
 
 // parseBBox reads west,south,east,north degrees.

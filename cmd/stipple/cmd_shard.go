@@ -178,7 +178,7 @@ type shardedMap struct {
 
 // planShards loads the input and computes the layout for n shards.
 func planShards(m *mapfile.Map, n int, hidpi bool) (*shardedMap, error) {
-	in, err := mapjob.LoadInput(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return nil, err
 	}

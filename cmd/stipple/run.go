@@ -228,7 +228,7 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 }
 
 func renderMap(ctx context.Context, m *mapfile.Map, opt mapjob.Options, stdout io.Writer) error {
-	in, err := mapjob.LoadInput(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
 	}

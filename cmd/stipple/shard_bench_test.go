@@ -47,7 +47,7 @@ func nationalMap(b *testing.B) (string, *mapfile.Map) {
 func BenchmarkShardBalance(b *testing.B) {
 	_, m := nationalMap(b)
 	m.PeoplePerDot = 10
-	in, err := mapjob.LoadInput(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -166,7 +166,7 @@ func BenchmarkShardParts(b *testing.B) {
 	if out, err := gob.CombinedOutput(); err != nil {
 		b.Fatalf("go build: %v\n%s", err, out)
 	}
-	in, err := mapjob.LoadInput(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
