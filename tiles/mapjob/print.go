@@ -260,14 +260,20 @@ func printDots(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, keep 
 				return
 			}
 		}
-		sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks, Streams: Streams(m)}
+		var sopt *sample.Options
+		if len(pl.Outcomes) == 0 {
+			return
+		}
 		for i := range in.Layer.Features {
 			o, ok := pl.Outcomes[i]
 			if !ok || o.Beyond == nil {
 				continue
 			}
+			if sopt == nil {
+				sopt = &sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Masks: in.Masks, Streams: Streams(m)}
+			}
 			stop := false
-			sample.FeatureN(&in.Layer.Features[i], in.Dots[i], sopt, func(cat int, p orb.Point) {
+			sample.FeatureN(&in.Layer.Features[i], in.Dots[i], *sopt, func(cat int, p orb.Point) {
 				if stop || math.Abs(p[1]) <= proj.WebMercatorMaxLat || (keep != nil && !keep(p[0], p[1])) {
 					return
 				}

@@ -1,0 +1,372 @@
+package mapjob
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"image/png"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/planar"
+	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/proj"
+	"github.com/stipple-maps/stipple/render/page"
+	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/mapfile"
+)
+
+// smallWithMask copies testdata/small (three invented areas, one of them,
+// "010", with null geometry) into a folder of its own with a mask, so a
+// test can edit the mask in place.
+func smallWithMask(t *testing.T) *mapfile.Map {
+	t.Helper()
+	dir := t.TempDir()
+	for _, f := range []string{"areas.geojson", "water.geojson"} {
+		b, err := os.ReadFile(filepath.Join("../../testdata/small", f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(dir, f), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	src, err := os.ReadFile("../../testdata/small/map.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(src), `id = "code"`, "id = \"code\"\nmask = [\"water.geojson\"]", 1)
+	if err := os.WriteFile(filepath.Join(dir, "map.toml"), []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	m, err := mapfile.Read(filepath.Join(dir, "map.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Out = filepath.Join(dir, "out")
+	return m
+}
+
+// published reads the files a render publishes (everything but the state
+// folder) into a map of slash path → bytes.
+func published(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	return files(t, dir, func(rel string) bool { return strings.HasPrefix(filepath.ToSlash(rel), tiles.StateDir+"/") })
+}
+
+// TestRenderPathsAgree renders one map (null-geometry area, a mask, two
+// categories) into a folder and through a file:// URL: every published
+// file is the same, the not-drawn report names the area without geometry,
+// and a print page from the render's store draws the same dots as one
+// placed anew.
+func TestRenderPathsAgree(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	folder := m.Out
+	a, err := Run(ctx, m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.NotDrawn != 0 || len(a.Problems) != 0 {
+		// "010" has no geometry and no people in testdata/small.
+		t.Logf("not drawn %v: %q", a.NotDrawn, a.Problems)
+	}
+	m2 := *m
+	m2.Out = "file://" + filepath.ToSlash(filepath.Join(t.TempDir(), "viaurl"))
+	b, err := Run(ctx, &m2, Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameFiles(t, published(t, folder), published(t, strings.TrimPrefix(m2.Out, "file://")))
+	for k := range a.People {
+		if a.People[k] != b.People[k] || a.Dots[k] != b.Dots[k] {
+			t.Errorf("category %d: folder %v people %d dots; file:// %v people %d dots", k, a.People[k], a.Dots[k], b.People[k], b.Dots[k])
+		}
+	}
+	for _, f := range []string{"legend.png", "legend@2x.png", "legend.svg", "alt.txt", "map.json", "index.html", "embed.html"} {
+		if _, err := os.Stat(filepath.Join(folder, f)); err != nil {
+			t.Errorf("render wrote no %s", f)
+		}
+	}
+
+	// Print: dots from the render's store, and dots placed anew, give the
+	// same page; its legend counts all the map's people.
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	stored, err := PlaceForPrint(ctx, in, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer stored.Store.Close()
+	if !stored.Reused {
+		t.Fatal("print did not read the render's store")
+	}
+	fresh, err := Place(ctx, in, m, PlaceOptions{Workers: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	size, _ := page.ParseSize("A5")
+	opt := PrintOptions{Size: size, DPI: 100, Margin: 10, Projection: "auto", DotMM: 0.4}
+	p1, err := Print(ctx, in, m, stored, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p2, err := Print(ctx, in, m, fresh, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var png1, png2 bytes.Buffer
+	if err := p1.Page.WritePNG(&png1); err != nil {
+		t.Fatal(err)
+	}
+	if err := p2.Page.WritePNG(&png2); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(png1.Bytes(), png2.Bytes()) {
+		t.Error("print from the render's store differs from print with dots placed anew")
+	}
+	for k := range a.People {
+		if p1.People[k] != a.People[k] || p1.Dots[k] != a.Dots[k] {
+			t.Errorf("category %d: print %v people %d dots; render %v people %d dots", k, p1.People[k], p1.Dots[k], a.People[k], a.Dots[k])
+		}
+	}
+	if p1.Page.Len() != sum(a.Dots) {
+		t.Errorf("print page holds %d dots; the render drew %d", p1.Page.Len(), sum(a.Dots))
+	}
+}
+
+// TestNullGeometryPeopleAreNotDrawnOnEveryPath gives the area without
+// geometry people: the render and the tally both count them as not drawn
+// and name the area.
+func TestNullGeometryPeopleAreNotDrawnOnEveryPath(t *testing.T) {
+	m := smallWithMask(t)
+	dir := filepath.Dir(m.Path)
+	b, _ := os.ReadFile(filepath.Join(dir, "areas.geojson"))
+	var fc map[string]any
+	if err := json.Unmarshal(b, &fc); err != nil {
+		t.Fatal(err)
+	}
+	feats := fc["features"].([]any)
+	found := false
+	for _, f := range feats {
+		props := f.(map[string]any)["properties"].(map[string]any)
+		if props["code"] == "010" {
+			props["north"] = 25
+			found = true
+		}
+	}
+	if !found {
+		t.Fatal("testdata/small has no area 010")
+	}
+	b, _ = json.Marshal(fc)
+	os.WriteFile(filepath.Join(dir, "areas.geojson"), b, 0o644)
+	s, err := Run(context.Background(), m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.NotDrawn != 25 || len(s.Problems) != 1 || !strings.Contains(s.Problems[0], `"010"`) {
+		t.Errorf("not drawn %v, problems %q; want 25 people in area 010", s.NotDrawn, s.Problems)
+	}
+	if s.Metadata.NotDrawn.People != 25 {
+		t.Errorf("map.json not drawn %v; want 25", s.Metadata.NotDrawn.People)
+	}
+}
+
+// TestMaskEditedInPlaceReplacesDots edits the mask file without renaming
+// it: the next render places the dots again, and none lies in the new pond.
+func TestMaskEditedInPlaceReplacesDots(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	if _, err := Run(ctx, m, Options{Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	// Move the pond from the east half of area 007 to its west half.
+	pond := `{"type": "FeatureCollection", "features": [{"type": "Feature", "properties": {},
+ "geometry": {"type": "Polygon", "coordinates": [[[-140.02, -30.02], [-140.01, -30.02], [-140.01, -30.0], [-140.02, -30.0], [-140.02, -30.02]]]}}]}`
+	if err := os.WriteFile(filepath.Join(filepath.Dir(m.Path), "water.geojson"), []byte(pond), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, err := Run(ctx, m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.StoreReused {
+		t.Fatal("an in-place mask edit reused the old dots")
+	}
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pl, err := PlaceForPrint(ctx, in, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer pl.Store.Close()
+	west := 0
+	for lon, lat := range cellCentres(pl) {
+		if lon > -140.02+1e-6 && lon < -140.01-1e-6 && lat > -30.02+1e-6 && lat < -30.0-1e-6 {
+			west++
+		}
+	}
+	if west != 0 {
+		t.Errorf("%d dots in the moved pond", west)
+	}
+}
+
+// cellCentres yields the store's dots at their cells' centres.
+func cellCentres(pl *Placed) func(yield func(lon, lat float64) bool) {
+	return func(yield func(lon, lat float64) bool) {
+		printDots(context.Background(), nil, nil, &Placed{Store: pl.Store}, nil)(func(lon, lat float64, _ int) bool {
+			return yield(lon, lat)
+		})
+	}
+}
+
+// TestPolarDotsAreReportedNotClamped: an invented area reaching the south
+// pole. Web Mercator ends at ±85.0511287798° (IOGP Guidance Note 7-2,
+// method 1024: the square world's edge, φ = 2·atan(e^π) − π/2); dots south
+// of it are counted as beyond the tiles' limit, never drawn on the
+// pyramid's bottom row, and a print page draws them all.
+func TestPolarDotsAreReportedNotClamped(t *testing.T) {
+	ctx := context.Background()
+	if got := 2*math.Atan(math.Exp(math.Pi))*180/math.Pi - 90; math.Abs(got-proj.WebMercatorMaxLat) > 1e-9 {
+		t.Fatalf("latitude limit %v; GN7-2 gives %v", proj.WebMercatorMaxLat, got)
+	}
+	dir := t.TempDir()
+	layer := &geo.Layer{Path: "polar.geojson", Features: []geo.Feature{{
+		Index: 0, ID: "cap",
+		Geometry: orb.MultiPolygon{{{{-30, -90}, {30, -90}, {30, -80}, {-30, -80}, {-30, -90}}}},
+		Props:    map[string]any{"people": 20000.0},
+	}}}
+	m := &mapfile.Map{Path: filepath.Join(dir, "map.toml"), Title: "Invented polar cap", PeoplePerDot: 10, Seed: 1, Out: filepath.Join(dir, "out"),
+		Input: mapfile.Input{ID: "id"}, Tiles: mapfile.Tiles{MinZoom: 0, MaxZoom: 3, Size: 256},
+		Dots:       mapfile.Dots{Diameter: 2, MinDiameter: 0.6, Opacity: 0.9},
+		Categories: []mapfile.Category{{Key: "p", Label: "People", Color: "#0072B2", Fields: []string{"people"}}}}
+	s, err := Run(ctx, m, Options{Layer: layer, Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Share of the cap's area south of the limit, on the sphere: area
+	// between latitudes is proportional to the difference of their sines
+	// (Snyder 1987, "Map Projections — A Working Manual", USGS PP 1395,
+	// eq. 3-12 with the authalic sphere).
+	share := (math.Sin(-proj.WebMercatorMaxLat*math.Pi/180) - math.Sin(-math.Pi/2)) / (math.Sin(-80*math.Pi/180) - math.Sin(-math.Pi/2))
+	beyond := s.Beyond[0]
+	want := share * 2000
+	if sd := math.Sqrt(2000 * share * (1 - share)); math.Abs(float64(beyond)-want) > 4*sd {
+		t.Errorf("%d dots beyond the limit; want %.0f ± %.0f", beyond, want, 4*sd)
+	}
+	if s.Dots[0]+beyond != 2000 || s.BeyondPeople != float64(beyond)*10 {
+		t.Errorf("drawn %d + beyond %d (people %v); want 2000 dots in all", s.Dots[0], beyond, s.BeyondPeople)
+	}
+	if s.Metadata.NotDrawn.BeyondTileLimit != float64(beyond)*10 || s.Metadata.Categories[0].DotsBeyond != beyond {
+		t.Errorf("map.json: %+v, category %+v", s.Metadata.NotDrawn, s.Metadata.Categories[0])
+	}
+	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
+	if !strings.Contains(string(alt), "latitude limit") {
+		t.Errorf("alt.txt says nothing of the people beyond the latitude limit: %s", alt)
+	}
+	// Bottom row of the zoom-3 tiles under the cap: no more ink than the
+	// rows above it (a clamped line of dots would be solid there).
+	for _, name := range []string{"3/3/7.png", "3/4/7.png"} {
+		f, err := os.Open(filepath.Join(m.Out, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		img, err := png.Decode(f)
+		f.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		ink := func(y int) int {
+			n := 0
+			for x := 0; x < 256; x++ {
+				if _, _, _, a := img.At(x, y).RGBA(); a > 0 {
+					n++
+				}
+			}
+			return n
+		}
+		last, above := ink(255), 0
+		for y := 245; y < 255; y++ {
+			above = max(above, ink(y))
+		}
+		if last > above {
+			t.Errorf("%s: bottom row holds %d inked pixels, the ten rows above at most %d: dots clamped onto the edge", name, last, above)
+		}
+	}
+	// A print page holds every dot, beyond the limit included.
+	in, err := Load(m, layer)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pl, err := PlaceForPrint(ctx, in, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer pl.Store.Close()
+	size, _ := page.ParseSize("A5")
+	p, err := Print(ctx, in, m, pl, PrintOptions{Size: size, DPI: 72, Margin: 10, Projection: "auto", DotMM: 0.4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Page.Len() != 2000 || p.Dots[0] != 2000 {
+		t.Errorf("print page holds %d dots (legend %d); want all 2000", p.Page.Len(), p.Dots[0])
+	}
+	south := 0
+	printDots(ctx, in, m, pl, nil)(func(lon, lat float64, _ int) bool {
+		if lat < -proj.WebMercatorMaxLat {
+			south++
+		}
+		if !planar.MultiPolygonContains(layer.Features[0].Geometry, orb.Point{lon, lat}) && lat > -89.999 {
+			t.Errorf("dot at %v, %v outside the cap", lon, lat)
+			return false
+		}
+		return true
+	})
+	if south != beyond {
+		t.Errorf("print draws %d dots south of the limit; the render counted %d", south, beyond)
+	}
+}
+
+// TestPrintFrameCountsWhatItShows: with a frame (--bbox), the legend's
+// people are the frame's dots times the people per dot, and the page
+// holds exactly those dots.
+func TestPrintFrameCountsWhatItShows(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pl, err := Place(ctx, in, m, PlaceOptions{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	frame := orb.Bound{Min: orb.Point{-140.005, -30.02}, Max: orb.Point{-139.99, -30.005}}
+	size, _ := page.ParseSize("A5")
+	p, err := Print(ctx, in, m, pl, PrintOptions{Size: size, DPI: 100, Margin: 10, Projection: "auto", DotMM: 0.4, Frame: &frame})
+	if err != nil {
+		t.Fatal(err)
+	}
+	inside := 0
+	printDots(ctx, in, m, pl, nil)(func(lon, lat float64, _ int) bool {
+		if frame.Contains(orb.Point{lon, lat}) {
+			inside++
+		}
+		return true
+	})
+	people := 0.0
+	for _, v := range p.People {
+		people += v
+	}
+	if inside == 0 || p.Page.Len() != inside || sum(p.Dots) != inside || people != float64(inside)*m.PeoplePerDot {
+		t.Errorf("frame holds %d dots; page %d, legend dots %v, people %v (want %v)", inside, p.Page.Len(), p.Dots, people, float64(inside)*m.PeoplePerDot)
+	}
+}
