@@ -5,6 +5,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -147,19 +148,35 @@ func Over(c color.NRGBA, alpha float64, g color.NRGBA) color.NRGBA {
 // FormatCount writes a count with thin grouping: 1234567 → "1,234,567";
 // fractions keep up to two decimals.
 func FormatCount(v float64) string {
-	whole := int64(v)
-	frac := v - float64(whole)
-	s := fmt.Sprint(whole)
+	switch {
+	case math.IsNaN(v):
+		return "NaN"
+	case math.IsInf(v, 1):
+		return "∞"
+	case math.IsInf(v, -1):
+		return "−∞"
+	}
+	sign := ""
+	if v < 0 {
+		sign, v = "-", -v
+	}
+	// Round to hundredths first, so 0.999 becomes 1, not "0" and ".1".
+	cents := math.Round(v * 100)
+	if cents >= 1<<62 {
+		return sign + strconv.FormatFloat(v, 'g', 6, 64)
+	}
+	whole, frac := int64(cents)/100, int64(cents)%100
+	s := strconv.FormatInt(whole, 10)
 	var b strings.Builder
+	b.WriteString(sign)
 	for i, r := range s {
 		if i > 0 && (len(s)-i)%3 == 0 {
 			b.WriteByte(',')
 		}
 		b.WriteRune(r)
 	}
-	if frac > 0.005 {
-		f := fmt.Sprintf("%.2f", frac)
-		b.WriteString(strings.TrimRight(strings.TrimPrefix(f, "0"), "0"))
+	if frac > 0 {
+		b.WriteString(strings.TrimRight(fmt.Sprintf(".%02d", frac), "0"))
 	}
 	return b.String()
 }

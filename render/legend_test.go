@@ -169,3 +169,40 @@ func ExampleContrast() {
 	fmt.Printf("%.3f\n", Contrast(grey, color.NRGBA{255, 255, 255, 255}))
 	// Output: 4.542
 }
+
+// TestFormatCount: thousands separated by commas, at most two decimals
+// rounded half away from zero (common practice for counts in prose); a
+// fraction that rounds to a whole carries into it (94,299,999.999 is
+// 94,300,000, not "94,299,9991.").
+func TestFormatCount(t *testing.T) {
+	for _, c := range []struct {
+		in   float64
+		want string
+	}{
+		{0, "0"}, {7, "7"}, {999, "999"}, {1000, "1,000"}, {1234567, "1,234,567"},
+		{2.5, "2.5"}, {0.25, "0.25"}, {12.999, "13"}, {94299999.999, "94,300,000"}, {1e15, "1,000,000,000,000,000"},
+		{-123, "-123"}, {-1234.5, "-1,234.5"}, {math.Inf(1), "∞"}, {math.NaN(), "NaN"},
+	} {
+		if got := FormatCount(c.in); got != c.want {
+			t.Errorf("FormatCount(%v) = %q; want %q", c.in, got, c.want)
+		}
+	}
+}
+
+// TestCreditLine: every output prints one "Source: " prefix, never two
+// (a map file's credit often starts with its own).
+func TestCreditLine(t *testing.T) {
+	for in, want := range map[string]string{
+		"":                                   "",
+		"Statistics office, table X (2020)":  "Source: Statistics office, table X (2020)",
+		"Source: statistics office, table X": "Source: statistics office, table X",
+		"Sources: two offices":               "Sources: two offices",
+		"Data: an invented survey":           "Data: an invented survey",
+		"https://example.org/table":          "Source: https://example.org/table",
+		"Table 3: counts by district":        "Source: Table 3: counts by district",
+	} {
+		if got := CreditLine(in); got != want {
+			t.Errorf("CreditLine(%q) = %q; want %q", in, got, want)
+		}
+	}
+}
