@@ -175,3 +175,15 @@ func WriteFileAtomic(path string, data []byte) error {
 	}
 	return nil
 }
+
+// Resumable reports whether a Write into state folder dir with fingerprint
+// fp would keep the tiles an earlier run left (the same fingerprint);
+// false means those tiles are about to be replaced.
+func Resumable(dir, fp string) bool {
+	data, err := os.ReadFile(manifestPath(dir))
+	if err != nil {
+		return false
+	}
+	var old manifest
+	return json.Unmarshal(data, &old) == nil && old.Fingerprint == fp && fp != ""
+}

@@ -147,23 +147,31 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 		}
 	}
 
-	tmpl, err := template.ParseFS(viewerFiles, "viewer/page.html")
-	if err != nil {
-		return fmt.Errorf("tiles: viewer template: %w", err)
+	// Index scripts of zooms this viewer no longer lists (a rerun with
+	// fewer zooms) are removed, so the folder describes only its tiles.
+	want := map[string]bool{}
+	for _, s := range sets {
+		for z := range s.index {
+			want[fmt.Sprintf("%s/%d-%d.js", IndexDir, s.id, z)] = true
+		}
 	}
-	for _, p := range []struct {
-		name  string
-		embed bool
-	}{{ViewerPage, false}, {EmbedPage, true}} {
-		pages.Embed = p.embed
-		var buf bytes.Buffer
-		if err := tmpl.Execute(&buf, pages); err != nil {
+	var stale []string
+	if err := out.List(ctx, IndexDir+"/", func(p string, _ int64) error {
+		if !want[p] {
+			stale = append(stale, p)
+		}
+		return nil
+	}); err != nil {
+		return fmt.Errorf("tiles: viewer: %w", err)
+	}
+	for _, p := range stale {
+		if err := out.Delete(ctx, p); err != nil {
 			return fmt.Errorf("tiles: viewer: %w", err)
 		}
-		if err := sink.PutFile(ctx, out, p.name, buf.Bytes()); err != nil {
-			return err
-		}
 	}
+	// The scripts, styles and data first; the pages, which are the entry
+	// points a reader opens, last, so a folder being published never
+	// offers a page whose files are not there yet.
 	for _, name := range []string{viewerJS, viewerCSS} {
 		b, err := viewerFiles.ReadFile("viewer/" + name)
 		if err != nil {
@@ -184,7 +192,27 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 	for i, l := range layers {
 		metas[i] = l.Meta
 	}
-	return sink.PutFile(ctx, out, AltFile, []byte(AltText(metas...)))
+	if err := sink.PutFile(ctx, out, AltFile, []byte(AltText(metas...))); err != nil {
+		return err
+	}
+	tmpl, err := template.ParseFS(viewerFiles, "viewer/page.html")
+	if err != nil {
+		return fmt.Errorf("tiles: viewer template: %w", err)
+	}
+	for _, p := range []struct {
+		name  string
+		embed bool
+	}{{EmbedPage, true}, {ViewerPage, false}} {
+		pages.Embed = p.embed
+		var buf bytes.Buffer
+		if err := tmpl.Execute(&buf, pages); err != nil {
+			return fmt.Errorf("tiles: viewer: %w", err)
+		}
+		if err := sink.PutFile(ctx, out, p.name, buf.Bytes()); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // viewerData is map-data.js: numbers, keys and paths only. Everything the

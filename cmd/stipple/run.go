@@ -109,6 +109,7 @@ type overrides struct {
 	workers                    int
 	memory                     string
 	hidpi                      bool
+	force                      bool
 }
 
 func (o *overrides) register(fs *flag.FlagSet) {
@@ -120,12 +121,13 @@ func (o *overrides) register(fs *flag.FlagSet) {
 	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 (overrides tiles.size)")
 	fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
 	fs.StringVar(&o.memory, "memory", "", "memory budget, e.g. 2GiB (default 2GiB): dots beyond it are spilled to disk, sorted, and merged")
+	fs.BoolVar(&o.force, "force", false, "write into a folder that holds files stipple did not write")
 	fs.BoolVar(&o.hidpi, "hidpi", false, "also write {z}/{x}/{y}@2x.png tiles for high-density screens (overrides tiles.hidpi)")
 }
 
 // runOptions are the build options the flags and the map file give.
 func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (mapjob.Options, error) {
-	opt := mapjob.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI}
+	opt := mapjob.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI, Force: o.force}
 	if o.memory != "" {
 		n, err := mapjob.ParseSize(o.memory)
 		if err != nil || n <= 0 {
@@ -314,6 +316,13 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if len(pos) == 1 {
 		dir = pos[0]
 	}
+	// The demo's folder is the map's output: claim it before writing the
+	// source into it, so a folder of someone else's files is refused.
+	release, err := mapjob.Claim(dir, o.force)
+	if err != nil {
+		return err
+	}
+	release()
 	m, err := WriteDemoSource(dir)
 	if err != nil {
 		return err

@@ -55,6 +55,8 @@ type Options struct {
 	// manifest) when the output is a bucket; "" picks one in the system's
 	// temporary folder. A local output keeps its state in OUT/.stipple.
 	Work string
+	// Force writes into a folder that holds files stipple did not write.
+	Force bool
 	// ProgressEvery is the interval of progress lines when Log is not a
 	// terminal; 0 means 10 s, a negative value turns them off.
 	ProgressEvery time.Duration
@@ -157,6 +159,12 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	}
 	defer out.Close()
 	state := StateDir(m.Out, opt.Work)
+	_, local := out.(*sink.Dir)
+	release, err := Claim(filepath.Dir(state), opt.Force || !local)
+	if err != nil {
+		return nil, err
+	}
+	defer release()
 	prog := newProgress(opt.Log, opt.ProgressEvery)
 	defer prog.stop()
 
@@ -185,16 +193,30 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	}
 
 	hidpi := opt.HiDPI || m.Tiles.HiDPI
+	lookFP := LookFingerprint(in, m, hidpi)
+	unpublished := false
+	if !tiles.Resumable(filepath.Dir(state), lookFP) {
+		// Old tiles are about to be replaced: take the old map's entry
+		// points down first, so the folder never offers the old map over
+		// a mix of old and new tiles.
+		if err := Unpublish(ctx, out); err != nil {
+			return nil, err
+		}
+		unpublished = true
+	}
 	tileStart := time.Now()
 	prog.startTiles()
 	st, err := tiles.Write(ctx, pl.Store, tiles.Options{
 		Dir: filepath.Dir(state), Out: out, MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 		Colors: m.RGBA(), Look: Look(m), Workers: opt.Workers, HiDPI: hidpi,
-		Fingerprint: LookFingerprint(in, m, hidpi),
+		Fingerprint: lookFP,
 		Progress:    prog.tile,
 	})
 	prog.endPhase()
 	if err != nil {
+		if unpublished {
+			return nil, fmt.Errorf("%w (%s holds no published map until a rerun finishes)", err, out)
+		}
 		return nil, err
 	}
 	sum.Tiles = st
@@ -214,6 +236,20 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	logf("done: %d dots, %d tiles, %.1f MB in %s; peak memory %.0f MB", pl.Store.Len(), st.Tiles+st.Tiles2x,
 		float64(st.Bytes)/1e6, sum.Elapsed.Round(time.Millisecond), float64(sum.PeakRSS)/(1<<20))
 	return sum, nil
+}
+
+// EntryPoints are the files a reader or a script opens first: a folder
+// offers a map only while they are there, and they are written last.
+var EntryPoints = []string{tiles.ViewerPage, tiles.EmbedPage, tiles.MetadataFile}
+
+// Unpublish removes a map's entry points from out.
+func Unpublish(ctx context.Context, out sink.Sink) error {
+	for _, p := range EntryPoints {
+		if err := out.Delete(ctx, p); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // TotalDots is the number of dots the input's areas get.
