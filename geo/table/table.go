@@ -7,11 +7,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // DefaultMaxRows caps the data rows read when Options.MaxRows is 0.
@@ -250,9 +251,10 @@ func IsPlaceholder(cell string) bool {
 }
 
 // Number parses the cell of a record (0-based record index) in the named
-// column as a count: a non-negative decimal number such as "12", "0.5" or
-// "1.5e3", white space around it ignored. Thousands separators ("1,234"),
-// signs other than a leading "+", hexadecimal, NaN and infinities are
+// column as a count: a non-negative number in the syntax of
+// geo.ParseDecimal (the one rule for counts in every format), such as "12",
+// "0.5" or "1.5e3", white space around it ignored. Thousands separators
+// ("1,234"), hexadecimal, digit separators, NaN and infinities are
 // rejected. A placeholder (see IsPlaceholder) is an error unless
 // Options.NullAsZero is set, when it reads as 0. Errors name the file, the
 // line and the column.
@@ -278,32 +280,17 @@ func (t *Table) number(row, c int) (v float64, zeroed bool, err error) {
 		if t.Options.NullAsZero {
 			return 0, true, nil
 		}
-		return fail("%q is not a number (a placeholder for no value: set NullAsZero to count it as 0)", cell)
-	}
-	switch strings.ToLower(strings.TrimLeft(cell, "+-")) {
-	case "nan", "inf", "infinity":
-		return fail("%q is not a finite number", cell)
+		return fail("%q is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)", cell)
 	}
 	if strings.Contains(cell, ",") && strings.Trim(cell, "0123456789,.") == "" {
 		return fail("%q: commas are not accepted in numbers (thousands separator or decimal comma); write digits with an optional \".\" decimal point", cell)
 	}
-	for _, r := range cell {
-		if !strings.ContainsRune("0123456789.eE+-", r) {
-			return fail("%q is not a number", cell)
-		}
-	}
-	if strings.HasPrefix(cell, "-") {
-		return fail("%q is negative; counts must be 0 or more", cell)
-	}
-	v, err = strconv.ParseFloat(cell, 64)
+	v, err = geo.ParseDecimal(cell)
 	if err != nil {
-		if errors.Is(err, strconv.ErrRange) {
-			if math.IsInf(v, 0) {
-				return fail("%q is too large for a number", cell)
-			}
-			return v, false, nil // underflow: a positive number below 1e-308 reads as 0
-		}
-		return fail("%q is not a number", cell)
+		return fail("%v", err)
+	}
+	if v < 0 {
+		return fail("%q is negative; counts must be 0 or more", cell)
 	}
 	return v, false, nil
 }

@@ -76,7 +76,7 @@ func TestRead(t *testing.T) {
 		t.Errorf("Number(0, pop_a) = %v, %v", v, err)
 	}
 	_, err = tb.Number(1, "pop_b")
-	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`
+	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`
 	if err == nil || err.Error() != want {
 		t.Errorf("got %v\nwant %s", err, want)
 	}
@@ -144,8 +144,8 @@ func TestNumber(t *testing.T) {
 		{"12 people", 0, `"12 people" is not a number`},
 		{"1.2.3", 0, `"1.2.3" is not a number`},
 		{"e5", 0, `"e5" is not a number`},
-		{"(X)", 0, `"(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`},
-		{"", 0, `"" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`},
+		{"(X)", 0, `"(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`},
+		{"", 0, `"" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`},
 	} {
 		tb := &Table{Path: "t.csv", Header: []string{"k", "n"}, Records: [][]string{{"a", tc.cell}}, Lines: []int{2},
 			cols: map[string]int{"k": 0, "n": 1}}
@@ -180,7 +180,7 @@ func TestJoin(t *testing.T) {
 	}
 	layer := testLayer()
 	_, err = Join(layer, "code", tb, []string{"pop_a", "pop_b"})
-	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`
+	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`
 	if err == nil || err.Error() != want {
 		t.Fatalf("got %v\nwant %s", err, want)
 	}
@@ -347,7 +347,7 @@ func TestBadInputs(t *testing.T) {
 		{"huge.csv", `table: ../../testdata/bad/table/huge.csv: line 2: column "pop": "1e400" is too large for a number`, true},
 		{"thousands.csv", `table: ../../testdata/bad/table/thousands.csv: line 2: column "pop": "1,234": commas are not accepted in numbers (thousands separator or decimal comma); write digits with an optional "." decimal point`, true},
 		{"hex.csv", `table: ../../testdata/bad/table/hex.csv: line 2: column "pop": "0x1p4" is not a number`, true},
-		{"placeholder.csv", `table: ../../testdata/bad/table/placeholder.csv: line 3: column "pop": "N" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`, false},
+		{"placeholder.csv", `table: ../../testdata/bad/table/placeholder.csv: line 3: column "pop": "N" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`, false},
 	} {
 		tb, err := Read(filepath.Join(dir, tc.file), Options{Key: "geoid", NullAsZero: tc.nullZero})
 		if err == nil {
