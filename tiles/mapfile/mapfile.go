@@ -9,8 +9,10 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"github.com/BurntSushi/toml"
+	"github.com/stipple-maps/stipple/geo/table"
 )
 
 // Map is one map file.
@@ -66,6 +68,36 @@ type Table struct {
 	// NullAsZero reads "-", "(X)", "N", "null", empty … as 0 and reports
 	// how many cells it zeroed; without it they are errors.
 	NullAsZero bool `toml:"null_as_zero"`
+	// Delimiter separates the fields: "," (default), ";", "tab" or "\t",
+	// or another single character.
+	Delimiter string `toml:"delimiter"`
+	// PadZeros left-pads keys made of digits to PadZeros digits, on both
+	// sides, for a table that lost its leading zeros.
+	PadZeros int `toml:"pad_zeros"`
+}
+
+// Options returns the table reader's options for t.
+func (t *Table) Options() table.Options {
+	return table.Options{
+		Key: t.Key, SkipRows: t.SkipRows, Trim: t.Trim, StripPrefix: t.StripPrefix,
+		KeepLast: t.KeepLast, NullAsZero: t.NullAsZero, Delimiter: t.delimiter(), PadZeros: t.PadZeros,
+	}
+}
+
+// delimiter reads Delimiter as a rune: 0 for the default comma, -1 when it
+// is not one character.
+func (t *Table) delimiter() rune {
+	switch t.Delimiter {
+	case "":
+		return 0
+	case "tab", "\t", `\t`:
+		return '\t'
+	}
+	r := []rune(t.Delimiter)
+	if len(r) != 1 {
+		return -1
+	}
+	return r[0]
 }
 
 // Tiles sets the pyramid.
@@ -206,8 +238,22 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 		if m.Input.ID == "" {
 			return errAt("missing: with a table, input.id names the areas' field matched to the table key", "input", "id")
 		}
-		if t.SkipRows < 0 || t.KeepLast < 0 {
-			return errAt("skip_rows and keep_last cannot be negative", "input", "table")
+		for _, n := range []struct {
+			key string
+			v   int
+		}{{"skip_rows", t.SkipRows}, {"keep_last", t.KeepLast}, {"pad_zeros", t.PadZeros}} {
+			if n.v < 0 {
+				return errAt(fmt.Sprintf("is %d; want a whole number from 0 up", n.v), "input", "table", n.key)
+			}
+		}
+		if t.PadZeros > 64 {
+			return errAt(fmt.Sprintf("is %d; want at most 64 digits", t.PadZeros), "input", "table", "pad_zeros")
+		}
+		switch d := t.delimiter(); {
+		case d == -1:
+			return errAt(fmt.Sprintf("%q; want one character such as \",\" or \";\", or \"tab\"", t.Delimiter), "input", "table", "delimiter")
+		case d == '"' || d == '\n' || d == '\r' || d == unicode.ReplacementChar:
+			return errAt(fmt.Sprintf("%q cannot separate fields; want one character such as \",\" or \";\", or \"tab\"", t.Delimiter), "input", "table", "delimiter")
 		}
 	}
 	switch m.Rounding {

@@ -140,3 +140,43 @@ deep.er = 1
 		t.Errorf("Find = %q, %d", name, line)
 	}
 }
+
+func TestTableKeys(t *testing.T) {
+	head := "[input]\nfile = \"a.geojson\"\nid = \"code\"\n\n[input.table]\nfile = \"c.csv\"\nkey = \"area\"\n"
+	cat := "\n[[category]]\nkey = \"a\"\nlabel = \"A\"\ncolor = \"#0072B2\"\nfields = [\"x\"]\n"
+	for _, c := range []struct {
+		keys  string
+		delim rune
+		pad   int
+	}{
+		{"", 0, 0},
+		{"delimiter = \";\"\npad_zeros = 5\n", ';', 5},
+		{"delimiter = \"tab\"\n", '\t', 0},
+		{"delimiter = \"\\t\"\n", '\t', 0},
+		{"delimiter = '\\t'\n", '\t', 0},
+		{"delimiter = \"|\"\n", '|', 0},
+	} {
+		m, err := Parse("m.toml", []byte(head+c.keys+cat))
+		if err != nil {
+			t.Errorf("%q: %v", c.keys, err)
+			continue
+		}
+		o := m.Input.Table.Options()
+		if o.Delimiter != c.delim || o.PadZeros != c.pad || o.Key != "area" {
+			t.Errorf("%q: options %+v; want delimiter %q, pad_zeros %d", c.keys, o, c.delim, c.pad)
+		}
+	}
+	for _, c := range []struct{ keys, want string }{
+		{"delimiter = \";;\"\n", `m.toml:8: key input.table.delimiter: ";;"; want one character such as "," or ";", or "tab"`},
+		{"delimiter = '\"'\n", `m.toml:8: key input.table.delimiter: "\"" cannot separate fields; want one character such as "," or ";", or "tab"`},
+		{"pad_zeros = -1\n", `m.toml:8: key input.table.pad_zeros: is -1; want a whole number from 0 up`},
+		{"pad_zeros = 100\n", `m.toml:8: key input.table.pad_zeros: is 100; want at most 64 digits`},
+		{"skip_rows = -2\n", `m.toml:8: key input.table.skip_rows: is -2; want a whole number from 0 up`},
+		{"pad_zero = 5\n", `m.toml:8: key input.table.pad_zero: unknown key`},
+	} {
+		_, err := Parse("m.toml", []byte(head+c.keys+cat))
+		if err == nil || err.Error() != c.want {
+			t.Errorf("%q: error\n  %v\nwant\n  %s", c.keys, err, c.want)
+		}
+	}
+}
