@@ -32,7 +32,8 @@ func Text(v any) string {
 }
 
 // Number reads one attribute value as a count of people: a non-negative,
-// finite number, given as a number or as numeric text ("1200", " 12.5 ").
+// finite number, given as a number or as text in the syntax of
+// ParseDecimal, white space around it ignored ("1200", " 12.5 ", "1.2e3").
 func Number(v any) (float64, error) {
 	var f float64
 	switch x := v.(type) {
@@ -45,10 +46,9 @@ func Number(v any) (float64, error) {
 	case float64:
 		f = x
 	case string:
-		s := strings.TrimSpace(x)
-		p, err := strconv.ParseFloat(s, 64)
+		p, err := ParseDecimal(strings.TrimSpace(x))
 		if err != nil {
-			return 0, fmt.Errorf("value %q is not a number", x)
+			return 0, fmt.Errorf("value %v", err)
 		}
 		f = p
 	case bool:

@@ -23,7 +23,14 @@ func TestNumber(t *testing.T) {
 		{int64(-3), 0, "value -3 is negative; counts of people cannot be"},
 		{"-1", 0, "value -1 is negative; counts of people cannot be"},
 		{math.Inf(1), 0, "value +Inf is not finite"},
-		{"NaN", 0, "value NaN is not finite"},
+		{"NaN", 0, `value "NaN" is not a finite number`},
+		{math.NaN(), 0, "value NaN is not finite"},
+		// strconv.ParseFloat reads these three as 16, 1000 and +Inf (Go
+		// strconv documentation, ParseFloat); counts refuse them.
+		{"0x1p4", 0, `value "0x1p4" is not a number`},
+		{"1_000", 0, `value "1_000" is not a number`},
+		{"inf", 0, `value "inf" is not a finite number`},
+		{"1e3", 1000, ""},
 		{true, 0, "value true is a boolean; want a number"},
 	}
 	for _, c := range cases {

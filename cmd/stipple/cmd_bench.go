@@ -57,7 +57,7 @@ func cmdBench(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var budget int64
 	if *memory != "" {
-		v, err := mapjob.ParseSize(*memory)
+		v, err := mapfile.ParseSize(*memory)
 		if err != nil {
 			return usageError{"--memory: " + err.Error()}
 		}

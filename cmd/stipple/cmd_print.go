@@ -208,7 +208,7 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*mapjob
 	}
 	var memory int64
 	if o.memory != "" {
-		if memory, err = mapjob.ParseSize(o.memory); err != nil {
+		if memory, err = mapfile.ParseSize(o.memory); err != nil {
 			return nil, usageError{"--memory: " + err.Error()}
 		}
 	}

@@ -129,7 +129,7 @@ func (o *overrides) register(fs *flag.FlagSet) {
 func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (mapjob.Options, error) {
 	opt := mapjob.Options{Workers: o.workers, Log: stdout, HiDPI: o.hidpi || m.Tiles.HiDPI, Force: o.force}
 	if o.memory != "" {
-		n, err := mapjob.ParseSize(o.memory)
+		n, err := mapfile.ParseSize(o.memory)
 		if err != nil || n <= 0 {
 			return opt, usageError{fmt.Sprintf("--memory %q: want a size such as 2GiB or 512MiB", o.memory)}
 		}

@@ -7,6 +7,8 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // dBASE table layout (dBASE III/IV as GDAL writes it; the Technical
@@ -259,62 +261,20 @@ func allStars(s string) bool {
 	return true
 }
 
-// parseNumber reads the ASCII text of an N or F field. The syntax is checked
-// by hand because strconv also accepts "inf", "NaN", hexadecimal and
-// underscores, none of which a dBASE number may hold.
+// parseNumber reads the ASCII text of an N or F field with geo.ParseDecimal,
+// the syntax counts have in every format: strconv alone also accepts "inf",
+// "NaN", hexadecimal and underscores, none of which a dBASE number may hold.
 func parseNumber(s string, decimals int) (any, error) {
-	if !isDecimalNumber(s) {
-		return nil, fmt.Errorf("%q is not a number", s)
+	x, err := geo.ParseDecimal(s)
+	if err != nil {
+		return nil, err
 	}
 	if decimals == 0 {
 		if n, err := strconv.ParseInt(s, 10, 64); err == nil {
 			return n, nil
 		}
 	}
-	x, err := strconv.ParseFloat(s, 64)
-	if err != nil {
-		return nil, fmt.Errorf("%q is out of range", s)
-	}
 	return x, nil
-}
-
-// isDecimalNumber accepts [+-]digits[.digits][(e|E)[+-]digits] with at least
-// one mantissa digit.
-func isDecimalNumber(s string) bool {
-	i := 0
-	if i < len(s) && (s[i] == '+' || s[i] == '-') {
-		i++
-	}
-	digits := 0
-	for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-		i++
-		digits++
-	}
-	if i < len(s) && s[i] == '.' {
-		i++
-		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-			i++
-			digits++
-		}
-	}
-	if digits == 0 {
-		return false
-	}
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		i++
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
-			i++
-		}
-		ed := 0
-		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
-			i++
-			ed++
-		}
-		if ed == 0 {
-			return false
-		}
-	}
-	return i == len(s)
 }
 
 func isDate(s string) bool {

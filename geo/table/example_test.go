@@ -58,5 +58,5 @@ func ExampleTable_Number() {
 	fmt.Println(err)
 	// Output:
 	// 120 <nil>
-	// table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)
+	// table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)
 }

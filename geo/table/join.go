@@ -55,6 +55,9 @@ type Report struct {
 	// ZeroedCells counts, per joined column, the placeholder cells of the
 	// whole table read as 0 (Options.NullAsZero).
 	ZeroedCells map[string]int
+	// Hints name map-file keys under which many unmatched keys would
+	// match, one line each: "12 keys would match with pad_zeros = 5".
+	Hints []string
 }
 
 // String gives the report for people: counts, the first ten keys on each
@@ -85,6 +88,9 @@ func (r *Report) String() string {
 		b.WriteString(" none")
 	}
 	b.WriteString("\n")
+	for _, h := range r.Hints {
+		b.WriteString("hint: " + h + "\n")
+	}
 	return b.String()
 }
 
@@ -150,8 +156,10 @@ func Join(layer *geo.Layer, geoKeyField string, t *Table, columns []string) (*Re
 		PeopleInUnmatchedRows: make(map[string]float64, len(columns)),
 		ZeroedCells:           make(map[string]int, len(columns)),
 	}
+	var bad CellErrors
 	for i, c := range columns {
-		if _, err := t.column(c); err != nil {
+		col, err := t.column(c)
+		if err != nil {
 			return nil, err
 		}
 		for _, d := range columns[:i] {
@@ -159,12 +167,10 @@ func Join(layer *geo.Layer, geoKeyField string, t *Table, columns []string) (*Re
 				return nil, &Error{Path: t.Path, Column: c, Message: "column requested twice"}
 			}
 		}
-		v, z, err := t.Column(c)
-		if err != nil {
-			return nil, err
-		}
-		values[i] = v
-		rep.ZeroedCells[c] = z
+		values[i], rep.ZeroedCells[c] = t.parseColumn(col, &bad)
+	}
+	if err := bad.err(); err != nil {
+		return nil, err
 	}
 	if len(layer.Fields) > 0 && !contains(layer.Fields, geoKeyField) {
 		return nil, fmt.Errorf("table: %w", &geo.Error{Path: layer.Path, Index: -1, Field: geoKeyField,
@@ -233,7 +239,60 @@ func Join(layer *geo.Layer, geoKeyField string, t *Table, columns []string) (*Re
 			rep.PeopleInUnmatchedTotal += values[k][r]
 		}
 	}
+	rep.Hints = hints(t.Options, rep.FeaturesWithoutRow, rep.RowsWithoutFeature)
 	return rep, nil
+}
+
+// hints tries the key normalisations the table does not use yet on the
+// keys left unmatched on both sides, and names each that would match many
+// of them: at least half of the smaller side, and at least one key. The
+// keys given are already normalised with opt, so each try normalises them
+// once more with one option added.
+func hints(opt Options, features, rows Keys) []string {
+	if len(features) == 0 || len(rows) == 0 {
+		return nil
+	}
+	matches := func(o Options) int {
+		set := make(map[string]bool, len(rows))
+		for _, k := range rows {
+			set[o.Normalize(k)] = true
+		}
+		n := 0
+		for _, k := range features {
+			if set[o.Normalize(k)] {
+				n++
+			}
+		}
+		return n
+	}
+	enough := max(1, (min(len(features), len(rows))+1)/2)
+	var out []string
+	if !opt.Trim {
+		if n := matches(Options{Trim: true}); n >= enough {
+			out = append(out, fmt.Sprintf("%s would match with trim = true", plural(n, "key")))
+		}
+	}
+	if opt.PadZeros == 0 {
+		// The widths worth trying are the lengths of the digit keys.
+		widths := map[int]bool{}
+		for _, ks := range []Keys{features, rows} {
+			for _, k := range ks {
+				if isDigits(k) && len(k) <= 32 {
+					widths[len(k)] = true
+				}
+			}
+		}
+		best, bestN := 0, 0
+		for w := range widths {
+			if n := matches(Options{PadZeros: w}); n > bestN || n == bestN && n > 0 && w < best {
+				best, bestN = w, n
+			}
+		}
+		if bestN >= enough {
+			out = append(out, fmt.Sprintf("%s would match with pad_zeros = %d", plural(bestN, "key"), best))
+		}
+	}
+	return out
 }
 
 func contains(list []string, s string) bool {
@@ -243,4 +302,12 @@ func contains(list []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// plural writes "1 key", "2 keys".
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
 }

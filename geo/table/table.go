@@ -7,11 +7,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // DefaultMaxRows caps the data rows read when Options.MaxRows is 0.
@@ -30,6 +31,10 @@ type Options struct {
 	// KeepLast keeps only the last KeepLast characters of longer keys
 	// (0 = the whole key).
 	KeepLast int
+	// PadZeros left-pads keys made of digits only to PadZeros digits with
+	// zeros (0 = no padding), for a table whose program dropped leading
+	// zeros ("1001" beside "01001").
+	PadZeros int
 	// NullAsZero counts placeholder cells ("", "-", "(X)", "NA", ...; see
 	// IsPlaceholder) as 0 instead of failing.
 	NullAsZero bool
@@ -41,9 +46,10 @@ type Options struct {
 
 // Normalize applies the key normalisation of o, in this order: Trim (white
 // space around the key), StripPrefix (once, when present), KeepLast (the
-// last KeepLast characters, when the key is longer). Join applies the same
-// function to the table's keys and to the features' keys, so both sides
-// are compared in one form; leading zeros are always kept.
+// last KeepLast characters, when the key is longer), PadZeros (zeros before
+// a key of digits shorter than PadZeros). Join applies the same function to
+// the table's keys and to the features' keys, so both sides are compared
+// in one form; leading zeros are always kept.
 func (o Options) Normalize(key string) string {
 	if o.Trim {
 		key = strings.TrimSpace(key)
@@ -55,7 +61,20 @@ func (o Options) Normalize(key string) string {
 		r := []rune(key)
 		key = string(r[len(r)-o.KeepLast:])
 	}
+	if o.PadZeros > len(key) && isDigits(key) {
+		key = strings.Repeat("0", o.PadZeros-len(key)) + key
+	}
 	return key
+}
+
+// isDigits reports whether s is one or more ASCII digits.
+func isDigits(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if s[i] < '0' || s[i] > '9' {
+			return false
+		}
+	}
+	return s != ""
 }
 
 // Error is a problem at one place of a table file. Line is the 1-based line
@@ -120,8 +139,8 @@ func read(r io.Reader, path string, opt Options) (*Table, error) {
 	if opt.Key == "" {
 		return nil, fail(0, "", "no key column given")
 	}
-	if opt.SkipRows < 0 || opt.KeepLast < 0 || opt.MaxRows < 0 {
-		return nil, fail(0, "", "SkipRows, KeepLast and MaxRows must not be negative")
+	if opt.SkipRows < 0 || opt.KeepLast < 0 || opt.MaxRows < 0 || opt.PadZeros < 0 {
+		return nil, fail(0, "", "SkipRows, KeepLast, PadZeros and MaxRows must not be negative")
 	}
 	if opt.MaxRows == 0 {
 		opt.MaxRows = DefaultMaxRows
@@ -250,9 +269,10 @@ func IsPlaceholder(cell string) bool {
 }
 
 // Number parses the cell of a record (0-based record index) in the named
-// column as a count: a non-negative decimal number such as "12", "0.5" or
-// "1.5e3", white space around it ignored. Thousands separators ("1,234"),
-// signs other than a leading "+", hexadecimal, NaN and infinities are
+// column as a count: a non-negative number in the syntax of
+// geo.ParseDecimal (the one rule for counts in every format), such as "12",
+// "0.5" or "1.5e3", white space around it ignored. Thousands separators
+// ("1,234"), hexadecimal, digit separators, NaN and infinities are
 // rejected. A placeholder (see IsPlaceholder) is an error unless
 // Options.NullAsZero is set, when it reads as 0. Errors name the file, the
 // line and the column.
@@ -278,53 +298,83 @@ func (t *Table) number(row, c int) (v float64, zeroed bool, err error) {
 		if t.Options.NullAsZero {
 			return 0, true, nil
 		}
-		return fail("%q is not a number (a placeholder for no value: set NullAsZero to count it as 0)", cell)
-	}
-	switch strings.ToLower(strings.TrimLeft(cell, "+-")) {
-	case "nan", "inf", "infinity":
-		return fail("%q is not a finite number", cell)
+		return fail("%q is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)", cell)
 	}
 	if strings.Contains(cell, ",") && strings.Trim(cell, "0123456789,.") == "" {
 		return fail("%q: commas are not accepted in numbers (thousands separator or decimal comma); write digits with an optional \".\" decimal point", cell)
 	}
-	for _, r := range cell {
-		if !strings.ContainsRune("0123456789.eE+-", r) {
-			return fail("%q is not a number", cell)
-		}
-	}
-	if strings.HasPrefix(cell, "-") {
-		return fail("%q is negative; counts must be 0 or more", cell)
-	}
-	v, err = strconv.ParseFloat(cell, 64)
+	v, err = geo.ParseDecimal(cell)
 	if err != nil {
-		if errors.Is(err, strconv.ErrRange) {
-			if math.IsInf(v, 0) {
-				return fail("%q is too large for a number", cell)
-			}
-			return v, false, nil // underflow: a positive number below 1e-308 reads as 0
-		}
-		return fail("%q is not a number", cell)
+		return fail("%v", err)
+	}
+	if v < 0 {
+		return fail("%q is negative; counts must be 0 or more", cell)
 	}
 	return v, false, nil
 }
 
 // Column parses the named column of every record (see Number) and returns
 // the values in record order and how many placeholder cells were read as 0.
+// When cells are bad the error lists every one of them (see CellErrors).
 func (t *Table) Column(name string) (values []float64, zeroed int, err error) {
 	c, err := t.column(name)
 	if err != nil {
 		return nil, 0, err
 	}
+	var bad CellErrors
+	values, zeroed = t.parseColumn(c, &bad)
+	if err := bad.err(); err != nil {
+		return nil, 0, err
+	}
+	return values, zeroed, nil
+}
+
+// parseColumn parses column c, adding its bad cells to bad.
+func (t *Table) parseColumn(c int, bad *CellErrors) (values []float64, zeroed int) {
 	values = make([]float64, len(t.Records))
 	for i := range t.Records {
 		v, z, err := t.number(i, c)
 		if err != nil {
-			return nil, 0, err
+			*bad = append(*bad, err.(*Error))
+			continue
 		}
 		values[i] = v
 		if z {
 			zeroed++
 		}
 	}
-	return values, zeroed, nil
+	return values, zeroed
+}
+
+// MaxListedCells is how many bad cells a CellErrors message lists.
+const MaxListedCells = 20
+
+// CellErrors holds every bad cell of a table, in the order found (by
+// column, then line).
+type CellErrors []*Error
+
+// Error lists the first MaxListedCells cells, one a line, then "and N
+// more".
+func (e CellErrors) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "table: %s: %d cells are not counts:", e[0].Path, len(e))
+	for i, c := range e {
+		if i == MaxListedCells {
+			fmt.Fprintf(&b, "\n  and %d more", len(e)-MaxListedCells)
+			break
+		}
+		fmt.Fprintf(&b, "\n  line %d: column %q: %s", c.Line, c.Column, c.Message)
+	}
+	return b.String()
+}
+
+// err is nil for no bad cell, the *Error itself for one, else e.
+func (e CellErrors) err() error {
+	switch len(e) {
+	case 0:
+		return nil
+	case 1:
+		return e[0]
+	}
+	return e
 }

@@ -76,7 +76,7 @@ func TestRead(t *testing.T) {
 		t.Errorf("Number(0, pop_a) = %v, %v", v, err)
 	}
 	_, err = tb.Number(1, "pop_b")
-	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`
+	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`
 	if err == nil || err.Error() != want {
 		t.Errorf("got %v\nwant %s", err, want)
 	}
@@ -144,8 +144,8 @@ func TestNumber(t *testing.T) {
 		{"12 people", 0, `"12 people" is not a number`},
 		{"1.2.3", 0, `"1.2.3" is not a number`},
 		{"e5", 0, `"e5" is not a number`},
-		{"(X)", 0, `"(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`},
-		{"", 0, `"" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`},
+		{"(X)", 0, `"(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`},
+		{"", 0, `"" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`},
 	} {
 		tb := &Table{Path: "t.csv", Header: []string{"k", "n"}, Records: [][]string{{"a", tc.cell}}, Lines: []int{2},
 			cols: map[string]int{"k": 0, "n": 1}}
@@ -180,7 +180,10 @@ func TestJoin(t *testing.T) {
 	}
 	layer := testLayer()
 	_, err = Join(layer, "code", tb, []string{"pop_a", "pop_b"})
-	want := `table: testdata/counts.csv: line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`
+	// Every bad cell is listed, not only the first.
+	want := "table: testdata/counts.csv: 2 cells are not counts:\n" +
+		`  line 4: column "pop_b": "(X)" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)` + "\n" +
+		`  line 6: column "pop_b": "-" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`
 	if err == nil || err.Error() != want {
 		t.Fatalf("got %v\nwant %s", err, want)
 	}
@@ -260,7 +263,13 @@ func TestJoinErrors(t *testing.T) {
 		{"column twice", testLayer, "code", []string{"pop_a", "pop_a"},
 			`table: testdata/counts.csv: column "pop_a": column requested twice`},
 		{"key column is text", testLayer, "code", []string{"NAME"},
-			`table: testdata/counts.csv: line 3: column "NAME": "Tarrow, North" is not a number`},
+			"table: testdata/counts.csv: 6 cells are not counts:\n" +
+				`  line 3: column "NAME": "Tarrow, North" is not a number` + "\n" +
+				`  line 4: column "NAME": "Tarrow South" is not a number` + "\n" +
+				`  line 5: column "NAME": "Fenwick" is not a number` + "\n" +
+				`  line 6: column "NAME": "Quay" is not a number` + "\n" +
+				`  line 7: column "NAME": "Marl End" is not a number` + "\n" +
+				`  line 8: column "NAME": "Nowhere Rise" is not a number`},
 		{"missing field", testLayer, "GEOID", []string{"pop_a"},
 			`table: areas.geojson: field "GEOID": no such field to join on (fields: code, pop_a)`},
 		{"duplicate feature key", func() *geo.Layer {
@@ -347,7 +356,7 @@ func TestBadInputs(t *testing.T) {
 		{"huge.csv", `table: ../../testdata/bad/table/huge.csv: line 2: column "pop": "1e400" is too large for a number`, true},
 		{"thousands.csv", `table: ../../testdata/bad/table/thousands.csv: line 2: column "pop": "1,234": commas are not accepted in numbers (thousands separator or decimal comma); write digits with an optional "." decimal point`, true},
 		{"hex.csv", `table: ../../testdata/bad/table/hex.csv: line 2: column "pop": "0x1p4" is not a number`, true},
-		{"placeholder.csv", `table: ../../testdata/bad/table/placeholder.csv: line 3: column "pop": "N" is not a number (a placeholder for no value: set NullAsZero to count it as 0)`, false},
+		{"placeholder.csv", `table: ../../testdata/bad/table/placeholder.csv: line 3: column "pop": "N" is not a number (a placeholder for no value: set null_as_zero = true in [input.table] to count it as 0)`, false},
 	} {
 		tb, err := Read(filepath.Join(dir, tc.file), Options{Key: "geoid", NullAsZero: tc.nullZero})
 		if err == nil {
@@ -366,7 +375,7 @@ func TestBadInputs(t *testing.T) {
 		t.Errorf("Column = %v %d %v", v, z, err)
 	}
 	_, err = Read(filepath.Join(dir, "ragged.csv"), Options{Key: "geoid", MaxRows: 0, SkipRows: -1})
-	if want := `table: ../../testdata/bad/table/ragged.csv: SkipRows, KeepLast and MaxRows must not be negative`; err == nil || err.Error() != want {
+	if want := `table: ../../testdata/bad/table/ragged.csv: SkipRows, KeepLast, PadZeros and MaxRows must not be negative`; err == nil || err.Error() != want {
 		t.Errorf("got %v", err)
 	}
 	p := filepath.Join(t.TempDir(), "many.csv")
@@ -480,7 +489,7 @@ func FuzzRead(f *testing.F) {
 						t.Fatalf("count %v accepted", x)
 					}
 				}
-				if err != nil && !strings.HasPrefix(err.Error(), "table: fuzz.csv: line ") {
+				if err != nil && !strings.HasPrefix(err.Error(), "table: fuzz.csv: line ") && !strings.Contains(err.Error(), " cells are not counts:\n  line ") {
 					t.Fatalf("number error without line: %v", err)
 				}
 			}
@@ -511,5 +520,125 @@ func BenchmarkReadAndJoinCounties(b *testing.B) {
 		if _, err := Join(layer, "geoid", tb, cols); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// zeroLayer has five-digit keys, as text, where dropped-zeros.csv lost the
+// leading zero of four of them (a spreadsheet that read "01001" as the
+// number 1001).
+func zeroLayer() *geo.Layer {
+	l := &geo.Layer{Path: "areas.geojson", Fields: []string{"code"}}
+	for i, k := range []string{"01001", "01003", "01005", "01007", "02010", "99999"} {
+		l.Features = append(l.Features, geo.Feature{Index: i, ID: k, Props: map[string]any{"code": k}})
+	}
+	return l
+}
+
+func TestPadZerosHintAndJoin(t *testing.T) {
+	tb, err := Read("testdata/dropped-zeros.csv", Options{Key: "area"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Join(zeroLayer(), "code", tb, []string{"people"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Matched != 0 {
+		t.Errorf("matched %d without padding; want 0", rep.Matched)
+	}
+	if want := []string{"5 keys would match with pad_zeros = 5"}; !reflect.DeepEqual(rep.Hints, want) {
+		t.Errorf("hints %q; want %q", rep.Hints, want)
+	}
+	if !strings.HasSuffix(rep.String(), "\nhint: 5 keys would match with pad_zeros = 5\n") {
+		t.Errorf("report lacks the hint:\n%s", rep)
+	}
+
+	tb, err = Read("testdata/dropped-zeros.csv", Options{Key: "area", PadZeros: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	layer := zeroLayer()
+	rep, err = Join(layer, "code", tb, []string{"people"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Matched != 5 || len(rep.Hints) != 0 || !reflect.DeepEqual(rep.FeaturesWithoutRow, Keys{"99999"}) {
+		t.Errorf("padded join: matched %d, hints %q, unmatched %q", rep.Matched, rep.Hints, rep.FeaturesWithoutRow)
+	}
+	if got := layer.Features[4].Props["people"]; got != 7.0 {
+		t.Errorf("02010 got %v; want 7 from row 2010", got)
+	}
+}
+
+func TestPadZerosBothSides(t *testing.T) {
+	o := Options{PadZeros: 5}
+	for in, want := range map[string]string{"1001": "01001", "01001": "01001", "7": "00007", "123456": "123456", "A12": "A12", "": "", "12.5": "12.5"} {
+		if got := o.Normalize(in); got != want {
+			t.Errorf("Normalize(%q) = %q; want %q", in, got, want)
+		}
+	}
+	// A whole float key from a numeric field pads like its text.
+	if got := (Options{PadZeros: 5, Trim: true}).Normalize(" 1001 "); got != "01001" {
+		t.Errorf("trim then pad = %q", got)
+	}
+}
+
+func TestTrimHint(t *testing.T) {
+	tb, err := Read("testdata/spaced-keys.csv", Options{Key: "area"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Join(zeroLayer(), "code", tb, []string{"people"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// " 01001" and "01003 " match after trimming; 01005 matches as it is.
+	if want := []string{"2 keys would match with trim = true"}; rep.Matched != 1 || !reflect.DeepEqual(rep.Hints, want) {
+		t.Errorf("matched %d, hints %q; want 1, %q", rep.Matched, rep.Hints, want)
+	}
+}
+
+// Delimiters other than a comma (RFC 4180 section 2 names the comma; other
+// separators are common practice for locales whose decimal mark is a
+// comma, and for tab-separated exports).
+func TestDelimiters(t *testing.T) {
+	for _, c := range []struct {
+		file  string
+		delim rune
+	}{{"semicolon.csv", ';'}, {"tab.csv", '\t'}} {
+		tb, err := Read("testdata/"+c.file, Options{Key: "area", Delimiter: c.delim})
+		if err != nil {
+			t.Fatalf("%s: %v", c.file, err)
+		}
+		v, _, err := tb.Column("people")
+		if err != nil || !reflect.DeepEqual(v, []float64{120, 85}) || !reflect.DeepEqual(tb.Keys, []string{"01001", "01003"}) {
+			t.Errorf("%s: %v %q %v", c.file, v, tb.Keys, err)
+		}
+	}
+	// Read with commas, the semicolon table is one column and has no key.
+	_, err := Read("testdata/semicolon.csv", Options{Key: "area"})
+	if want := `table: testdata/semicolon.csv: line 1: key column "area" is not in the header (columns: area;people;note)`; err == nil || err.Error() != want {
+		t.Errorf("got %v\nwant %s", err, want)
+	}
+}
+
+func TestEveryBadCellIsListed(t *testing.T) {
+	tb, err := Read("testdata/many-bad.csv", Options{Key: "area"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, _, err = tb.Column("people")
+	if _, ok := err.(CellErrors); !ok || len(err.(CellErrors)) != 25 {
+		t.Fatalf("err %T %v; want 25 CellErrors", err, err)
+	}
+	lines := strings.Split(err.Error(), "\n")
+	if len(lines) != 1+MaxListedCells+1 {
+		t.Fatalf("%d lines:\n%s", len(lines), err)
+	}
+	if lines[0] != "table: testdata/many-bad.csv: 25 cells are not counts:" ||
+		lines[1] != `  line 2: column "people": "n/a0" is not a number` ||
+		lines[20] != `  line 21: column "people": "n/a19" is not a number` ||
+		lines[21] != "  and 5 more" {
+		t.Errorf("message:\n%s", err)
 	}
 }

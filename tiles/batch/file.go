@@ -7,7 +7,6 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
-	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -148,17 +147,17 @@ func Read(path string) (*File, error) {
 // writes the whole map).
 func Parse(path string, data []byte) (*File, error) {
 	var raw rawFile
+	lines := mapfile.FindLines(data)
 	md, err := toml.Decode(string(data), &raw)
 	if err != nil {
-		return nil, decodeError(path, err)
+		return nil, mapfile.DecodeError(path, lines, err)
 	}
-	lines := strings.Split(string(data), "\n")
 	f := &File{Path: path, Margin: DefaultMargin, HiDPI: raw.HiDPI, Sample: "all"}
 	if md.IsDefined("input") {
-		// A map file with extents: the map is read from the same text with
-		// the extent tables blanked (line numbers kept), so its own checks
-		// report anything else it does not know.
-		m, err := mapfile.Parse(path, []byte(blankExtents(lines)))
+		// A map file with extents: mapfile reads the same text, leaves the
+		// [[extent]] tables to this package and reports any other key it
+		// does not know.
+		m, err := mapfile.Parse(path, data)
 		if err != nil {
 			return nil, err
 		}
@@ -176,7 +175,7 @@ func Parse(path string, data []byte) (*File, error) {
 			if errors.As(err, &me) {
 				return nil, err
 			}
-			return nil, &mapfile.Error{Path: path, Line: topLine(lines, "map"), Key: "map", Msg: err.Error()}
+			return nil, &mapfile.Error{Path: path, Line: lines.Line("map"), Key: "map", Msg: err.Error()}
 		}
 		m.Out = m.Resolve(m.Out)
 		f.Map = m
@@ -189,13 +188,13 @@ func Parse(path string, data []byte) (*File, error) {
 		case "near":
 			f.Sample = "near"
 		default:
-			return nil, &mapfile.Error{Path: path, Line: topLine(lines, "sample"), Key: "sample",
+			return nil, &mapfile.Error{Path: path, Line: lines.Line("sample"), Key: "sample",
 				Msg: fmt.Sprintf("%q; want \"all\" (every area's dots) or \"near\" (only areas near an extent)", raw.Sample)}
 		}
 		if raw.Margin != nil {
 			f.Margin = *raw.Margin
 			if !(f.Margin >= 0 && f.Margin <= 10) {
-				return nil, &mapfile.Error{Path: path, Line: topLine(lines, "margin"), Key: "margin",
+				return nil, &mapfile.Error{Path: path, Line: lines.Line("margin"), Key: "margin",
 					Msg: fmt.Sprintf("is %v; want a share of the extent's size from 0 to 10 (0.1 = 10 %% on each side)", f.Margin)}
 			}
 		}
@@ -204,7 +203,7 @@ func Parse(path string, data []byte) (*File, error) {
 	if raw.Print != nil {
 		f.Print = mergePrint(DefaultPrint, *raw.Print, md, "print")
 		if err := checkPrint(f.Print); err != nil {
-			return nil, &mapfile.Error{Path: path, Line: tableLine(lines, "print"), Key: "print", Msg: err.Error()}
+			return nil, &mapfile.Error{Path: path, Line: lines.Line("print"), Key: "print", Msg: err.Error()}
 		}
 	}
 	if len(raw.Extents) == 0 {
@@ -220,7 +219,7 @@ func Parse(path string, data []byte) (*File, error) {
 			return nil, err
 		}
 		if j, dup := slugs[e.Slug]; dup {
-			return nil, &mapfile.Error{Path: path, Line: extentLine(lines, i, "slug"), Key: fmt.Sprintf("extent[%d].slug", i+1),
+			return nil, &mapfile.Error{Path: path, Line: lines.Near(fmt.Sprintf("extent[%d].slug", i+1)), Key: fmt.Sprintf("extent[%d].slug", i+1),
 				Msg: fmt.Sprintf("%q is also the slug of extent %d", e.Slug, j+1)}
 		}
 		slugs[e.Slug] = i
@@ -228,7 +227,8 @@ func Parse(path string, data []byte) (*File, error) {
 	}
 	for _, k := range md.Undecoded() {
 		if f.MapPath != path || (len(k) > 0 && k[0] == "extent") {
-			return nil, unknownKey(path, lines, k)
+			name, line := lines.Find(k)
+			return nil, &mapfile.Error{Path: path, Line: line, Key: name, Msg: "unknown key"}
 		}
 	}
 	return f, nil
@@ -236,19 +236,21 @@ func Parse(path string, data []byte) (*File, error) {
 
 var slugRE = regexp.MustCompile(`^[a-z0-9][a-z0-9_-]{0,63}$`)
 
-func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Extent, error) {
+func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines *mapfile.Lines) (*Extent, error) {
+	key := func(field string) string { return fmt.Sprintf("extent[%d].%s", i+1, field) }
 	at := func(field, msg string) error {
-		return &mapfile.Error{Path: f.Path, Line: extentLine(lines, i, field), Key: fmt.Sprintf("extent[%d].%s", i+1, field), Msg: msg}
+		return &mapfile.Error{Path: f.Path, Line: lines.Near(key(field)), Key: key(field), Msg: msg}
 	}
+	has := func(field string) bool { return lines.Has(key(field)) }
 	m := f.Map
-	e := &Extent{Slug: r.Slug, Title: r.Title, N: i + 1, Line: extentLine(lines, i, "\x00"),
+	e := &Extent{Slug: r.Slug, Title: r.Title, N: i + 1, Line: lines.Line(fmt.Sprintf("extent[%d]", i+1)),
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, PeoplePerDot: m.PeoplePerDot, Margin: f.Margin}
 	switch {
-	case r.Slug == "" && !extentHas(lines, i, "slug"):
+	case r.Slug == "" && !has("slug"):
 		return nil, at("slug", "missing: name the extent's folder, e.g. slug = \"north-bell\"")
 	case !slugRE.MatchString(r.Slug):
 		return nil, at("slug", fmt.Sprintf("%q: want 1 to 64 lower-case letters, digits, - or _, starting with a letter or digit", r.Slug))
-	case r.Title == "" && !extentHas(lines, i, "title"):
+	case r.Title == "" && !has("title"):
 		return nil, at("title", "missing: give the extent's map a title")
 	case strings.TrimSpace(r.Title) == "":
 		return nil, at("title", "is empty")
@@ -267,7 +269,7 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Ex
 		field := "bbox"
 		if n > 1 {
 			for _, k := range []string{"ids", "field", "values"} {
-				if extentHas(lines, i, k) {
+				if has(k) {
 					field = k
 				}
 			}
@@ -331,7 +333,7 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Ex
 			return nil, at("margin", fmt.Sprintf("is %v; want a share of the extent's size from 0 to 10", e.Margin))
 		}
 	}
-	if extentHas(lines, i, "print") || extentTable(lines, i, "print") > 0 {
+	if has("print") {
 		switch primitiveKind(md, r.Print) {
 		case "bool":
 			var on bool
@@ -351,16 +353,12 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines []string) (*Ex
 			md.PrimitiveDecode(r.Print, &keys)
 			for k := range keys {
 				if !printKeys[k] {
-					return nil, &mapfile.Error{Path: f.Path, Line: extentLine(lines, i, k), Key: fmt.Sprintf("extent[%d].print.%s", i+1, k), Msg: "unknown key"}
+					return nil, &mapfile.Error{Path: f.Path, Line: lines.Near(key("print." + k)), Key: key("print." + k), Msg: "unknown key"}
 				}
 			}
 			merged := mergePrintTable(f.Print, p, r.Print, md)
 			if err := checkPrint(merged); err != nil {
-				line := extentTable(lines, i, "print")
-				if line == 0 {
-					line = extentLine(lines, i, "print")
-				}
-				return nil, &mapfile.Error{Path: f.Path, Line: line, Key: fmt.Sprintf("extent[%d].print", i+1), Msg: err.Error()}
+				return nil, &mapfile.Error{Path: f.Path, Line: lines.Line(key("print")), Key: key("print"), Msg: err.Error()}
 			}
 			e.Print = &merged
 		default:
@@ -386,22 +384,6 @@ func primitiveKind(md toml.MetaData, p toml.Primitive) string {
 		return "table"
 	}
 	return "other"
-}
-
-// extentTable returns the header line of the i-th [[extent]]'s
-// [extent.NAME] sub-table, 0 when it has none.
-func extentTable(lines []string, i int, name string) int {
-	n := -1
-	for j, l := range lines {
-		h, arr := header(l)
-		switch {
-		case h == "extent" && arr:
-			n++
-		case n == i && h == "extent."+name:
-			return j + 1
-		}
-	}
-	return 0
 }
 
 // mergePrint takes the keys the [print] table sets over the defaults.
@@ -513,135 +495,4 @@ func resolve(file, p string) string {
 		return p
 	}
 	return filepath.Join(filepath.Dir(file), p)
-}
-
-// typeErrRE matches the decoder's type errors, which carry no typed position.
-var typeErrRE = regexp.MustCompile(`^toml: line (\d+) \(last key "(.*?)"\): (.*)$`)
-
-func decodeError(path string, err error) error {
-	var pe toml.ParseError
-	if errors.As(err, &pe) {
-		return &mapfile.Error{Path: path, Line: pe.Position.Line, Key: pe.LastKey, Msg: pe.Message}
-	}
-	if g := typeErrRE.FindStringSubmatch(err.Error()); g != nil {
-		line, _ := strconv.Atoi(g[1])
-		return &mapfile.Error{Path: path, Line: line, Key: g[2], Msg: g[3]}
-	}
-	return &mapfile.Error{Path: path, Msg: err.Error()}
-}
-
-func unknownKey(path string, lines []string, k toml.Key) error {
-	line := 0
-	if len(k) >= 2 && k[0] == "extent" {
-		// Which extent: the decoder does not say, so find the first
-		// [[extent]] table that sets the key.
-		for i := 0; ; i++ {
-			h := extentLine(lines, i, "\x00")
-			if h == 0 {
-				break
-			}
-			if l := extentLine(lines, i, k[len(k)-1]); l != h {
-				line = l
-				break
-			}
-		}
-	} else if len(k) == 1 {
-		line = topLine(lines, k[0])
-	} else {
-		line = tableLine(lines, k[0])
-	}
-	return &mapfile.Error{Path: path, Line: line, Key: k.String(), Msg: "unknown key"}
-}
-
-// header returns the table name of a [table] or [[table]] line, "" for
-// other lines.
-func header(l string) (name string, array bool) {
-	t := strings.TrimSpace(l)
-	if !strings.HasPrefix(t, "[") {
-		return "", false
-	}
-	if j := strings.IndexByte(t, '#'); j >= 0 {
-		t = strings.TrimSpace(t[:j])
-	}
-	array = strings.HasPrefix(t, "[[")
-	return strings.TrimSpace(strings.Trim(t, "[]")), array
-}
-
-func keyOnLine(t, key string) bool {
-	if !strings.HasPrefix(t, key) {
-		return false
-	}
-	return strings.HasPrefix(strings.TrimSpace(t[len(key):]), "=")
-}
-
-// topLine finds a top-level key (before the first table).
-func topLine(lines []string, key string) int {
-	for i, l := range lines {
-		if name, _ := header(l); name != "" {
-			return 0
-		}
-		if keyOnLine(strings.TrimSpace(l), key) {
-			return i + 1
-		}
-	}
-	return 0
-}
-
-// tableLine finds the header of [name].
-func tableLine(lines []string, name string) int {
-	for i, l := range lines {
-		if n, arr := header(l); n == name && !arr {
-			return i + 1
-		}
-	}
-	return 0
-}
-
-// extentLine finds a key of the i-th [[extent]] table (or of its
-// [extent.print] sub-table), or the table's header line when the key is
-// absent; 0 when there is no such table.
-func extentLine(lines []string, i int, key string) int {
-	n, hdr := -1, 0
-	for j, l := range lines {
-		if name, arr := header(l); name != "" {
-			if name == "extent" && arr {
-				n++
-				if n == i {
-					hdr = j + 1
-				} else if n > i {
-					break
-				}
-			} else if n == i && !strings.HasPrefix(name, "extent.") {
-				break
-			}
-			continue
-		}
-		if n == i && keyOnLine(strings.TrimSpace(l), key) {
-			return j + 1
-		}
-	}
-	return hdr
-}
-
-func extentHas(lines []string, i int, key string) bool {
-	return extentLine(lines, i, key) != extentLine(lines, i, "\x00")
-}
-
-// blankExtents turns the lines of every [[extent]] table (and its
-// [extent.*] sub-tables) into comments, so the rest parses as a map file
-// with its line numbers unchanged.
-func blankExtents(lines []string) string {
-	out := make([]string, len(lines))
-	in := false
-	for i, l := range lines {
-		if name, _ := header(l); name != "" {
-			in = name == "extent" || strings.HasPrefix(name, "extent.")
-		}
-		if in {
-			out[i] = "#"
-		} else {
-			out[i] = l
-		}
-	}
-	return strings.Join(out, "\n")
 }

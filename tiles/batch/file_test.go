@@ -20,7 +20,7 @@ func TestParseErrorsNameFileLineAndKey(t *testing.T) {
 		{"bad map", "map = \"nope.toml\"\n" + ext, `B:1: key map: mapfile: open ` + filepath.Join(dir, "nope.toml") + `: no such file or directory`},
 		{"no extents", head, `B: key extent: missing: add at least one [[extent]] with slug, title and one of bbox, ids or field`},
 		{"unknown top key", head + "colour = 1\n" + ext, `B:2: key colour: unknown key`},
-		{"unknown extent key", head + ext + "zoom = 3\n", `B:6: key extent.zoom: unknown key`},
+		{"unknown extent key", head + ext + "zoom = 3\n", `B:6: key extent[1].zoom: unknown key`},
 		{"syntax", head + "[[extent]\n", `B:3: expected end of table array name delimiter ']', but got '\n' instead`},
 		{"missing slug", head + "[[extent]]\ntitle = \"A\"\nbbox = [0, 0, 1, 1]\n", `B:2: key extent[1].slug: missing: name the extent's folder, e.g. slug = "north-bell"`},
 		{"bad slug", head + "[[extent]]\nslug = \"North Bell\"\ntitle = \"A\"\nbbox = [0, 0, 1, 1]\n",

@@ -1,16 +1,18 @@
 package mapfile
 
 import (
-	"errors"
 	"fmt"
 	"image/color"
+	"math"
 	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"github.com/BurntSushi/toml"
+	"github.com/stipple-maps/stipple/geo/table"
 )
 
 // Map is one map file.
@@ -33,8 +35,6 @@ type Map struct {
 	Tiles      Tiles      `toml:"tiles"`
 	Dots       Dots       `toml:"dots"`
 	Categories []Category `toml:"category"`
-	// Extents are read by "stipple batch"; "stipple render" ignores them.
-	Extents []toml.Primitive `toml:"extent"`
 }
 
 // Input names the polygons and where their counts come from.
@@ -68,6 +68,36 @@ type Table struct {
 	// NullAsZero reads "-", "(X)", "N", "null", empty … as 0 and reports
 	// how many cells it zeroed; without it they are errors.
 	NullAsZero bool `toml:"null_as_zero"`
+	// Delimiter separates the fields: "," (default), ";", "tab" or "\t",
+	// or another single character.
+	Delimiter string `toml:"delimiter"`
+	// PadZeros left-pads keys made of digits to PadZeros digits, on both
+	// sides, for a table that lost its leading zeros.
+	PadZeros int `toml:"pad_zeros"`
+}
+
+// Options returns the table reader's options for t.
+func (t *Table) Options() table.Options {
+	return table.Options{
+		Key: t.Key, SkipRows: t.SkipRows, Trim: t.Trim, StripPrefix: t.StripPrefix,
+		KeepLast: t.KeepLast, NullAsZero: t.NullAsZero, Delimiter: t.delimiter(), PadZeros: t.PadZeros,
+	}
+}
+
+// delimiter reads Delimiter as a rune: 0 for the default comma, -1 when it
+// is not one character.
+func (t *Table) delimiter() rune {
+	switch t.Delimiter {
+	case "":
+		return 0
+	case "tab", "\t", `\t`:
+		return '\t'
+	}
+	r := []rune(t.Delimiter)
+	if len(r) != 1 {
+		return -1
+	}
+	return r[0]
 }
 
 // Tiles sets the pyramid.
@@ -142,46 +172,61 @@ func Read(path string) (*Map, error) {
 }
 
 // Parse reads a map file's text; path names it in errors and anchors
-// relative paths.
+// relative paths. [[extent]] tables are left to package batch: "stipple
+// render" ignores them.
 func Parse(path string, data []byte) (*Map, error) {
 	m := Defaults
 	m.Path = path
+	lines := FindLines(data)
 	md, err := toml.Decode(string(data), &m)
 	if err != nil {
-		var pe toml.ParseError
-		if errors.As(err, &pe) {
-			return nil, &Error{Path: path, Line: pe.Position.Line, Key: pe.LastKey, Msg: pe.Message}
-		}
-		if g := typeErrRE.FindStringSubmatch(err.Error()); g != nil {
-			line, _ := strconv.Atoi(g[1])
-			return nil, &Error{Path: path, Line: line, Key: g[2], Msg: g[3]}
-		}
-		return nil, &Error{Path: path, Msg: err.Error()}
+		return nil, DecodeError(path, lines, err)
 	}
-	lines := strings.Split(string(data), "\n")
 	for _, k := range md.Undecoded() {
 		if len(k) > 0 && k[0] == "extent" {
-			continue // batch extents are checked by package batch
+			continue
 		}
-		return nil, &Error{Path: path, Line: lineOf(lines, k), Key: k.String(), Msg: "unknown key"}
+		name, line := lines.Find(k)
+		return nil, &Error{Path: path, Line: line, Key: name, Msg: "unknown key"}
 	}
-	if err := m.check(md, lines); err != nil {
+	if err := m.check(md, lines, data); err != nil {
 		return nil, err
 	}
 	return &m, nil
 }
 
-// typeErrRE matches the decoder's type errors, which carry no typed position.
-var typeErrRE = regexp.MustCompile(`^toml: line (\d+) \(last key "(.*?)"\): (.*)$`)
-
 var colorRE = regexp.MustCompile(`^#[0-9A-Fa-f]{6}$`)
 
-func (m *Map) check(md toml.MetaData, lines []string) error {
+func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 	errAt := func(msg string, key ...string) error {
-		return &Error{Path: m.Path, Line: lineOf(lines, toml.Key(key)), Key: strings.Join(key, "."), Msg: msg}
+		name := strings.Join(key, ".")
+		return &Error{Path: m.Path, Line: lines.Near(name), Key: name, Msg: msg}
 	}
 	if !md.IsDefined("input", "file") {
-		return &Error{Path: m.Path, Key: "input.file", Msg: "missing: name the polygon file, e.g. [input] file = \"areas.geojson\""}
+		return errAt("missing: name the polygon file, e.g. [input] file = \"areas.geojson\"", "input", "file")
+	}
+	// The decoder stores a negative seed in the uint64 wrapped round
+	// (-3 as 18446744073709551613); read it again as written.
+	var seed struct {
+		Seed any `toml:"seed"`
+	}
+	if _, err := toml.Decode(string(data), &seed); err == nil {
+		if n, ok := seed.Seed.(int64); ok && n < 0 {
+			return errAt(fmt.Sprintf("is %d; want a whole number from 0 up", n), "seed")
+		}
+	}
+	for _, f := range []struct {
+		key []string
+		v   float64
+	}{
+		{[]string{"people_per_dot"}, m.PeoplePerDot},
+		{[]string{"dots", "diameter"}, m.Dots.Diameter},
+		{[]string{"dots", "min_diameter"}, m.Dots.MinDiameter},
+		{[]string{"dots", "opacity"}, m.Dots.Opacity},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) {
+			return errAt(fmt.Sprintf("is %v; want a finite number", f.v), f.key...)
+		}
 	}
 	if t := m.Input.Table; t != nil {
 		if t.File == "" {
@@ -193,8 +238,22 @@ func (m *Map) check(md toml.MetaData, lines []string) error {
 		if m.Input.ID == "" {
 			return errAt("missing: with a table, input.id names the areas' field matched to the table key", "input", "id")
 		}
-		if t.SkipRows < 0 || t.KeepLast < 0 {
-			return errAt("skip_rows and keep_last cannot be negative", "input", "table")
+		for _, n := range []struct {
+			key string
+			v   int
+		}{{"skip_rows", t.SkipRows}, {"keep_last", t.KeepLast}, {"pad_zeros", t.PadZeros}} {
+			if n.v < 0 {
+				return errAt(fmt.Sprintf("is %d; want a whole number from 0 up", n.v), "input", "table", n.key)
+			}
+		}
+		if t.PadZeros > 64 {
+			return errAt(fmt.Sprintf("is %d; want at most 64 digits", t.PadZeros), "input", "table", "pad_zeros")
+		}
+		switch d := t.delimiter(); {
+		case d == -1:
+			return errAt(fmt.Sprintf("%q; want one character such as \",\" or \";\", or \"tab\"", t.Delimiter), "input", "table", "delimiter")
+		case d == '"' || d == '\n' || d == '\r' || d == unicode.ReplacementChar:
+			return errAt(fmt.Sprintf("%q cannot separate fields; want one character such as \",\" or \";\", or \"tab\"", t.Delimiter), "input", "table", "delimiter")
 		}
 	}
 	switch m.Rounding {
@@ -231,13 +290,14 @@ func (m *Map) check(md toml.MetaData, lines []string) error {
 	seen := map[string]int{}
 	for i, c := range m.Categories {
 		at := func(field, msg string) error {
-			return &Error{Path: m.Path, Line: categoryLine(lines, i, field), Key: fmt.Sprintf("category[%d].%s", i+1, field), Msg: msg}
+			name := fmt.Sprintf("category[%d].%s", i+1, field)
+			return &Error{Path: m.Path, Line: lines.Near(name), Key: name, Msg: msg}
 		}
 		for _, f := range []struct {
 			name  string
 			unset bool
 		}{{"key", c.Key == ""}, {"label", c.Label == ""}, {"color", c.Color == ""}, {"fields", c.Fields == nil}} {
-			if f.unset && !categoryHas(lines, i, f.name) {
+			if f.unset && !lines.Has(fmt.Sprintf("category[%d].%s", i+1, f.name)) {
 				return at(f.name, "missing")
 			}
 		}
@@ -289,69 +349,4 @@ func (m *Map) RGBA() []color.NRGBA {
 		out[i] = color.NRGBA{uint8(v >> 16), uint8(v >> 8), uint8(v), 255}
 	}
 	return out
-}
-
-// lineOf finds the line that sets key: the key's last part on a line of its
-// own table. It returns 0 when it cannot tell.
-func lineOf(lines []string, key toml.Key) int {
-	if len(key) == 0 {
-		return 0
-	}
-	table := ""
-	want := strings.Join(key[:len(key)-1], ".")
-	last := key[len(key)-1]
-	for i, l := range lines {
-		t := strings.TrimSpace(l)
-		if strings.HasPrefix(t, "[") {
-			table = strings.Trim(t, "[] ")
-			if j := strings.IndexByte(table, '#'); j >= 0 {
-				table = strings.TrimSpace(table[:j])
-			}
-			if table == strings.Join(key, ".") {
-				return i + 1
-			}
-			continue
-		}
-		if table == want && keyOnLine(t, last) {
-			return i + 1
-		}
-	}
-	return 0
-}
-
-func keyOnLine(t, key string) bool {
-	if !strings.HasPrefix(t, key) {
-		return false
-	}
-	rest := strings.TrimSpace(t[len(key):])
-	return strings.HasPrefix(rest, "=")
-}
-
-// categoryLine finds a field of the i-th [[category]] table, or the table's
-// header line when the field is absent.
-func categoryLine(lines []string, i int, field string) int {
-	n, header := -1, 0
-	for j, l := range lines {
-		t := strings.TrimSpace(l)
-		if strings.HasPrefix(t, "[") {
-			if strings.HasPrefix(t, "[[category]]") {
-				n++
-				if n == i {
-					header = j + 1
-				}
-			} else if n == i {
-				break
-			}
-			continue
-		}
-		if n == i && keyOnLine(t, field) {
-			return j + 1
-		}
-	}
-	return header
-}
-
-func categoryHas(lines []string, i int, field string) bool {
-	h := categoryLine(lines, i, "\x00")
-	return categoryLine(lines, i, field) != h
 }

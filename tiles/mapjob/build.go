@@ -300,24 +300,3 @@ func Look(m *mapfile.Map) func(z int) render.Dot {
 		return render.Dot{Diameter: d * scale, Opacity: o}
 	}
 }
-
-// ParseSize reads a byte count such as "2GiB", "512MiB", "1.5G" or
-// "1000000" (binary units for both spellings, as memory is counted).
-func ParseSize(s string) (int64, error) {
-	t := strings.TrimSpace(strings.ToUpper(s))
-	mult := 1.0
-	for _, u := range []struct {
-		suffix string
-		m      float64
-	}{{"TIB", 1 << 40}, {"GIB", 1 << 30}, {"MIB", 1 << 20}, {"KIB", 1 << 10}, {"TB", 1 << 40}, {"GB", 1 << 30}, {"MB", 1 << 20}, {"KB", 1 << 10}, {"T", 1 << 40}, {"G", 1 << 30}, {"M", 1 << 20}, {"K", 1 << 10}, {"B", 1}} {
-		if strings.HasSuffix(t, u.suffix) {
-			t, mult = strings.TrimSpace(strings.TrimSuffix(t, u.suffix)), u.m
-			break
-		}
-	}
-	v, err := strconv.ParseFloat(t, 64)
-	if err != nil || !(v > 0) || v*mult > 1<<50 {
-		return 0, fmt.Errorf("size %q: want a positive amount like 2GiB or 512MiB", s)
-	}
-	return int64(v * mult), nil
-}

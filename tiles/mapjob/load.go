@@ -55,10 +55,7 @@ func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 	}
 	layer = in.Layer
 	if t := m.Input.Table; t != nil {
-		tab, err := table.Read(m.Resolve(t.File), table.Options{
-			Key: t.Key, SkipRows: t.SkipRows, Trim: t.Trim, StripPrefix: t.StripPrefix,
-			KeepLast: t.KeepLast, NullAsZero: t.NullAsZero,
-		})
+		tab, err := table.Read(m.Resolve(t.File), t.Options())
 		if err != nil {
 			return nil, err
 		}

@@ -134,16 +134,3 @@ func TestRestyleReusesTheStore(t *testing.T) {
 		t.Error("a new seed reused the old dots")
 	}
 }
-
-func TestParseSize(t *testing.T) {
-	for in, want := range map[string]int64{"2GiB": 2 << 30, "512MiB": 512 << 20, "1.5G": 3 << 29, "1000": 1000, " 64 kb": 64 << 10} {
-		if got, err := ParseSize(in); err != nil || got != want {
-			t.Errorf("ParseSize(%q) = %d, %v; want %d", in, got, err, want)
-		}
-	}
-	for _, bad := range []string{"", "-1G", "lots", "0"} {
-		if _, err := ParseSize(bad); err == nil {
-			t.Errorf("ParseSize(%q) gave no error", bad)
-		}
-	}
-}
