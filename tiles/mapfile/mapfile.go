@@ -288,6 +288,7 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 		return &Error{Path: m.Path, Key: "category", Msg: fmt.Sprintf("%d categories; at most 63", len(m.Categories))}
 	}
 	seen := map[string]int{}
+	fieldOf := map[string]int{} // field → category that sums it
 	for i, c := range m.Categories {
 		at := func(field, msg string) error {
 			name := fmt.Sprintf("category[%d].%s", i+1, field)
@@ -316,6 +317,15 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 		}
 		if len(c.Fields) == 0 {
 			return at("fields", "is empty; list the count fields summed for this category")
+		}
+		for _, f := range c.Fields {
+			if j, dup := fieldOf[f]; dup {
+				if j == i {
+					return at("fields", fmt.Sprintf("lists %q twice; its people would be drawn twice", f))
+				}
+				return at("fields", fmt.Sprintf("%q is also a field of category %d; its people would be drawn twice", f, j+1))
+			}
+			fieldOf[f] = i
 		}
 	}
 	return nil

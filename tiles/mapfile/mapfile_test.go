@@ -46,6 +46,8 @@ func TestParseErrorsNameFileLineAndKey(t *testing.T) {
 		{"syntax", "title = \"a\n" + base, `m.toml:1: key title: strings cannot contain newlines`},
 		{"missing input file", "[input]\nid = \"x\"\n" + base[len("[input]\nfile = \"a.geojson\"\n"):], `m.toml:1: key input.file: missing: name the polygon file, e.g. [input] file = "areas.geojson"`},
 		{"missing key in array of tables", base + "\n[[category]]\nkey = \"b\"\nlabel = \"B\"\nfields = [\"y\"]\n", `m.toml:10: key category[2].color: missing`},
+		{"field twice in a category", strings.Replace(base, `fields = ["x"]`, `fields = ["x", "x"]`, 1), `m.toml:8: key category[1].fields: lists "x" twice; its people would be drawn twice`},
+		{"field in two categories", base + strings.Replace(second, `fields = ["y"]`, `fields = ["y", "x"]`, 1), `m.toml:14: key category[2].fields: "x" is also a field of category 1; its people would be drawn twice`},
 		{"bad value in array of tables", base + strings.Replace(second, "#E69F00", "orange", 1), `m.toml:13: key category[2].color: "orange" is not a colour; want #rrggbb`},
 		{"bad value dotted", "dots.opacity = 2\n" + base, `m.toml:1: key dots.opacity: wants an opacity above 0 and at most 1`},
 		{"bad value inline", "dots = { diameter = 3, min_diameter = 5 }\n" + base, `m.toml:1: key dots.min_diameter: wants a size above 0 and at most dots.diameter`},

@@ -70,6 +70,12 @@ func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 				if header[f] && !seen[f] {
 					cols = append(cols, f)
 					seen[f] = true
+					for i := range layer.Features {
+						if _, shadow := layer.Features[i].Props[f]; shadow && f != m.Input.ID {
+							return nil, fmt.Errorf("%s: category field %q is both a column of %s and a property of the areas in %s (feature %d has it); rename one of them, so it is clear whose counts are drawn",
+								m.Path, f, t.File, m.Input.File, layer.Features[i].Index)
+						}
+					}
 				}
 			}
 		}

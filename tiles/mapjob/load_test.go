@@ -3,6 +3,9 @@ package mapjob
 import (
 	"context"
 	"math"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/stipple-maps/stipple/tiles/dotstore"
@@ -133,5 +136,21 @@ func TestExactRoundingGivesRoundedTotals(t *testing.T) {
 		if want := int(math.Round(people / 7)); drawn != want {
 			t.Errorf("category %d: %d dots; exact mode wants round(%v/7) = %d", k, drawn, people, want)
 		}
+	}
+}
+
+// TestTableColumnShadowingAreaFieldIsAnError: a count column of the table
+// with the name of a property the areas already have would replace the
+// areas' values silently; it is refused with both files named.
+func TestTableColumnShadowingAreaFieldIsAnError(t *testing.T) {
+	m := smallWithMask(t)
+	dir := filepath.Dir(m.Path)
+	if err := os.WriteFile(filepath.Join(dir, "counts.csv"), []byte("code,north\n007,1\n008,2\n010,3\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	m.Input.Table = &mapfile.Table{File: "counts.csv", Key: "code"}
+	_, err := Load(m, nil)
+	if err == nil || !strings.Contains(err.Error(), `"north" is both a column of counts.csv and a property of the areas in areas.geojson`) {
+		t.Fatalf("got %v; want the shadowing refused", err)
 	}
 }
