@@ -161,11 +161,17 @@ func FormatCount(v float64) string {
 		sign, v = "-", -v
 	}
 	// Round to hundredths first, so 0.999 becomes 1, not "0" and ".1".
-	cents := math.Round(v * 100)
-	if cents >= 1<<62 {
+	if v >= 1<<62 {
 		return sign + strconv.FormatFloat(v, 'g', 6, 64)
 	}
-	whole, frac := int64(cents)/100, int64(cents)%100
+	var whole, frac int64
+	if v >= 1e12 {
+		// Past a trillion a float64 has no hundredths to show.
+		whole = int64(math.Round(v))
+	} else {
+		cents := int64(math.Round(v * 100))
+		whole, frac = cents/100, cents%100
+	}
 	s := strconv.FormatInt(whole, 10)
 	var b strings.Builder
 	b.WriteString(sign)

@@ -182,6 +182,9 @@ func preparePrint(ctx context.Context, m *mapfile.Map, o *printOptions) (*mapjob
 	}
 	if o.perDot > 0 {
 		m.PeoplePerDot = o.perDot
+		if err := m.CheckPerDot(); err != nil {
+			return nil, usageError{"--per-dot " + err.Error()}
+		}
 	}
 	size, err := page.ParseSize(o.size)
 	if err != nil {

@@ -152,6 +152,9 @@ func (o *overrides) apply(m *mapfile.Map) error {
 	}
 	if o.perDot > 0 {
 		m.PeoplePerDot = o.perDot
+		if err := m.CheckPerDot(); err != nil {
+			return usageError{"--per-dot " + err.Error()}
+		}
 	}
 	if o.minZoom >= 0 {
 		m.Tiles.MinZoom = o.minZoom

@@ -30,6 +30,14 @@ type Map struct {
 	// up or down at random, unbiased) or "exact" (each category gets exactly
 	// round(total/N) dots, shared out by largest remainders).
 	Rounding string `toml:"rounding"`
+	// MaxDots stops a map that would place more dots than this before any
+	// work starts (a mistyped people_per_dot or a sentinel count); raise
+	// it for a bigger map.
+	MaxDots int64 `toml:"max_dots"`
+	// AllowOutliers lets a count cell far above the rest of its column
+	// through (see mapjob's outlier check); without it such a cell stops
+	// the run with its row named.
+	AllowOutliers bool `toml:"allow_outliers"`
 
 	Input      Input      `toml:"input"`
 	Tiles      Tiles      `toml:"tiles"`
@@ -132,11 +140,21 @@ type Category struct {
 // Defaults fill keys a map file may leave out.
 var Defaults = Map{
 	PeoplePerDot: 1,
+	MaxDots:      DefaultMaxDots,
 	Seed:         1,
 	Out:          "out",
 	Tiles:        Tiles{MinZoom: 0, MaxZoom: 12, Size: 256},
 	Dots:         Dots{Diameter: 3, MinDiameter: 0.6, Opacity: 0.9},
 }
+
+// DefaultMaxDots is max_dots when a map file does not set it: two billion
+// dots, six times a whole nation of 300 million people at one person per
+// dot, about 32 GB of sorting on disk.
+const DefaultMaxDots = 2_000_000_000
+
+// MinPeoplePerDot is the smallest people_per_dot: a dot for less than a
+// hundredth of a person would be written "1 dot = 0 people".
+const MinPeoplePerDot = 0.01
 
 // MaxHiDPIDiameter is the widest dot a map with @2x tiles may ask for:
 // @2x tiles draw it at twice the pixels, and the renderer's stamps are at
@@ -263,8 +281,11 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 	default:
 		return errAt(fmt.Sprintf("%q; want \"random\" or \"exact\"", m.Rounding), "rounding")
 	}
-	if !(m.PeoplePerDot > 0) {
-		return errAt(fmt.Sprintf("is %v; want a positive number of people per dot", m.PeoplePerDot), "people_per_dot")
+	if err := m.CheckPerDot(); err != nil {
+		return errAt(err.Error(), "people_per_dot")
+	}
+	if m.MaxDots < 1 {
+		return errAt(fmt.Sprintf("is %d; want a whole number of dots from 1 up", m.MaxDots), "max_dots")
 	}
 	if err := m.CheckZooms(); err != nil {
 		return errAt(err.Error(), "tiles")
@@ -327,6 +348,14 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 			}
 			fieldOf[f] = i
 		}
+	}
+	return nil
+}
+
+// CheckPerDot checks people_per_dot (also after a flag overrides it).
+func (m *Map) CheckPerDot() error {
+	if !(m.PeoplePerDot >= MinPeoplePerDot) || math.IsInf(m.PeoplePerDot, 0) {
+		return fmt.Errorf("is %v; want a number of people per dot of at least %v", m.PeoplePerDot, MinPeoplePerDot)
 	}
 	return nil
 }

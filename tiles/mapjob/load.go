@@ -4,13 +4,17 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
+	"math"
 	"os"
+	"slices"
+	"strings"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/geo/table"
+	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
@@ -115,6 +119,9 @@ func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			in.Counts[i][k] = n
 		}
 	}
+	if err := checkScale(m, layer, in.Counts); err != nil {
+		return nil, err
+	}
 	masks, n, maskHash, err := loadMasks(m)
 	if err != nil {
 		return nil, err
@@ -196,4 +203,59 @@ func InsideAny(layer *geo.Layer, idx []int) func(lon, lat float64) bool {
 		}
 		return false
 	}
+}
+
+// Outlier rule (common practice for catching sentinels such as 999999999
+// and slipped decimal points, no published source): a cell is an outlier
+// when it holds more than outlierFloor people and more than outlierRatio
+// times the median of its category's non-empty cells, or more than
+// outlierCeiling people whatever the others hold (more than any nation).
+const (
+	outlierFloor   = 1e6
+	outlierRatio   = 1e4
+	outlierCeiling = 2e9
+)
+
+// checkScale stops a map that would cost hours for a wrong reason before
+// any work starts: more dots than max_dots, or a count cell that is an
+// outlier by orders of magnitude (unless allow_outliers is set).
+func checkScale(m *mapfile.Map, layer *geo.Layer, counts [][]float64) error {
+	for k, c := range m.Categories {
+		if m.AllowOutliers {
+			break
+		}
+		var vals []float64
+		for _, row := range counts {
+			if row[k] > 0 {
+				vals = append(vals, row[k])
+			}
+		}
+		if len(vals) == 0 {
+			continue
+		}
+		slices.Sort(vals)
+		median := vals[len(vals)/2]
+		if vals[len(vals)-1] <= outlierFloor {
+			continue
+		}
+		for i, row := range counts {
+			v := row[k]
+			if v > outlierCeiling || (v > outlierFloor && v > outlierRatio*median) {
+				f := layer.Features[i]
+				return fmt.Errorf("%s: feature %d (id %q), category %q (fields %s): %s people, %s times the median area's %s; a placeholder or a typo? Fix the count, or set allow_outliers = true in the map file",
+					layer.Path, f.Index, f.ID, c.Key, strings.Join(c.Fields, "+"), render.FormatCount(v), render.FormatCount(math.Round(v/median)), render.FormatCount(median))
+			}
+		}
+	}
+	people := 0.0
+	for _, row := range counts {
+		for _, v := range row {
+			people += v
+		}
+	}
+	if dots := people / m.PeoplePerDot; dots > float64(m.MaxDots) {
+		return fmt.Errorf("%s: key max_dots: this map would place about %s dots (%s people at %s), more than max_dots = %s; check people_per_dot and the counts, or raise max_dots",
+			m.Path, render.FormatCount(math.Round(dots)), render.FormatCount(math.Round(people)), render.DotNote(m.PeoplePerDot), render.FormatCount(float64(m.MaxDots)))
+	}
+	return nil
 }

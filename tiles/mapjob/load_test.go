@@ -154,3 +154,22 @@ func TestTableColumnShadowingAreaFieldIsAnError(t *testing.T) {
 		t.Fatalf("got %v; want the shadowing refused", err)
 	}
 }
+
+// TestAbsurdScaleStopsBeforeWork: a count cell of 1e15 (a sentinel or a
+// slipped decimal) and a map that would place more dots than max_dots stop
+// in Load, before any dot is placed, naming the row or the key.
+func TestAbsurdScaleStopsBeforeWork(t *testing.T) {
+	m := smallWithMask(t)
+	dir := filepath.Dir(m.Path)
+	b, _ := os.ReadFile(filepath.Join(dir, "areas.geojson"))
+	os.WriteFile(filepath.Join(dir, "areas.geojson"), []byte(strings.Replace(string(b), `"north": 15,`, `"north": 1e15,`, 1)), 0o644)
+	_, err := Load(m, nil)
+	if err == nil || !strings.Contains(err.Error(), `feature 1 (id "008"), category "n"`) || !strings.Contains(err.Error(), "allow_outliers") {
+		t.Fatalf("1e15 cell: %v; want the row named and allow_outliers suggested", err)
+	}
+	m.AllowOutliers = true
+	_, err = Load(m, nil)
+	if err == nil || !strings.Contains(err.Error(), "key max_dots") || !strings.Contains(err.Error(), "about 200,000,000,001,070 dots (1,000,000,000,005,351 people") {
+		t.Fatalf("1e15 people at 5 a dot: %v; want max_dots named with the estimate", err)
+	}
+}
