@@ -6,10 +6,9 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
-	"strconv"
-	"strings"
 
 	"github.com/stipple-maps/stipple/tiles/batch"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // cmdBatch is "stipple batch FILE": many extents from one sampling.
@@ -29,7 +28,7 @@ func cmdBatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var mem int64
 	if *memory != "" {
-		if mem, err = parseMemory(*memory); err != nil {
+		if mem, err = mapjob.ParseSize(*memory); err != nil {
 			return usageError{"--memory: " + err.Error()}
 		}
 	}
@@ -54,25 +53,4 @@ func cmdBatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			len(failed), len(rep.Results), filepath.Join(f.Out, batch.SummaryCSV))
 	}
 	return nil
-}
-
-// parseMemory reads a byte count such as "2GiB", "512MiB", "1.5G" or
-// "1000000" (binary units for both spellings, as memory is counted).
-func parseMemory(s string) (int64, error) {
-	t := strings.TrimSpace(s)
-	mult := 1.0
-	for _, u := range []struct {
-		suffix string
-		m      float64
-	}{{"KiB", 1 << 10}, {"MiB", 1 << 20}, {"GiB", 1 << 30}, {"TiB", 1 << 40}, {"K", 1 << 10}, {"M", 1 << 20}, {"G", 1 << 30}, {"T", 1 << 40}, {"B", 1}} {
-		if strings.HasSuffix(t, u.suffix) {
-			t, mult = strings.TrimSpace(strings.TrimSuffix(t, u.suffix)), u.m
-			break
-		}
-	}
-	v, err := strconv.ParseFloat(t, 64)
-	if err != nil || !(v > 0) || v*mult > 1<<50 {
-		return 0, fmt.Errorf("%q: want a size such as 2GiB or 512MiB", s)
-	}
-	return int64(v * mult), nil
 }
