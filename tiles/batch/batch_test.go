@@ -188,15 +188,7 @@ func TestOverlappingExtents(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		in, err := mapjob.Load(m, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		pl, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{Workers: 2})
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer pl.Store.Close()
+		_, pl := placeWhole(t, m)
 		ref := t.TempDir()
 		if _, err := tiles.Write(context.Background(), pl.Store, tiles.Options{Dir: ref, MinZoom: 9, MaxZoom: 14,
 			TileSize: m.Tiles.Size, Colors: m.RGBA(), Look: mapjob.Look(m), Workers: 2}); err != nil {

@@ -285,15 +285,7 @@ func TestWholeMapExtentIsTheRender(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		in, err := mapjob.Load(m, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		pl, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{Workers: 2})
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer pl.Store.Close()
+		in, pl := placeWhole(t, m)
 		margin, _ := page.ParseLength("12mm")
 		pg, err := mapjob.Print(context.Background(), in, m, pl, mapjob.PrintOptions{
 			Size: page.A5, DPI: 72, Margin: margin, Projection: "auto", DotMM: 0.35,
@@ -326,4 +318,20 @@ func readJSON(t *testing.T, path string) map[string]any {
 		t.Fatal(err)
 	}
 	return v
+}
+
+// placeWhole loads and places the whole map m as "stipple render" does
+// (no state folder); the store is closed when the test ends.
+func placeWhole(t *testing.T, m *mapfile.Map) (*mapjob.Input, *mapjob.Placed) {
+	t.Helper()
+	in, err := mapjob.Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pl, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { pl.Store.Close() })
+	return in, pl
 }
