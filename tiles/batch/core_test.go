@@ -335,3 +335,49 @@ func placeWhole(t *testing.T, m *mapfile.Map) (*mapjob.Input, *mapjob.Placed) {
 	t.Cleanup(func() { pl.Store.Close() })
 	return in, pl
 }
+
+// TestNearSamplingIsKeptWhenOneExtentChanges: with sample = "near" the
+// placed areas are those near every extent of the dot value, not only the
+// extents a run redraws, so retitling one extent reuses the dots and the
+// tile cache.
+func TestNearSamplingIsKeptWhenOneExtentChanges(t *testing.T) {
+	dir := t.TempDir()
+	smallMap(t, dir)
+	body := `map = "map.toml"
+out = "batch"
+sample = "near"
+
+[[extent]]
+slug = "west"
+title = "West"
+ids = ["007"]
+
+[[extent]]
+slug = "south"
+title = "South"
+ids = ["009"]
+`
+	run := func(body string) *Report {
+		t.Helper()
+		path := filepath.Join(dir, "near.toml")
+		writeFile(t, path, body)
+		f, err := Read(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rep, err := Run(context.Background(), f, Options{Workers: 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return rep
+	}
+	first := run(body)
+	if first.Placed != 1 || len(first.Failed()) != 0 || first.TilesDrawn == 0 {
+		t.Fatalf("first run: %d placed, %d tiles drawn, failed %+v", first.Placed, first.TilesDrawn, first.Failed())
+	}
+	rep := run(strings.Replace(body, `title = "South"`, `title = "South (revised)"`, 1))
+	if rep.Results[0].Status != Skipped || rep.Results[1].Status != Done || rep.Reused != 1 || rep.Placed != 0 || rep.TilesDrawn != 0 {
+		t.Errorf("after retitling south: %s, %s; %d reused, %d placed, %d tiles drawn; want west kept, south redone from the kept dots and tiles",
+			rep.Results[0].Status, rep.Results[1].Status, rep.Reused, rep.Placed, rep.TilesDrawn)
+	}
+}

@@ -445,12 +445,12 @@ func extentFingerprint(f *File, e *Extent, in *mapjob.Input) string {
 	}
 	if f.Sample == "near" {
 		// The store holds the areas near every extent of this dot value,
-		// and low-zoom tiles show them all: the others are part of this
-		// extent's definition.
+		// and low-zoom tiles show them all: the others' areas and margins
+		// (not their titles or zooms) are part of this extent's definition.
 		fmt.Fprintf(h, "sample=near\n")
 		for _, o := range f.Extents {
 			if o.PeoplePerDot == e.PeoplePerDot {
-				d, _ := json.Marshal(o)
+				d, _ := json.Marshal([]any{o.Select, o.BBox, o.IDs, o.Field, o.Values, o.Margin})
 				fmt.Fprintf(h, "%s\n", d)
 			}
 		}
