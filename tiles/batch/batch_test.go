@@ -188,16 +188,9 @@ func TestOverlappingExtents(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		layer, counts, err := mapjob.Load(m, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		store, _, err := mapjob.Place(layer, counts, m, 2)
-		if err != nil {
-			t.Fatal(err)
-		}
+		_, pl := placeWhole(t, m)
 		ref := t.TempDir()
-		if _, err := tiles.Write(context.Background(), store, tiles.Options{Dir: ref, MinZoom: 9, MaxZoom: 14,
+		if _, err := tiles.Write(context.Background(), pl.Store, tiles.Options{Dir: ref, MinZoom: 9, MaxZoom: 14,
 			TileSize: m.Tiles.Size, Colors: m.RGBA(), Look: mapjob.Look(m), Workers: 2}); err != nil {
 			t.Fatal(err)
 		}
@@ -465,7 +458,7 @@ max_zoom = 11
 	}
 	again := run(body, Options{})
 	if got := statuses(again); got != "a:skipped b:skipped" || again.Placed+again.Reused != 0 {
-		t.Errorf("unchanged rerun: %s, %d placed, %d reused; want both skipped without reading the input", got, again.Placed, again.Reused)
+		t.Errorf("unchanged rerun: %s, %d placed, %d reused; want both skipped without placing dots", got, again.Placed, again.Reused)
 	}
 	if again.Results[0].People["orvesh"] != first.Results[0].People["orvesh"] || again.Results[0].Tiles != first.Results[0].Tiles {
 		t.Errorf("skipped extent's row differs from the run that made it")

@@ -39,9 +39,19 @@ type cacheManifest struct {
 
 const cacheManifestName = "done.json"
 
-// openCache opens (or starts) the cache in dir for fingerprint fp; a cache
-// made for another fingerprint is removed.
-func openCache(dir, fp string, size int, hidpi bool, colors []color.NRGBA, look func(int) render.Dot) (*tileCache, error) {
+// openCache opens (or starts) the cache for fingerprint fp (from
+// mapjob.LookFingerprint) in the sampling folder parent; caches made for
+// other fingerprints are removed.
+func openCache(parent, fp string, size int, hidpi bool, colors []color.NRGBA, look func(int) render.Dot) (*tileCache, error) {
+	dir := filepath.Join(parent, "tiles-"+fp[:16])
+	old, _ := filepath.Glob(filepath.Join(parent, "tiles-*"))
+	for _, o := range old {
+		if o != dir {
+			if err := os.RemoveAll(o); err != nil {
+				return nil, fmt.Errorf("batch: tile cache: %w", err)
+			}
+		}
+	}
 	c := &tileCache{dir: dir, fp: fp, size: size, hidpi: hidpi, colors: colors, look: look, done: map[int]map[[2]int]bool{}}
 	data, err := os.ReadFile(filepath.Join(dir, cacheManifestName))
 	var man cacheManifest

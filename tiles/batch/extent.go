@@ -15,6 +15,7 @@ import (
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // Files an extent's folder holds besides the tiles and the viewer.
@@ -40,7 +41,7 @@ type extentInfo struct {
 }
 
 // finish writes one extent's folder from the cache and the sampling.
-func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *mapjob.Input, p *placed,
+func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *mapjob.Input, s *sampling,
 	m *mapfile.Map, cache *tileCache, colors []color.NRGBA, look func(int) render.Dot, printSlots chan struct{}, cats []string) error {
 	start := time.Now()
 	e := j.e
@@ -77,34 +78,30 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *ma
 	if st.Tiles == 0 {
 		return errEmpty
 	}
-	tot := Sum(in.Layer, j.picked.Features, in.Counts, p.dots, p.lost, p.problems, e.PeoplePerDot)
+	// The extent's own areas, counted as every command counts them.
+	tot := mapjob.TallyAreas(in, m, s.Outcomes, j.picked.Features)
 	me := *m
 	me.Title = e.Title
-	me.PeoplePerDot = e.PeoplePerDot
 	me.Tiles.MinZoom, me.Tiles.MaxZoom = e.MinZoom, e.MaxZoom
-	sum := &mapjob.Summary{Features: len(j.picked.Features), People: tot.People, Dots: tot.Dots, NotDrawn: tot.NotDrawn,
-		Problems: tot.Problems, Tiles: st, Bounds: j.picked.Bound}
+	sum := &mapjob.Summary{Tally: tot, Tiles: st}
+	// The viewer frames the extent's box (or its areas' bound), whose
+	// tiles the folder holds.
+	sum.Bounds = j.picked.Bound
 	md := mapjob.Metadata(&me, sum)
-	if err := mapjob.WriteLegends(dir, md, colors); err != nil {
-		return err
-	}
-	if err := tiles.WriteMetadata(dir, md); err != nil {
-		return err
-	}
-	if err := tiles.WriteViewer(dir, md); err != nil {
+	if err := mapjob.PutFurniture(ctx, sink.NewDir(dir), md, colors); err != nil {
 		return err
 	}
 	if err := ctx.Err(); err != nil {
 		return err
 	}
-	if err := writeThumb(filepath.Join(dir, ThumbFile), p.store, j.picked, in.Layer, e, colors, look, m.Tiles.Size); err != nil {
+	if err := writeThumb(filepath.Join(dir, ThumbFile), s.Store, j.picked, in.Layer, e, colors, look, m.Tiles.Size); err != nil {
 		return err
 	}
 	var prints []string
 	if e.Print != nil {
 		printSlots <- struct{}{}
 		var err error
-		prints, err = writePrint(dir, e, j.picked, in, p, &me, colors, tot)
+		prints, err = writePrint(ctx, dir, e, j.picked, in, s.Placed, &me)
 		<-printSlots
 		if err != nil {
 			return fmt.Errorf("print: %w", err)

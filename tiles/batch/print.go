@@ -1,24 +1,17 @@
 package batch
 
 import (
+	"context"
 	"fmt"
-	"image/color"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
 
-	"github.com/paulmach/orb"
-	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
-	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
-
-// PrintCaution is printed on every page: the map caution and a word on
-// what maps of groups can be used for.
-const PrintCaution = render.Caution + " A map of where groups of people live can be misused to single them out; share it with care."
 
 func parsePage(p Print) (page.Size, error) {
 	size, err := page.ParseSize(p.Page)
@@ -34,71 +27,25 @@ func parsePage(p Print) (page.Size, error) {
 	return size, nil
 }
 
-// writePrint lays out the extent's page with render/page: the extent's box
-// in the frame, every dot of the store inside the frame (the tiles' dots,
-// neighbours' included), and a legend with the extent's own totals. It
-// writes print.png and/or print.pdf and returns their names.
-func writePrint(dir string, e *Extent, p *Picked, in *mapjob.Input, pl *placed, m *mapfile.Map, colors []color.NRGBA, tot Totals) ([]string, error) {
-	ps := *e.Print
-	size, err := parsePage(ps)
+// writePrint lays out the extent's page with mapjob.Print, as "stipple
+// print" does: the extent's own areas and their dots, framed on its box
+// (bbox extents) or its areas, with its rule as a footnote. It writes
+// print.png and/or print.pdf into dir and returns their names.
+func writePrint(ctx context.Context, dir string, e *Extent, p *Picked, in *mapjob.Input, pl *mapjob.Placed, m *mapfile.Map) ([]string, error) {
+	opt, err := printOptions(e, p)
 	if err != nil {
 		return nil, err
 	}
-	margin, err := page.ParseLength(ps.Margin)
-	if err != nil {
-		return nil, err
-	}
-	pr, err := page.Projection(ps.Projection, p.Bound)
-	if err != nil {
-		return nil, err
-	}
-	total := 0.0
-	for _, v := range tot.People {
-		total += v
-	}
-	spec := page.Spec{
-		Size: size, DPI: ps.DPI, Margin: margin,
-		Title:    e.Title,
-		Subtitle: fmt.Sprintf("%s people in %s areas", render.FormatCount(total), render.FormatCount(float64(len(p.Features)))),
-		Note:     render.DotNote(e.PeoplePerDot), Caution: PrintCaution, Credit: m.Credit,
-		Projection: pr, Extent: p.Bound, DotMM: ps.DotMM, Opacity: m.Dots.Opacity,
-	}
-	var keep func(lon, lat float64) bool
-	if e.Select == ByBox {
-		spec.Footnotes = append(spec.Footnotes, "People: "+p.Rule+". Dots: every dot inside the frame, those of areas whose centre lies outside the box included.")
-	} else {
-		// Like the tiles' legend, the page shows the extent's own areas.
-		keep = mapjob.InsideAny(in.Layer, p.Features)
-		spec.Footnotes = append(spec.Footnotes, "People and dots: "+p.Rule+".")
-	}
-	if tot.NotDrawn > 0 {
-		spec.Footnotes = append(spec.Footnotes, fmt.Sprintf("Not drawn: %s people, in areas too small or too thin to hold their dots.", render.FormatCount(tot.NotDrawn)))
-	} else {
-		spec.Footnotes = append(spec.Footnotes, "Not drawn: 0 people; every dot found room in its area.")
-	}
-	for k, c := range m.Categories {
-		spec.Entries = append(spec.Entries, page.Entry{Label: c.Label, Color: colors[k], People: tot.People[k]})
-	}
-	if ps.Outlines {
-		spec.Outlines = []orb.MultiPolygon{}
-		for _, i := range p.Features {
-			spec.Outlines = append(spec.Outlines, in.Layer.Features[i].Geometry)
-		}
-	}
-	lay, err := page.NewLayout(spec)
-	if err != nil {
-		return nil, err
-	}
-	pg, err := lay.Place(frameDots(pl.store, lay.FrameBound(), keep))
+	pg, err := mapjob.Print(ctx, in, m, pl, opt)
 	if err != nil {
 		return nil, err
 	}
 	var names []string
-	for _, f := range ps.Formats {
+	for _, f := range e.Print.Formats {
 		name := "print." + f
-		write := pg.WritePNG
+		write := pg.Page.WritePNG
 		if f == "pdf" {
-			write = func(w io.Writer) error { return pg.WritePDF(w, page.DotsAuto) }
+			write = func(w io.Writer) error { return pg.Page.WritePDF(w, page.DotsAuto) }
 		}
 		if err := writeTo(filepath.Join(dir, name), write); err != nil {
 			return nil, err
@@ -108,35 +55,25 @@ func writePrint(dir string, e *Extent, p *Picked, in *mapjob.Input, pl *placed, 
 	return names, nil
 }
 
-// frameDots yields the store's dots inside lon/lat box b (the frame's
-// box), at their world cells' centres: the inverse of Web Mercator (IOGP
-// GN7-2, method 1024: φ = π/2 − 2 atan(e^(−N/R)), λ = E/R). It reads only
-// the tiles under the box, at a zoom where they are few. keep, when not
-// nil, picks the dots to show.
-func frameDots(s *dotstore.Store, b orb.Bound, keep func(lon, lat float64) bool) page.DotSource {
-	return func(yield func(lon, lat float64, cat int) bool) {
-		if b.Min[0] < -180 || b.Max[0] > 180 {
-			b.Min[0], b.Max[0] = -180, 180 // across the antimeridian: read every column
-		}
-		z := 0
-		for z < 16 && len(Cover(b, z+1)) <= 64 {
-			z++
-		}
-		keys := s.Keys()
-		for _, t := range Cover(b, z) {
-			first, last := dotstore.TileRange(z, t[0], t[1])
-			for _, k := range rangeOf(keys, first, last) {
-				x, y, cat := dotstore.Split(k)
-				lon, lat := dotstore.CellLonLat(x, y)
-				if keep != nil && !keep(lon, lat) {
-					continue
-				}
-				if !yield(lon, lat, cat) {
-					return
-				}
-			}
-		}
+// printOptions turns the extent's [print] settings and picked areas into
+// mapjob.PrintOptions.
+func printOptions(e *Extent, p *Picked) (mapjob.PrintOptions, error) {
+	ps := *e.Print
+	size, err := parsePage(ps)
+	if err != nil {
+		return mapjob.PrintOptions{}, err
 	}
+	margin, err := page.ParseLength(ps.Margin)
+	if err != nil {
+		return mapjob.PrintOptions{}, err
+	}
+	opt := mapjob.PrintOptions{Size: size, DPI: ps.DPI, Margin: margin, Projection: ps.Projection, DotMM: ps.DotMM,
+		Outlines: ps.Outlines, Areas: p.Features, Rule: p.Rule}
+	if e.Select == ByBox {
+		b := p.Bound
+		opt.Extent = &b
+	}
+	return opt, nil
 }
 
 func writeTo(path string, write func(io.Writer) error) error {

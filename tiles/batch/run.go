@@ -13,7 +13,6 @@ import (
 	"path/filepath"
 	"runtime"
 	"runtime/debug"
-	"sort"
 	"strings"
 	"sync"
 	"time"
@@ -133,6 +132,10 @@ type job struct {
 // Run renders every extent of f into f.Out. Failing extents are reported in
 // the Report, not as an error; the error is for what stops the whole batch
 // (unreadable input, unwritable output, cancellation).
+//
+// The input is read (mapjob.Load) on every run, for its fingerprint: an
+// extent is kept from an earlier run only when the areas, counts, masks
+// and sampling settings it was drawn from are still the same.
 func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	start := time.Now()
 	workers := opt.Workers
@@ -151,11 +154,28 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	}
 	m := f.Map
 	cats := categoryKeys(m)
-	inputs := inputStats(m)
+	// One input per people-per-dot value: the dots each area gets, and so
+	// the fingerprint, depend on it.
+	inputs := map[float64]*mapjob.Input{}
+	for _, e := range f.Extents {
+		if _, ok := inputs[e.PeoplePerDot]; ok {
+			continue
+		}
+		mg := *m
+		mg.PeoplePerDot = e.PeoplePerDot
+		in, err := mapjob.Load(&mg, nil)
+		if err != nil {
+			return nil, err
+		}
+		if len(inputs) == 0 {
+			log.printf("batch: read %d areas from %s", len(in.Layer.Features), in.Layer.Path)
+		}
+		inputs[e.PeoplePerDot] = in
+	}
 	jobs := make([]*job, len(f.Extents))
 	var todo []*job
 	for i, e := range f.Extents {
-		j := &job{e: e, fp: extentFingerprint(f, e, inputs)}
+		j := &job{e: e, fp: extentFingerprint(f, e, inputs[e.PeoplePerDot])}
 		j.res = Result{Slug: e.Slug, Title: e.Title, Dir: e.Slug, PerDot: e.PeoplePerDot, MinZoom: e.MinZoom, MaxZoom: e.MaxZoom}
 		jobs[i] = j
 		if !opt.Force {
@@ -170,7 +190,7 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	log.printf("batch: %d extents in %s; %d complete from an earlier run, %d to draw", len(jobs), f.Path, len(jobs)-len(todo), len(todo))
 
 	if len(todo) > 0 {
-		if err := runJobs(ctx, f, todo, rep, workers, memory, log, cats); err != nil {
+		if err := runJobs(ctx, f, todo, inputs, rep, workers, memory, log, cats); err != nil {
 			return nil, err
 		}
 	}
@@ -197,18 +217,13 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	return rep, nil
 }
 
-func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int, memory int64, log *progress, cats []string) error {
+func runJobs(ctx context.Context, f *File, todo []*job, inputs map[float64]*mapjob.Input, rep *Report, workers int, memory int64, log *progress, cats []string) error {
 	m := f.Map
-	in, err := mapjob.LoadInput(m, nil)
-	if err != nil {
-		return err
-	}
-	log.printf("batch: read %d areas from %s", len(in.Layer.Features), in.Layer.Path)
 	// Pick each extent's areas; a failure ends that extent only.
 	groups := map[float64][]*job{}
 	var perDots []float64
 	for _, j := range todo {
-		p, err := Pick(j.e, in.Layer)
+		p, err := Pick(j.e, inputs[j.e.PeoplePerDot].Layer)
 		if err != nil {
 			j.fail(fmt.Errorf("extent %q (%s:%d): %w", j.e.Slug, f.Path, j.e.Line, err), log)
 			continue
@@ -222,36 +237,30 @@ func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int
 		}
 		groups[j.e.PeoplePerDot] = append(groups[j.e.PeoplePerDot], j)
 	}
-	// The base map's dot value first: it needs no second reading.
-	sort.SliceStable(perDots, func(a, b int) bool { return perDots[a] == m.PeoplePerDot && perDots[b] != m.PeoplePerDot })
 	colors := m.RGBA()
 	look := mapjob.Look(m)
 	for _, pd := range perDots {
 		mg := *m
 		mg.PeoplePerDot = pd
-		gin := in
-		if pd != m.PeoplePerDot {
-			if gin, err = mapjob.LoadInput(&mg, nil); err != nil {
-				return err
-			}
-		}
+		in := inputs[pd]
+		var areas []int
 		if f.Sample == "near" {
-			gin = nearInput(gin, groups[pd])
+			areas = nearAreas(f, pd, in.Layer)
 		}
-		p, err := place(ctx, storeDir(f.Out, pd), gin, &mg, workers, memory)
+		s, err := place(ctx, storeDir(f.Out, pd), in, &mg, areas, f.HiDPI, workers, memory)
 		if err != nil {
 			return err
 		}
-		if p.reused {
+		if s.Reused {
 			rep.Reused++
-			log.printf("batch: reusing %d dots (%s) from an earlier run", p.store.Len(), render.DotNote(pd))
+			log.printf("batch: reusing %d dots (%s) from an earlier run (same areas, counts, masks, categories, seed and people per dot)", s.Store.Len(), render.DotNote(pd))
 		} else {
 			rep.Placed++
-			log.printf("batch: placed %d dots (%s) in %s", p.store.Len(), render.DotNote(pd), p.elapsed.Round(time.Millisecond))
+			log.printf("batch: placed %d dots (%s) in %s", s.Store.Len(), render.DotNote(pd), s.elapsed.Round(time.Millisecond))
 		}
-		rep.PlaceTime += p.elapsed
-		err = drawGroup(ctx, f, groups[pd], gin, p, &mg, colors, look, rep, workers, memory, log, cats)
-		p.store.Close()
+		rep.PlaceTime += s.elapsed
+		err = drawGroup(ctx, f, groups[pd], in, s, &mg, colors, look, rep, workers, memory, log, cats)
+		s.Store.Close()
 		if err != nil {
 			return err
 		}
@@ -261,11 +270,9 @@ func runJobs(ctx context.Context, f *File, todo []*job, rep *Report, workers int
 
 // drawGroup renders the tiles of one sampling's extents into the cache and
 // then finishes the extents in parallel.
-func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, p *placed, m *mapfile.Map,
+func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, s *sampling, m *mapfile.Map,
 	colors []color.NRGBA, look func(int) render.Dot, rep *Report, workers int, memory int64, log *progress, cats []string) error {
-	dir := storeDir(f.Out, m.PeoplePerDot)
-	tfp := tileFingerprint(p.fp, m.Tiles.Size, f.HiDPI, colors, look)
-	cache, err := openCache(filepath.Join(dir, "tiles-"+tfp[:16]), tfp, m.Tiles.Size, f.HiDPI, colors, look)
+	cache, err := openCache(storeDir(f.Out, m.PeoplePerDot), s.tileFP, m.Tiles.Size, f.HiDPI, colors, look)
 	if err != nil {
 		return err
 	}
@@ -290,7 +297,7 @@ func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, p *
 		}
 		minZ, maxZ = min(minZ, j.e.MinZoom), max(maxZ, j.e.MaxZoom)
 	}
-	keys := p.store.Keys()
+	keys := s.Store.Keys()
 	perTile := map[int]time.Duration{}
 	fresh := map[int]map[[2]int]bool{}
 	tileStart := time.Now()
@@ -349,7 +356,7 @@ func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, p *
 					j.fail(ctx.Err(), nil)
 					continue
 				}
-				err := finish(ctx, f, j, covers[i], in, p, m, cache, colors, look, printSlots, cats)
+				err := finish(ctx, f, j, covers[i], in, s, m, cache, colors, look, printSlots, cats)
 				mu.Lock()
 				doneCount++
 				n := doneCount
@@ -421,27 +428,29 @@ func complete(dir, fp string) (Result, bool) {
 	return r.Result, true
 }
 
-// extentFingerprint hashes everything an extent's outputs depend on.
-func extentFingerprint(f *File, e *Extent, inputs string) string {
+// extentFingerprint hashes everything an extent's outputs depend on: its
+// definition, the map's look (mapjob.LookFingerprint, which holds the
+// input's sampling fingerprint: areas, counts, mask contents, categories,
+// seed and people per dot), the legend's words and the stipple version.
+func extentFingerprint(f *File, e *Extent, in *mapjob.Input) string {
 	m := *f.Map
 	m.PeoplePerDot = e.PeoplePerDot
 	h := sha256.New()
 	def, _ := json.Marshal(e)
-	fmt.Fprintf(h, "%s\n%s\nsampler=%s\nrenderer=%s\nextent=%s\n", extentFormat, mapjob.Version, samplerProbe(), rendererProbe(), def)
-	fmt.Fprintf(h, "%s", samplingSettings(&m))
-	fmt.Fprintf(h, "credit=%q size=%d anchor=%d dots=%+v hidpi=%v\n", m.Credit, m.Tiles.Size, m.Tiles.MaxZoom, m.Dots, f.HiDPI)
+	fmt.Fprintf(h, "%s\n%s\nextent=%s\n", extentFormat, mapjob.Version, def)
+	fmt.Fprintf(h, "look=%s\n", mapjob.LookFingerprint(in, &m, f.HiDPI))
+	fmt.Fprintf(h, "credit=%q caution=%q\n", m.Credit, mapjob.PrintCaution)
 	for _, c := range m.Categories {
-		fmt.Fprintf(h, "cat %q %q %q\n", c.Key, c.Label, c.Color)
+		fmt.Fprintf(h, "cat %q %q\n", c.Key, c.Label)
 	}
-	fmt.Fprintf(h, "inputs:\n%s", inputs)
 	if f.Sample == "near" {
 		// The store holds the areas near every extent of this dot value,
-		// and low-zoom tiles show them all: the others are part of this
-		// extent's definition.
+		// and low-zoom tiles show them all: the others' areas and margins
+		// (not their titles or zooms) are part of this extent's definition.
 		fmt.Fprintf(h, "sample=near\n")
 		for _, o := range f.Extents {
 			if o.PeoplePerDot == e.PeoplePerDot {
-				d, _ := json.Marshal(o)
+				d, _ := json.Marshal([]any{o.Select, o.BBox, o.IDs, o.Field, o.Values, o.Margin})
 				fmt.Fprintf(h, "%s\n", d)
 			}
 		}
@@ -449,86 +458,45 @@ func extentFingerprint(f *File, e *Extent, inputs string) string {
 	return hex.EncodeToString(h.Sum(nil))
 }
 
-// nearInput keeps the areas whose bounds meet some extent's box plus
-// margin, and renumbers the extents' picked areas to match.
-func nearInput(in *mapjob.Input, group []*job) *mapjob.Input {
+// nearAreas lists, ascending, the areas that sample = "near" places for
+// the extents at perDot people per dot: the areas they pick and those whose
+// bounds meet an extent's box plus margin. An extent that picks nothing
+// adds nothing (it fails on its own). Every extent of the value counts, not
+// only those redrawn, so the list is the same on every run.
+func nearAreas(f *File, perDot float64, layer *geo.Layer) []int {
 	var boxes []orb.Bound
-	for _, j := range group {
-		boxes = append(boxes, withMargin(j.picked.Bound, j.e.Margin))
-	}
-	sub := &mapjob.Input{Read: in.Read, Join: in.Join, Masks: in.Masks, MaskFeatures: in.MaskFeatures, Unjoined: map[int]bool{}}
-	l := in.Layer
-	sub.Layer = &geo.Layer{Path: l.Path, Name: l.Name, CRS: l.CRS, Fields: l.Fields}
 	picked := map[int]bool{}
-	for _, j := range group {
-		for _, i := range j.picked.Features {
+	for _, e := range f.Extents {
+		if e.PeoplePerDot != perDot {
+			continue
+		}
+		p, err := Pick(e, layer)
+		if err != nil {
+			continue
+		}
+		boxes = append(boxes, withMargin(p.Bound, e.Margin))
+		for _, i := range p.Features {
 			picked[i] = true
 		}
 	}
-	renum := map[int]int{}
-	for i, f := range l.Features {
-		if len(f.Geometry) == 0 && !picked[i] {
+	areas := []int{}
+	for i, ft := range layer.Features {
+		if picked[i] {
+			areas = append(areas, i)
 			continue
 		}
-		var fb orb.Bound
-		if len(f.Geometry) > 0 {
-			fb = f.Geometry.Bound()
+		if len(ft.Geometry) == 0 {
+			continue
 		}
+		fb := ft.Geometry.Bound()
 		for _, b := range boxes {
-			if picked[i] || fb.Intersects(b) {
-				renum[i] = len(sub.Layer.Features)
-				sub.Layer.Features = append(sub.Layer.Features, f)
-				sub.Counts = append(sub.Counts, in.Counts[i])
-				if in.Dots != nil {
-					sub.Dots = append(sub.Dots, in.Dots[i])
-				}
-				if in.Unjoined[i] {
-					sub.Unjoined[renum[i]] = true
-				}
+			if fb.Intersects(b) {
+				areas = append(areas, i)
 				break
 			}
 		}
 	}
-	for _, j := range group {
-		var fs []int
-		for _, i := range j.picked.Features {
-			if k, ok := renum[i]; ok {
-				fs = append(fs, k)
-			}
-		}
-		j.picked.Features = fs
-	}
-	return sub
-}
-
-// inputStats lists the map's input files with their sizes and modification
-// times: the polygon file and its sidecars (a shapefile's .dbf, .shx, .prj,
-// .cpg), the count table and the masks.
-func inputStats(m *mapfile.Map) string {
-	var paths []string
-	in := m.Resolve(m.Input.File)
-	paths = append(paths, in)
-	if ext := filepath.Ext(in); strings.EqualFold(ext, ".shp") {
-		stem := strings.TrimSuffix(in, ext)
-		for _, s := range []string{".shx", ".dbf", ".prj", ".cpg", ".SHX", ".DBF", ".PRJ", ".CPG"} {
-			paths = append(paths, stem+s)
-		}
-	}
-	if t := m.Input.Table; t != nil {
-		paths = append(paths, m.Resolve(t.File))
-	}
-	for _, p := range m.Input.Mask {
-		paths = append(paths, m.Resolve(p))
-	}
-	var b strings.Builder
-	for _, p := range paths {
-		if fi, err := os.Stat(p); err == nil {
-			fmt.Fprintf(&b, "%s %d %d\n", p, fi.Size(), fi.ModTime().UnixNano())
-		} else {
-			fmt.Fprintf(&b, "%s absent\n", p)
-		}
-	}
-	return b.String()
+	return areas
 }
 
 func categoryKeys(m *mapfile.Map) []string {

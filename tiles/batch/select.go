@@ -129,39 +129,6 @@ func Pick(e *Extent, layer *geo.Layer) (*Picked, error) {
 	return p, nil
 }
 
-// Totals are an extent's people and dots, from its own areas.
-type Totals struct {
-	People   []float64 // per category
-	Dots     []int     // dots drawn per category
-	NotDrawn float64   // people whose dots could not be placed
-	Problems []string  // one line per area with lost dots
-}
-
-// Sum adds up the counts and placement results of the picked features.
-// counts[i][k] are feature i's people in category k; dots[i][k] and
-// lost[i][k] the dots it drew and lost at perDot people per dot.
-func Sum(layer *geo.Layer, features []int, counts [][]float64, dots, lost [][]int, problems []string, perDot float64) Totals {
-	nc := 0
-	if len(counts) > 0 {
-		nc = len(counts[0])
-	}
-	t := Totals{People: make([]float64, nc), Dots: make([]int, nc), Problems: []string{}}
-	for _, i := range features {
-		n := 0
-		for k := 0; k < nc; k++ {
-			t.People[k] += counts[i][k]
-			t.Dots[k] += dots[i][k]
-			n += lost[i][k]
-		}
-		if n > 0 {
-			t.NotDrawn += float64(n) * perDot
-			f := layer.Features[i]
-			t.Problems = append(t.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, n, problems[i]))
-		}
-	}
-	return t
-}
-
 // boundOf turns [west, south, east, north] into a bound.
 func boundOf(b [4]float64) orb.Bound {
 	return orb.Bound{Min: orb.Point{b[0], b[1]}, Max: orb.Point{b[2], b[3]}}
