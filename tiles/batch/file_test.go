@@ -135,7 +135,7 @@ func TestMapFileWithExtents(t *testing.T) {
 			line = i + 1
 		}
 	}
-	if want := fmt.Sprintf("%s:%d: key people_per_dot: is -1; want a positive number of people per dot", path, line); err == nil || err.Error() != want {
+	if want := fmt.Sprintf("%s:%d: key people_per_dot: is -1; want a number of people per dot of at least 0.01", path, line); err == nil || err.Error() != want {
 		t.Errorf("error %v; want %s", err, want)
 	}
 }
