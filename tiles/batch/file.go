@@ -323,8 +323,9 @@ func (f *File) extent(i int, r rawExtent, md toml.MetaData, lines *mapfile.Lines
 	}
 	if r.PeoplePerDot != nil {
 		e.PeoplePerDot = *r.PeoplePerDot
-		if !(e.PeoplePerDot > 0) || math.IsInf(e.PeoplePerDot, 0) {
-			return nil, at("people_per_dot", fmt.Sprintf("is %v; want a positive number of people per dot", e.PeoplePerDot))
+		pm := mapfile.Map{PeoplePerDot: e.PeoplePerDot}
+		if err := pm.CheckPerDot(); err != nil {
+			return nil, at("people_per_dot", err.Error())
 		}
 	}
 	if r.Margin != nil {

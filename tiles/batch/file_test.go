@@ -35,7 +35,7 @@ func TestParseErrorsNameFileLineAndKey(t *testing.T) {
 		{"twice id", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nids = [\"x\", \"x\"]\n", `B:5: key extent[1].ids: id "x" is listed twice`},
 		{"values without field", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nvalues = [\"x\"]\n", `B:2: key extent[1].field: missing: with values, name the field they are matched against`},
 		{"zooms", head + ext + "min_zoom = 12\nmax_zoom = 10\n", `B:7: key extent[1].max_zoom: zoom range 12–10; want 0 ≤ min_zoom ≤ max_zoom ≤ 22`},
-		{"per dot", head + ext + "people_per_dot = 0\n", `B:6: key extent[1].people_per_dot: is 0; want a positive number of people per dot`},
+		{"per dot", head + ext + "people_per_dot = 0\n", `B:6: key extent[1].people_per_dot: is 0; want a number of people per dot of at least 0.01`},
 		{"margin", head + "margin = -1\n" + ext, `B:2: key margin: is -1; want a share of the extent's size from 0 to 10 (0.1 = 10 % on each side)`},
 		{"sample", head + "sample = \"some\"\n" + ext, `B:2: key sample: "some"; want "all" (every area's dots) or "near" (only areas near an extent)`},
 		{"print page", head + "[print]\npage = \"B7\"\n" + ext, `B:2: key print: page: size "B7": want a name (a2, a3, a4, a5, ledger, legal, letter, tabloid) or WxH with a unit, e.g. 300x200mm or 11x17in`},
