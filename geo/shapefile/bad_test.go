@@ -67,7 +67,7 @@ func p(name, ext string) string { return filepath.Join(badDir, name, name+ext) }
 // and the field as RULES.md asks; sources for the limits: ESRI Shapefile
 // Technical Description (July 1998), tables "Description of the Main File
 // Header", "Description of Main File Record Headers", "Polygon Record
-// Contents"; dBASE header and descriptor layout as in /work/shared/CHECKS.md.
+// Contents"; dBASE header and descriptor layout as in ../shared/CHECKS.md.
 var badCases = []badCase{
 	{name: "truncated-record", files: func() map[string][]byte {
 		f := baseSet()
