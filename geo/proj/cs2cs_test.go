@@ -148,7 +148,7 @@ func TestCrossCheckCS2CS(t *testing.T) {
 				t.Errorf("only %d points compared", compared)
 			}
 			// Inverse of cs2cs's projected points: ours must give back the
-			// grid point to 1e-9° (the brief's bound; cs2cs's 1e-6 m output
+			// grid point to 1e-9° (our bound; cs2cs's 1e-6 m output
 			// rounding is 1e-11°). cs2cs's own inverse is held to 2e-8° of
 			// arc (2 mm): PROJ 9.1 inverts the authalic latitude of LAEA by
 			// a series truncated after e⁶, which is off by up to 1.4e-8°

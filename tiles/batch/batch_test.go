@@ -108,8 +108,9 @@ func tileFiles(t *testing.T, dir string) map[string][]byte {
 	return out
 }
 
-// demoFeatures reads the demo GeoJSON with encoding/json alone: the test's
-// own account of every area's counts, independent of geo/read.
+// demoFeature is one area of the demo GeoJSON read with encoding/json
+// alone: the test's own account of every area's counts, independent of
+// geo/read.
 type demoFeature struct {
 	Properties map[string]any `json:"properties"`
 }

@@ -7,14 +7,14 @@
 // Contract:
 //
 //   - The input is read once and its dots are placed once per people-per-dot
-//     value into a sorted dot store (build.PlaceStore), kept in
+//     value into a sorted dot store (mapjob.PlaceStore), kept in
 //     OUT/.stipple/ for reruns. Every extent draws from that store.
 //   - Each tile is rendered once, into a tile cache beside the store, from
 //     the whole store: it is the tile a map of the whole input would have.
 //     An extent's folder receives (hard links to, or copies of) the cached
 //     tiles that meet its box plus margin at each of its zooms. So tiles that
 //     cover the same place in two extents are the same bytes.
-//   - The dot schedule (build.Look) is the base map's at every zoom, so an
+//   - The dot schedule (mapjob.Look) is the base map's at every zoom, so an
 //     extent's own zoom range picks which zooms it gets, not how dots look.
 //   - An extent's totals (legend, map.json, summary) are the counts of its
 //     own areas: those listed by id, those whose field holds one of the
