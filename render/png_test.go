@@ -11,18 +11,9 @@ import (
 	"os/exec"
 	"path/filepath"
 	"testing"
-)
 
-func needTool(t *testing.T, name string) string {
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
+	"github.com/stipple-maps/stipple/geo/reftool"
+)
 
 // testImage has exactly ncolors distinct colours (some translucent, one
 // transparent) or, with ncolors = 0, thousands.
@@ -119,7 +110,7 @@ func TestEncodeRejectsNothingAndIsDeterministic(t *testing.T) {
 // TestPngcheckAcceptsOutput runs pngcheck (Debian package pngcheck), which
 // verifies chunk CRCs, IHDR fields, PLTE/tRNS sizes and the zlib stream.
 func TestPngcheckAcceptsOutput(t *testing.T) {
-	tool := needTool(t, "pngcheck")
+	tool := reftool.Need(t, "pngcheck")
 	dir := t.TempDir()
 	e := NewEncoder()
 	var files []string

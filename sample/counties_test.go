@@ -2,29 +2,24 @@ package sample
 
 import (
 	"os"
-	"path/filepath"
 	"testing"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
-
-// sharedCounties is the shared real-geometry data set (synthetic counts),
-// beside the repository in development and in CI.
-var sharedCounties = filepath.Join("..", "..", "shared", "data", "us-counties.geojson")
 
 // TestRealCountyBoundaries prepares every county of the shared data set
 // (real boundaries, incl. parts cut at the antimeridian): each is simple and
 // triangulates, or reports why not; dots from every county are inside it by
 // the go-geom reference; the areas of the parts sum to their shoelace areas.
 func TestRealCountyBoundaries(t *testing.T) {
-	data, err := os.ReadFile(sharedCounties)
+	// The shared real-geometry data set (synthetic counts), in
+	// ../shared/data beside the repository in development and in CI.
+	data, err := os.ReadFile(reftool.SharedData(t, "us-counties.geojson"))
 	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("shared data required: %v", err)
-		}
-		t.Skipf("shared data not found: %v", err)
+		t.Fatal(err)
 	}
 	fc, err := geojson.UnmarshalFeatureCollection(data)
 	if err != nil {

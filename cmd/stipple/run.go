@@ -6,8 +6,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"net"
-	"net/http"
 	"os"
 	"path/filepath"
 	"strings"
@@ -392,55 +390,4 @@ func WriteDemoSource(dir string) (*mapfile.Map, error) {
 		return nil, fmt.Errorf("demo: %w", err)
 	}
 	return mapfile.Read(path)
-}
-
-func cmdServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
-	fs.SetOutput(stderr)
-	port := fs.Int("port", 8080, "port on 127.0.0.1")
-	host := fs.String("host", "127.0.0.1", "address to bind; the default keeps the map on this machine")
-	pos, err := parse(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usageError{"serve takes one folder"}
-	}
-	dir := pos[0]
-	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
-		return fmt.Errorf("serve: %s is not a folder", dir)
-	}
-	ln, err := net.Listen("tcp", net.JoinHostPort(*host, fmt.Sprint(*port)))
-	if err != nil {
-		return fmt.Errorf("serve: %w", err)
-	}
-	root, err := os.OpenRoot(dir)
-	if err != nil {
-		return fmt.Errorf("serve: %w", err)
-	}
-	defer root.Close()
-	srv := &http.Server{Handler: folderHandler(root), ReadHeaderTimeout: 10 * time.Second}
-	fmt.Fprintf(stdout, "serving %s at http://%s/ (Ctrl-C to stop)\n", dir, ln.Addr())
-	go func() { <-ctx.Done(); srv.Close() }()
-	if err := srv.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
-		return fmt.Errorf("serve: %w", err)
-	}
-	return nil
-}
-
-// folderHandler serves only what lies inside root: os.Root refuses paths
-// and symlinks that lead outside it, and dot-files and dot-folders (such as
-// the dot store in .stipple/) are not served at all.
-func folderHandler(root *os.Root) http.Handler {
-	files := http.FileServerFS(root.FS())
-	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-		for _, part := range strings.Split(r.URL.Path, "/") {
-			if strings.HasPrefix(part, ".") {
-				http.NotFound(w, r)
-				return
-			}
-		}
-		w.Header().Set("X-Content-Type-Options", "nosniff")
-		files.ServeHTTP(w, r)
-	})
 }

@@ -3,10 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
-	"io"
 	"io/fs"
-	"net/http"
-	"net/http/httptest"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -219,51 +216,6 @@ func TestDemoWritesAMap(t *testing.T) {
 	}
 	if !strings.Contains(stdout.String(), "invented") {
 		t.Errorf("demo output does not say the data is invented:\n%s", stdout.String())
-	}
-}
-
-func TestServeStaysInsideItsFolder(t *testing.T) {
-	base := t.TempDir()
-	dir := filepath.Join(base, "site")
-	os.MkdirAll(filepath.Join(dir, ".stipple"), 0o755)
-	os.WriteFile(filepath.Join(dir, "index.html"), []byte("map page"), 0o644)
-	os.WriteFile(filepath.Join(dir, ".stipple", "dots.bin"), []byte("dots"), 0o644)
-	os.WriteFile(filepath.Join(base, "secret.txt"), []byte("secret"), 0o644)
-	if err := os.Symlink(filepath.Join(base, "secret.txt"), filepath.Join(dir, "link.txt")); err != nil {
-		t.Skip("no symlinks here:", err)
-	}
-	root, err := os.OpenRoot(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer root.Close()
-	srv := httptest.NewServer(folderHandler(root))
-	defer srv.Close()
-	for _, c := range []struct {
-		path string
-		code int
-		body string
-	}{
-		{"/index.html", 200, "map page"},
-		{"/link.txt", 404, ""},          // symlink out of the folder
-		{"/.stipple/dots.bin", 404, ""}, // dot-folders are private
-		{"/../secret.txt", 404, ""},
-	} {
-		resp, err := http.Get(srv.URL + c.path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		b, _ := io.ReadAll(resp.Body)
-		resp.Body.Close()
-		if resp.StatusCode != c.code && !(c.code == 404 && resp.StatusCode >= 400) {
-			t.Errorf("%s: status %d; want %d", c.path, resp.StatusCode, c.code)
-		}
-		if c.code == 200 && string(b) != c.body {
-			t.Errorf("%s: body %q", c.path, b)
-		}
-		if c.code != 200 && strings.Contains(string(b), "secret") {
-			t.Errorf("%s leaked the file outside the folder", c.path)
-		}
 	}
 }
 

@@ -10,6 +10,7 @@ import (
 	"os"
 	"slices"
 	"strconv"
+	"unicode/utf8"
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
@@ -62,7 +63,12 @@ type rawGeometry struct {
 }
 
 // Decode parses GeoJSON bytes; path is used only in error messages.
+// The text must be UTF-8; a UTF-8 byte order mark at the start is skipped.
 func Decode(path string, data []byte, opt Options) (*geo.Layer, error) {
+	data, err := utf8Text(path, data)
+	if err != nil {
+		return nil, err
+	}
 	var fc rawCollection
 	if err := json.Unmarshal(data, &fc); err != nil {
 		return nil, fmt.Errorf("geojson: %s: %s", path, describeJSONError(data, err))
@@ -211,6 +217,48 @@ func polygon(c [][][]float64) (orb.Polygon, error) {
 		p = append(p, r)
 	}
 	return p, nil
+}
+
+// utf8Text returns data without a UTF-8 byte order mark, or a one-line
+// error naming the file and the byte offset when data is UTF-16 or holds
+// bytes that are not UTF-8. GeoJSON is JSON, which "MUST be encoded using
+// UTF-8" between systems (RFC 8259, section 8.1, referenced by RFC 7946,
+// section 1); the same section lets a parser ignore a byte order mark.
+// encoding/json would fail on a BOM with "invalid character 'ï'" and turn
+// every stray byte into U+FFFD, so that two ids differing in one accented
+// letter would become equal.
+func utf8Text(path string, data []byte) ([]byte, error) {
+	if rest, ok := bytes.CutPrefix(data, []byte{0xEF, 0xBB, 0xBF}); ok {
+		return rest, nil
+	}
+	utf16 := func(order, how string) error {
+		return fmt.Errorf("geojson: %s: byte 0: the file is UTF-16 (%s, %s); GeoJSON must be UTF-8: re-save it as UTF-8", path, order, how)
+	}
+	switch {
+	case bytes.HasPrefix(data, []byte{0xFF, 0xFE}):
+		return nil, utf16("little-endian", "byte order mark FF FE")
+	case bytes.HasPrefix(data, []byte{0xFE, 0xFF}):
+		return nil, utf16("big-endian", "byte order mark FE FF")
+	case len(data) >= 2 && data[0] != 0 && data[1] == 0:
+		// Without a mark, a JSON text's first character is ASCII, so its
+		// UTF-16 form has a zero byte beside it (RFC 4627, section 3).
+		return nil, utf16("little-endian", "no byte order mark")
+	case len(data) >= 2 && data[0] == 0 && data[1] != 0:
+		return nil, utf16("big-endian", "no byte order mark")
+	}
+	if utf8.Valid(data) {
+		return data, nil
+	}
+	off := 0
+	for off < len(data) {
+		r, n := utf8.DecodeRune(data[off:])
+		if r == utf8.RuneError && n <= 1 {
+			break
+		}
+		off += n
+	}
+	return nil, fmt.Errorf("geojson: %s: byte %d (%s): byte 0x%02X is not UTF-8; the file is probably in a legacy encoding such as Latin-1 or Windows-1252: re-save it as UTF-8",
+		path, off, where(data, int64(off)), data[off])
 }
 
 // describeJSONError turns a decoding error into "line L, column C: message".

@@ -16,25 +16,14 @@ import (
 	"github.com/twpayne/go-geom/xy"
 
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
-
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
 
 // toGPKG converts a GeoJSON file into layer name of the GeoPackage out with
 // GDAL's ogr2ogr (Debian gdal-bin). Extra arguments go before the files.
 func toGPKG(t *testing.T, out, in, name string, extra ...string) {
 	t.Helper()
-	bin := needTool(t, "ogr2ogr")
+	bin := reftool.Need(t, "ogr2ogr")
 	args := append([]string{"-f", "GPKG"}, extra...)
 	args = append(args, out, in, "-nln", name)
 	cmd := exec.Command(bin, args...)
@@ -332,10 +321,7 @@ func TestLayersAndChoice(t *testing.T) {
 // TestUSCounties reads the shared county GeoJSON converted by ogr2ogr and
 // compares every ring and count with the GeoJSON read by encoding/json.
 func TestUSCounties(t *testing.T) {
-	src := "../../../shared/data/us-counties.geojson"
-	if _, err := os.Stat(src); err != nil {
-		t.Skipf("%s not present", src)
-	}
+	src := reftool.SharedData(t, "us-counties.geojson")
 	out := filepath.Join(t.TempDir(), "counties.gpkg")
 	toGPKG(t, out, src, "counties", "-nlt", "PROMOTE_TO_MULTI")
 	want := readGeoJSON(t, src)
@@ -369,10 +355,7 @@ func TestUSCounties(t *testing.T) {
 // decodeWKB and with orb's independent encoding/wkb decoder, and compares
 // them value for value (before the winding step, which orb does not do).
 func TestWKBAgainstOrb(t *testing.T) {
-	src := "../../../shared/data/us-counties.geojson"
-	if _, err := os.Stat(src); err != nil {
-		t.Skipf("%s not present", src)
-	}
+	src := reftool.SharedData(t, "us-counties.geojson")
 	out := filepath.Join(t.TempDir(), "counties.gpkg")
 	toGPKG(t, out, src, "counties", "-nlt", "PROMOTE_TO_MULTI")
 	db, err := open(out)
@@ -418,14 +401,8 @@ func TestWKBAgainstOrb(t *testing.T) {
 }
 
 func BenchmarkReadCounties(b *testing.B) {
-	src := "../../../shared/data/us-counties.geojson"
-	if _, err := os.Stat(src); err != nil {
-		b.Skipf("%s not present", src)
-	}
-	bin, err := exec.LookPath("ogr2ogr")
-	if err != nil {
-		b.Skip("ogr2ogr not installed")
-	}
+	src := reftool.SharedData(b, "us-counties.geojson")
+	bin := reftool.Need(b, "ogr2ogr")
 	out := filepath.Join(b.TempDir(), "counties.gpkg")
 	if msg, err := exec.Command(bin, "-f", "GPKG", "-nlt", "PROMOTE_TO_MULTI", out, src, "-nln", "counties").CombinedOutput(); err != nil {
 		b.Fatalf("%v %s", err, msg)

@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 func readTestdata(t *testing.T, name string) string {
@@ -123,8 +125,8 @@ func TestParseWKTUSFeet(t *testing.T) {
 // (gdalsrsinfo -o proj4), both driven through PROJ's cs2cs on a grid
 // around the projection's centre: agreement to 1 mm in the CRS's unit.
 func TestParseWKTMatchesGDAL(t *testing.T) {
-	gdal := needTool(t, "gdalsrsinfo")
-	cs := needTool(t, "cs2cs")
+	gdal := reftool.Need(t, "gdalsrsinfo")
+	cs := reftool.Need(t, "cs2cs")
 	files, _ := filepath.Glob("testdata/*.*")
 	var n int
 	for _, f := range files {
@@ -293,7 +295,7 @@ func TestParseWKTForms(t *testing.T) {
 // FromEPSG's table against PROJ's EPSG database as GDAL prints it
 // (gdalsrsinfo -o proj4, Debian gdal-bin 3.6.2).
 func TestFromEPSGMatchesGDAL(t *testing.T) {
-	gdal := needTool(t, "gdalsrsinfo")
+	gdal := reftool.Need(t, "gdalsrsinfo")
 	for code := range epsgTable {
 		t.Run(num(float64(code)), func(t *testing.T) {
 			t.Parallel()

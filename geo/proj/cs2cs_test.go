@@ -4,26 +4,13 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
 	"testing"
-)
 
-// needTool returns the path of an external tool, skipping the test when it
-// is missing unless STIPPLE_REQUIRE_TOOLS=1 (RULES.md).
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
+	"github.com/stipple-maps/stipple/geo/reftool"
+)
 
 // grid returns the points lon0, lon0+dlon, … × lat0, lat0+dlat, … up to
 // and including lon1, lat1.
@@ -129,7 +116,7 @@ func crossCases(t *testing.T) []crossCase {
 // projection's own String() as the PROJ definition; then PROJ's inverse
 // of PROJ's output against ours.
 func TestCrossCheckCS2CS(t *testing.T) {
-	bin := needTool(t, "cs2cs")
+	bin := reftool.Need(t, "cs2cs")
 	for _, c := range crossCases(t) {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel() // cs2cs waits mostly on PROJ's database
@@ -161,7 +148,7 @@ func TestCrossCheckCS2CS(t *testing.T) {
 				t.Errorf("only %d points compared", compared)
 			}
 			// Inverse of cs2cs's projected points: ours must give back the
-			// grid point to 1e-9° (the brief's bound; cs2cs's 1e-6 m output
+			// grid point to 1e-9° (our bound; cs2cs's 1e-6 m output
 			// rounding is 1e-11°). cs2cs's own inverse is held to 2e-8° of
 			// arc (2 mm): PROJ 9.1 inverts the authalic latitude of LAEA by
 			// a series truncated after e⁶, which is off by up to 1.4e-8°

@@ -2,26 +2,14 @@ package read
 
 import (
 	"math"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/stipple-maps/stipple/geo/geojson"
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
-
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
 
 func TestRepairsAreMadeAndReported(t *testing.T) {
 	res, err := File("testdata/repairs.geojson", Options{IDField: "code"})
@@ -71,7 +59,7 @@ func TestUnknownExtension(t *testing.T) {
 // into projected CRSs that geo/proj implements, and checks that File returns
 // the original longitudes and latitudes (GDAL/PROJ as the reference).
 func TestProjectedFilesComeBackAsLonLat(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
+	ogr := reftool.Need(t, "ogr2ogr")
 	orig, err := geojson.Read("testdata/invented.geojson", geojson.Options{IDField: "code"})
 	if err != nil {
 		t.Fatal(err)
@@ -131,7 +119,7 @@ func TestProjectedFilesComeBackAsLonLat(t *testing.T) {
 }
 
 func TestUnsupportedCRSNamesItAndTheFix(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
+	ogr := reftool.Need(t, "ogr2ogr")
 	out := filepath.Join(t.TempDir(), "utm.shp")
 	if b, err := exec.Command(ogr, "-f", "ESRI Shapefile", "-t_srs", "EPSG:32707", out, "testdata/invented.geojson").CombinedOutput(); err != nil {
 		t.Fatalf("ogr2ogr: %v\n%s", err, b)

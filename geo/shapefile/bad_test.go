@@ -64,10 +64,10 @@ type badCase struct {
 func p(name, ext string) string { return filepath.Join(badDir, name, name+ext) }
 
 // badCases lists the broken inputs. Expected texts name the file, the record
-// and the field as RULES.md asks; sources for the limits: ESRI Shapefile
+// and the field; sources for the limits: ESRI Shapefile
 // Technical Description (July 1998), tables "Description of the Main File
 // Header", "Description of Main File Record Headers", "Polygon Record
-// Contents"; dBASE header and descriptor layout as in /work/shared/CHECKS.md.
+// Contents"; dBASE header and descriptor layout as in ../shared/CHECKS.md.
 var badCases = []badCase{
 	{name: "truncated-record", files: func() map[string][]byte {
 		f := baseSet()

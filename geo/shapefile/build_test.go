@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 )
@@ -161,16 +160,4 @@ func memSource(stem string, files map[string][]byte) source {
 		return part{name: stem + ext, r: bytes.NewReader(b), size: int64(len(b))}
 	}
 	return source{shp: p(".shp"), shx: p(".shx"), dbf: p(".dbf"), prj: files[".prj"], cpg: files[".cpg"], cpgName: stem + ".cpg", layerName: stem}
-}
-
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
 }

@@ -3,22 +3,17 @@ package shapefile
 import (
 	"math"
 	"os"
-	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
-// The shared benchmark data (../shared/data, described in its README.md):
-// us-counties-shp was written by ogr2ogr from us-counties.geojson; the
-// synthetic count fields are only in the GeoJSON.
-const countiesDir = "../../../shared/data"
-
+// The shared benchmark data (../shared/data beside the repository root,
+// described in its README.md): us-counties-shp was written by ogr2ogr from
+// us-counties.geojson; the synthetic count fields are only in the GeoJSON.
 func countiesPath(tb testing.TB) string {
-	p := filepath.Join(countiesDir, "us-counties-shp", "us-counties.shp")
-	if _, err := os.Stat(p); err != nil {
-		tb.Skipf("shared data not present: %v", err)
-	}
-	return p
+	return reftool.SharedData(tb, "us-counties-shp/us-counties.shp")
 }
 
 func TestUSCounties(t *testing.T) {
@@ -88,10 +83,7 @@ func TestUSCounties(t *testing.T) {
 	}
 
 	// Every ring and value against the GeoJSON the shapefile was made from.
-	gj := filepath.Join(countiesDir, "us-counties.geojson")
-	if _, err := os.Stat(gj); err != nil {
-		t.Skipf("no %s: %v", gj, err)
-	}
+	gj := reftool.SharedData(t, "us-counties.geojson")
 	want := readGeoJSON(t, gj)
 	wantZeros := 0
 	for _, f := range want.Features {

@@ -7,7 +7,7 @@ import (
 )
 
 // Values of N/F/D/L fields (dBASE layout per the Technical Description's
-// dBASE notes in /work/shared/CHECKS.md: N and F are ASCII, right-justified;
+// dBASE notes in ../shared/CHECKS.md: N and F are ASCII, right-justified;
 // D is YYYYMMDD).
 func TestDBFValues(t *testing.T) {
 	fields := []tField{{"n0", 'N', 22, 0}, {"n2", 'N', 12, 2}, {"f0", 'F', 12, 0}, {"d", 'D', 8, 0}, {"l", 'L', 1, 0}, {"c", 'C', 6, 0}}

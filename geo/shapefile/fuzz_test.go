@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 // seedFiles returns the committed files with the given extension: the
@@ -16,8 +18,8 @@ import (
 func seedFiles(f *testing.F, ext string) [][]byte {
 	var out [][]byte
 	globs := []string{filepath.Join("testdata", "*", "*"+ext), filepath.Join(badDir, "*", "*"+ext)}
-	if ext == ".dbf" {
-		globs = append(globs, filepath.Join(countiesDir, "us-counties-shp", "*.dbf"))
+	if dir, err := reftool.SharedPath("us-counties-shp"); ext == ".dbf" && err == nil {
+		globs = append(globs, filepath.Join(dir, "*.dbf"))
 	}
 	for _, g := range globs {
 		m, _ := filepath.Glob(g)

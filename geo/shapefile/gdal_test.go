@@ -12,6 +12,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 // GDAL round trips: GeoJSON fixtures (RFC 7946 Appendix A.3 and A.6, and
@@ -22,8 +24,8 @@ import (
 // clockwise outer) and this package reverses it again, so vertex order
 // matches exactly.
 func TestGDALRoundTrip(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
-	ogrinfo := needTool(t, "ogrinfo")
+	ogr := reftool.Need(t, "ogr2ogr")
+	ogrinfo := reftool.Need(t, "ogrinfo")
 	cases := []struct {
 		fixture string
 		enc     string // -lco ENCODING=
@@ -139,7 +141,7 @@ func TestCommittedGDALFixture(t *testing.T) {
 // this package (bytes a code page leaves undefined are skipped on both
 // sides).
 func TestLDIDVsGDAL(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
+	ogr := reftool.Need(t, "ogr2ogr")
 	ids := make([]int, 0, len(ldidPages))
 	for id := range ldidPages {
 		ids = append(ids, int(id))

@@ -15,6 +15,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 // specFixture writes, field by field in file order with encoding/binary, a
@@ -274,7 +275,7 @@ func TestSpecFixtureRead(t *testing.T) {
 // GeoJSON) and compares its reading with ours: GDAL is the independent
 // reference for the layout, the ring rule and the dBASE types.
 func TestSpecFixtureVsGDAL(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
+	ogr := reftool.Need(t, "ogr2ogr")
 	path := writeSpecFixture(t)
 	out := filepath.Join(t.TempDir(), "spec.geojson")
 	// RFC7946=YES makes GDAL write outer rings counter-clockwise and holes

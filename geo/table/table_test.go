@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 // countsOpts reads testdata/counts.csv: keys like "1400000US01001" (strip
@@ -389,13 +390,10 @@ func TestBadInputs(t *testing.T) {
 // county GeoJSON, both parsed independently (the GeoJSON with
 // encoding/json here). Expected values: shared/data/README.md.
 func TestUSCounties(t *testing.T) {
-	gj, csvPath := "../../../shared/data/us-counties.geojson", "../../../shared/data/us-counties-counts.csv"
+	gj, csvPath := reftool.SharedData(t, "us-counties.geojson"), reftool.SharedData(t, "us-counties-counts.csv")
 	b, err := os.ReadFile(gj)
 	if err != nil {
-		t.Skipf("%s not present", gj)
-	}
-	if _, err := os.Stat(csvPath); err != nil {
-		t.Skipf("%s not present", csvPath)
+		t.Fatal(err)
 	}
 	var fc struct {
 		Features []struct {
@@ -498,10 +496,7 @@ func FuzzRead(f *testing.F) {
 }
 
 func BenchmarkReadAndJoinCounties(b *testing.B) {
-	csvPath := "../../../shared/data/us-counties-counts.csv"
-	if _, err := os.Stat(csvPath); err != nil {
-		b.Skipf("%s not present", csvPath)
-	}
+	csvPath := reftool.SharedData(b, "us-counties-counts.csv")
 	tb, err := Read(csvPath, Options{Key: "geoid"})
 	if err != nil {
 		b.Fatal(err)

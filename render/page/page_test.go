@@ -17,20 +17,9 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo/reftool"
 	"github.com/stipple-maps/stipple/render"
 )
-
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
 
 // Okabe & Ito (2008) colours.
 var testColors = []color.NRGBA{{0x00, 0x72, 0xB2, 0xff}, {0xE6, 0x9F, 0x00, 0xff}, {0x00, 0x9E, 0x73, 0xff}}
@@ -182,7 +171,7 @@ func TestPNGSizeAndPHYs(t *testing.T) {
 // pngcheck (Debian pngcheck) reads the file on its own and prints the
 // resolution it finds.
 func TestPNGCheck(t *testing.T) {
-	tool := needTool(t, "pngcheck")
+	tool := reftool.Need(t, "pngcheck")
 	spec := testSpec(t, A5, 150)
 	p := testPage(t, spec, testDots(2000, 2))
 	path := filepath.Join(t.TempDir(), "page.png")
@@ -226,7 +215,7 @@ func writeTemp(t *testing.T, name string, write func(*os.File) error) string {
 // (ISO 32000-1 §8.3.2): A4 = 595.28 × 841.89 pt, US Letter = 612 × 792,
 // A3 landscape = 1190.55 × 841.89.
 func TestPDFPageSize(t *testing.T) {
-	tool := needTool(t, "pdfinfo")
+	tool := reftool.Need(t, "pdfinfo")
 	for _, c := range []struct {
 		size Size
 		w, h float64
@@ -369,7 +358,7 @@ func renderPDF(t *testing.T, tool, pdfPath string, size Size, dpi float64) *imag
 //     disc π(r² + 1/12) px² of ink (computed: the integral of its edge
 //     ramp clamp(r + 0.5 − d, 0, 1) over the plane).
 func TestPDFRenderMatchesPNG(t *testing.T) {
-	ppm := needTool(t, "pdftoppm")
+	ppm := reftool.Need(t, "pdftoppm")
 	for _, c := range []struct {
 		name    string
 		size    Size
@@ -391,7 +380,7 @@ func TestPDFRenderMatchesPNG(t *testing.T) {
 			}
 			pdfPath := writeTemp(t, "page.pdf", func(f *os.File) error { return p.WritePDF(f, c.mode) })
 			want := p.Raster()
-			for _, tool := range []string{ppm, needTool(t, "pdftocairo")} {
+			for _, tool := range []string{ppm, reftool.Need(t, "pdftocairo")} {
 				name := filepath.Base(tool)
 				got := renderPDF(t, tool, pdfPath, c.size, c.dpi)
 				if got.Rect.Size() != want.Rect.Size() {

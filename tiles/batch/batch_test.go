@@ -15,21 +15,11 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stipple-maps/stipple/geo/reftool"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
-
-func needTool(t *testing.T, name string) string {
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
 
 // demoMap is the committed copy of the demo's source (see
 // examples/batch/README.md).
@@ -118,8 +108,9 @@ func tileFiles(t *testing.T, dir string) map[string][]byte {
 	return out
 }
 
-// demoFeatures reads the demo GeoJSON with encoding/json alone: the test's
-// own account of every area's counts, independent of geo/read.
+// demoFeature is one area of the demo GeoJSON read with encoding/json
+// alone: the test's own account of every area's counts, independent of
+// geo/read.
 type demoFeature struct {
 	Properties map[string]any `json:"properties"`
 }
@@ -501,7 +492,7 @@ max_zoom = 11
 // dialect (SpatiaLite ST_Centroid, computed by GEOS) and compares them with
 // the extent's map.json.
 func TestBoxTotalsAgainstGDAL(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
+	ogr := reftool.Need(t, "ogr2ogr")
 	dir := t.TempDir()
 	box := [4]float64{-128.46, -34.26, -128.36, -34.19}
 	f := writeBatch(t, dir, fmt.Sprintf(`

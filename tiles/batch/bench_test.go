@@ -14,12 +14,17 @@ import (
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/geo/read"
+	"github.com/stipple-maps/stipple/geo/reftool"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
-// countiesFile is the shared benchmark input: real county outlines with
-// synthetic counts (see /work/shared/data/README.md).
-const countiesFile = "/work/shared/data/us-counties.geojson"
+// countiesFile returns the shared benchmark input, in ../shared/data beside
+// the repository root: real county outlines with synthetic counts (see the
+// README.md there).
+func countiesFile(tb testing.TB) string {
+	tb.Helper()
+	return reftool.SharedData(tb, "us-counties.geojson")
+}
 
 // countiesBatch writes, into dir, a map file over the counties (groups
 // grp_a..grp_e, 1 dot = 10 people, zooms 4–9) and a batch file of 20
@@ -28,7 +33,8 @@ const countiesFile = "/work/shared/data/us-counties.geojson"
 // contiguous states by taking every 150th county in geoid order.
 func countiesBatch(b testing.TB, dir string, n int) *File {
 	b.Helper()
-	res, err := read.File(countiesFile, read.Options{IDField: "geoid"})
+	file := countiesFile(b)
+	res, err := read.File(file, read.Options{IDField: "geoid"})
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -58,7 +64,7 @@ id = "geoid"
 [tiles]
 min_zoom = 4
 max_zoom = 9
-`, countiesFile)
+`, file)
 	colors := []string{"#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9"}
 	for i, g := range []string{"a", "b", "c", "d", "e"} {
 		fmt.Fprintf(&mapText, "[[category]]\nkey = %q\nlabel = \"Group %s\"\ncolor = %q\nfields = [\"grp_%s\"]\n", g, strings.ToUpper(g), colors[i], g)
@@ -98,9 +104,7 @@ max_zoom = 9
 //
 //	go test ./tiles/batch -run '^$' -bench Counties20 -benchtime 1x -timeout 60m
 func BenchmarkCounties20(b *testing.B) {
-	if _, err := os.Stat(countiesFile); err != nil {
-		b.Skipf("%s not here", countiesFile)
-	}
+	countiesFile(b)
 	b.Run("batch", func(b *testing.B) { benchBatch(b, "all") })
 	b.Run("batch-near", func(b *testing.B) { benchBatch(b, "near") })
 	b.Run("separate", func(b *testing.B) {
@@ -134,7 +138,7 @@ func BenchmarkCounties20(b *testing.B) {
 		for b.Loop() {
 			dir := b.TempDir()
 			all := countiesBatch(b, dir, 20)
-			res, err := read.File(countiesFile, read.Options{IDField: "geoid"})
+			res, err := read.File(countiesFile(b), read.Options{IDField: "geoid"})
 			if err != nil {
 				b.Fatal(err)
 			}

@@ -3,7 +3,6 @@ package batch
 import (
 	"bytes"
 	"embed"
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"html/template"
@@ -139,38 +138,77 @@ type indexLink struct{ Name, Href string }
 
 // summaryCSV is one row per extent: people and dots per category, tiles,
 // bytes and seconds. Numbers are plain (no grouping), people as counted.
+// Text cells (the header, slug, title, status and error) are neutralised
+// by writeCSVRow, so a title such as "=1+2" stays text in a spreadsheet.
+// Numeric cells are written as they are: strconv never writes a formula,
+// and a quote in front of a negative number would turn it into text.
 func summaryCSV(f *File, results []Result) ([]byte, error) {
 	var b bytes.Buffer
-	w := csv.NewWriter(&b)
-	head := []string{"slug", "title", "status", "areas", "people_per_dot", "people_total"}
-	for _, c := range f.Map.Categories {
-		head = append(head, "people_"+c.Key)
+	var head []csvCell
+	for _, h := range []string{"slug", "title", "status", "areas", "people_per_dot", "people_total"} {
+		head = append(head, textCell(h))
 	}
-	head = append(head, "dots_total")
 	for _, c := range f.Map.Categories {
-		head = append(head, "dots_"+c.Key)
+		head = append(head, textCell("people_"+c.Key))
 	}
-	head = append(head, "not_drawn_people", "tiles", "tiles_2x", "bytes", "seconds", "error")
-	w.Write(head)
-	num := func(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+	head = append(head, textCell("dots_total"))
+	for _, c := range f.Map.Categories {
+		head = append(head, textCell("dots_"+c.Key))
+	}
+	for _, h := range []string{"not_drawn_people", "tiles", "tiles_2x", "bytes", "seconds", "error"} {
+		head = append(head, textCell(h))
+	}
+	writeCSVRow(&b, head)
+	num := func(v float64) csvCell { return csvCell{v: strconv.FormatFloat(v, 'f', -1, 64)} }
+	integer := func(v int64) csvCell { return csvCell{v: strconv.FormatInt(v, 10)} }
 	for _, r := range results {
-		row := []string{r.Slug, r.Title, string(r.Status), strconv.Itoa(r.Features), num(r.PerDot), num(sumPeople(r.People))}
+		row := []csvCell{textCell(r.Slug), textCell(r.Title), textCell(string(r.Status)), integer(int64(r.Features)), num(r.PerDot), num(sumPeople(r.People))}
 		dots := 0
 		for _, c := range f.Map.Categories {
 			row = append(row, num(r.People[c.Key]))
 			dots += r.Dots[c.Key]
 		}
-		row = append(row, strconv.Itoa(dots))
+		row = append(row, integer(int64(dots)))
 		for _, c := range f.Map.Categories {
-			row = append(row, strconv.Itoa(r.Dots[c.Key]))
+			row = append(row, integer(int64(r.Dots[c.Key])))
 		}
-		row = append(row, num(r.NotDrawn), strconv.FormatInt(r.Tiles, 10), strconv.FormatInt(r.Tiles2x, 10),
-			strconv.FormatInt(r.Bytes, 10), strconv.FormatFloat(r.Seconds, 'f', 3, 64), r.Error)
-		w.Write(row)
-	}
-	w.Flush()
-	if err := w.Error(); err != nil {
-		return nil, fmt.Errorf("batch: summary: %w", err)
+		row = append(row, num(r.NotDrawn), integer(r.Tiles), integer(r.Tiles2x),
+			integer(r.Bytes), csvCell{v: strconv.FormatFloat(r.Seconds, 'f', 3, 64)}, textCell(r.Error))
+		writeCSVRow(&b, row)
 	}
 	return b.Bytes(), nil
+}
+
+// csvCell is one cell of a CSV row; text cells may hold user text.
+type csvCell struct {
+	v    string
+	text bool
+}
+
+func textCell(v string) csvCell { return csvCell{v: v, text: true} }
+
+// writeCSVRow writes one RFC 4180 record ending in \n. A cell is quoted
+// when it holds a comma, a double quote, CR or LF, or starts with a space
+// or tab (as encoding/csv does). A text cell that a spreadsheet would read
+// as a formula, one starting with =, +, -, @, tab or CR, gets a single
+// quote in front and is always quoted (OWASP, "CSV Injection": prepend a
+// single quote, wrap the cell in double quotes, double any double quote).
+func writeCSVRow(b *bytes.Buffer, cells []csvCell) {
+	for i, c := range cells {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		v, quote := c.v, false
+		if c.text && v != "" && strings.IndexByte("=+-@\t\r", v[0]) >= 0 {
+			v, quote = "'"+v, true
+		}
+		if quote || strings.ContainsAny(v, ",\"\r\n") || strings.HasPrefix(v, " ") || strings.HasPrefix(v, "\t") {
+			b.WriteByte('"')
+			b.WriteString(strings.ReplaceAll(v, `"`, `""`))
+			b.WriteByte('"')
+			continue
+		}
+		b.WriteString(v)
+	}
+	b.WriteByte('\n')
 }

@@ -16,6 +16,7 @@ import (
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/geo/read"
+	"github.com/stipple-maps/stipple/geo/reftool"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
@@ -24,14 +25,24 @@ import (
 // GEOS) for every demo area and, when the shared data is there, every US
 // county (multipolygons, holes, both sides of the antimeridian).
 func TestRepresentativePointIsGEOSCentroid(t *testing.T) {
-	ogr := needTool(t, "ogr2ogr")
-	for _, c := range []struct{ file, layer, id string }{
-		{"../../examples/batch/quillmere.geojson", "quillmere", "code"},
-		{"/work/shared/data/us-counties.geojson", "us-counties", "geoid"},
+	ogr := reftool.Need(t, "ogr2ogr")
+	for _, c := range []struct {
+		file, layer, id string
+		shared          bool // in ../shared/data beside the repository root
+	}{
+		{"../../examples/batch/quillmere.geojson", "quillmere", "code", false},
+		{"us-counties.geojson", "us-counties", "geoid", true},
 	} {
-		if _, err := os.Stat(c.file); err != nil {
-			t.Logf("%s: not here, skipped", c.file)
-			continue
+		if c.shared {
+			p, err := reftool.SharedPath(c.file)
+			if err != nil {
+				if reftool.Required() {
+					t.Fatal(err)
+				}
+				t.Logf("%v: skipped", err)
+				continue
+			}
+			c.file = p
 		}
 		res, err := read.File(c.file, read.Options{IDField: c.id})
 		if err != nil {

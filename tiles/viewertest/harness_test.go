@@ -9,7 +9,6 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -20,21 +19,9 @@ import (
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/cdproto/target"
 	"github.com/chromedp/chromedp"
-)
 
-// needTool finds an external tool: a test without it skips, or fails when
-// STIPPLE_REQUIRE_TOOLS=1.
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1" {
-			t.Fatalf("%s required (STIPPLE_REQUIRE_TOOLS=1) but not found", name)
-		}
-		t.Skipf("%s not installed", name)
-	}
-	return p
-}
+	"github.com/stipple-maps/stipple/geo/reftool"
+)
 
 var (
 	tmpRoot string // removed after the tests
@@ -65,7 +52,7 @@ func TestMain(m *testing.M) {
 // a fresh profile).
 func browser(t *testing.T) context.Context {
 	t.Helper()
-	exe := needTool(t, "chromium")
+	exe := reftool.Need(t, "chromium")
 	browserOnce.Do(func() {
 		opts := []chromedp.ExecAllocatorOption{
 			chromedp.ExecPath(exe),

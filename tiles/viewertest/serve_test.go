@@ -13,13 +13,15 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
 // TestServeBindsLoopbackAndServesOnlyTheFolder runs the built stipple
 // binary's serve command on the demo output: it must listen on 127.0.0.1
 // only, serve the viewer, and give nothing from outside the folder.
 func TestServeBindsLoopbackAndServesOnlyTheFolder(t *testing.T) {
-	goTool := needTool(t, "go")
+	goTool := reftool.Need(t, "go")
 	f := demoTwo(t)
 	secret := filepath.Join(filepath.Dir(f.Dir), "secret.txt")
 	if err := os.WriteFile(secret, []byte("not for the web"), 0o644); err != nil {
