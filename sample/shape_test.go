@@ -94,9 +94,9 @@ func TestTriangulationCoversPolygon(t *testing.T) {
 		if !ok {
 			t.Fatalf("polygon %d (%d rings, %d vertices): triangulation failed", n, len(rings), len(rings[0])/2)
 		}
-		want := math.Abs(shoelace(rings[0]))
+		want := math.Abs(geo.RingArea(asRing(rings[0])))
 		for _, h := range rings[1:] {
-			want -= math.Abs(shoelace(h))
+			want -= math.Abs(geo.RingArea(asRing(h)))
 		}
 		sum := 0.0
 		for k := 0; k+5 < len(tri); k += 6 {
@@ -332,5 +332,25 @@ func TestAntimeridian(t *testing.T) {
 	want := 2 * math.Pi * (math.Sin(50*degToRad) - math.Sin(40*degToRad)) * 20 / 360
 	if math.Abs(s.Area()-want) > 1e-12 {
 		t.Errorf("area %v sr, want %v", s.Area(), want)
+	}
+}
+
+// asRing must show the same points as copying the flat ring pair by pair,
+// so that geo.RingArea on it is the shoelace area of the flat ring.
+func TestAsRingViewsFlatRing(t *testing.T) {
+	flat := []float64{-179.5, 0.25, 179.75, 0.5, 179.5, -0.125, -179.5, 0.25}
+	var want orb.Ring
+	for i := 0; i+1 < len(flat); i += 2 {
+		want = append(want, orb.Point{flat[i], flat[i+1]})
+	}
+	got := asRing(flat)
+	if !got.Equal(want) {
+		t.Fatalf("asRing = %v; want %v", got, want)
+	}
+	if a, b := geo.RingArea(got), geo.RingArea(want); a != b || a == 0 {
+		t.Errorf("RingArea of view %v, of copy %v", a, b)
+	}
+	if asRing(nil) != nil || asRing([]float64{1}) != nil {
+		t.Error("asRing of fewer than one point should be nil")
 	}
 }

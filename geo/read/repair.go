@@ -43,7 +43,7 @@ func Repair(res *Result) {
 					continue
 				}
 				crosses := SelfIntersects(r)
-				if area(r) == 0 && !crosses { // a bowtie's lobes cancel, but it has area
+				if geo.RingArea(r) == 0 && !crosses { // a bowtie's lobes cancel, but it has area
 					res.Repairs.DroppedRings++
 					note(f, "part %d %s %d has no area; dropped", pi, what, ri)
 					if ri == 0 {
@@ -90,15 +90,6 @@ func clean(r orb.Ring) (out orb.Ring, closed bool, dropped int) {
 		closed = true
 	}
 	return out, closed, dropped
-}
-
-func area(r orb.Ring) float64 {
-	var a float64
-	for i := 1; i < len(r); i++ {
-		a += (r[i-1][0] - r[0][0]) * (r[i][1] - r[0][1])
-		a -= (r[i][0] - r[0][0]) * (r[i-1][1] - r[0][1])
-	}
-	return a / 2
 }
 
 func jumps(r orb.Ring) bool {

@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // seedFiles returns the committed files with the given extension: the
@@ -78,7 +80,7 @@ func FuzzReadSHP(f *testing.F) {
 					if len(r) < 4 || r[0] != r[len(r)-1] {
 						t.Fatalf("ring %d not closed or too short: %v", k, r)
 					}
-					a := signedArea(r)
+					a := geo.RingArea(r)
 					if k == 0 && a <= 0 || k > 0 && a >= 0 {
 						t.Fatalf("ring %d has area %v: wrong winding", k, a)
 					}
