@@ -216,7 +216,7 @@ func onOutline(g orb.MultiPolygon, p orb.Point) bool {
 			for i := range ring {
 				a, b := ring[i], ring[(i+1)%len(ring)]
 				d := math.Abs(cross(a[0], a[1], b[0], b[1], p[0], p[1])) / math.Max(1e-300, math.Hypot(b[0]-a[0], b[1]-a[1]))
-				if (d < 1e-9 || (a == b && p == a)) && onSegment(a[0]-1e-9, a[1]-1e-9, b[0]+1e-9, b[1]+1e-9, p[0], p[1]) || p == a {
+				if (d < 1e-9 || (a == b && p == a)) && inBox(a[0]-1e-9, a[1]-1e-9, b[0]+1e-9, b[1]+1e-9, p[0], p[1]) || p == a {
 					return true
 				}
 			}
@@ -353,4 +353,9 @@ func TestAsRingViewsFlatRing(t *testing.T) {
 	if asRing(nil) != nil || asRing([]float64{1}) != nil {
 		t.Error("asRing of fewer than one point should be nil")
 	}
+}
+
+// inBox tells whether p lies within the box of ab.
+func inBox(ax, ay, bx, by, px, py float64) bool {
+	return math.Min(ax, bx) <= px && px <= math.Max(ax, bx) && math.Min(ay, by) <= py && py <= math.Max(ay, by)
 }
