@@ -2,6 +2,7 @@ package sample
 
 import (
 	"math"
+	"unsafe"
 
 	"github.com/paulmach/orb"
 )
@@ -115,21 +116,17 @@ func wrapLon(x float64) float64 {
 	return x - 180
 }
 
-// shoelace is the signed area of a closed flat ring, positive when it runs
-// counter-clockwise.
-// Coordinates are taken relative to the first vertex: with longitudes
-// near ±180 and small areas the plain formula loses most of its digits
-// (real county parts of 1e-9 sr came out 1e-6 off, relatively).
-func shoelace(r []float64) float64 {
+// asRing views a flat ring (x0, y0, x1, y1, …) as an orb.Ring without
+// copying, so that geo.RingArea serves the sampler's rings too. orb.Point is
+// [2]float64, so n points and 2n float64s have the same layout in memory.
+// (geo.RingArea takes coordinates relative to the first vertex: with
+// longitudes near ±180 and small areas the plain formula loses most of its
+// digits; real county parts of 1e-9 sr came out 1e-6 off, relatively.)
+func asRing(r []float64) orb.Ring {
 	if len(r) < 2 {
-		return 0
+		return nil
 	}
-	x0, y0 := r[0], r[1]
-	var a float64
-	for i := 2; i+1 < len(r); i += 2 {
-		a += (r[i-2]-x0)*(r[i+1]-y0) - (r[i]-x0)*(r[i-1]-y0)
-	}
-	return a / 2
+	return unsafe.Slice((*orb.Point)(unsafe.Pointer(unsafe.SliceData(r))), len(r)/2)
 }
 
 // bounds returns the bounding box of all rings.

@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 )
 
 const degToRad = math.Pi / 180
@@ -124,9 +125,9 @@ func newPart(poly orb.Polygon, force method) (part, bool) {
 	pt.ix = newEdgeIndex(pt.rings)
 	m := force
 	if pt.check == ringsSimple {
-		pt.area = math.Abs(shoelace(pt.rings[0]))
+		pt.area = math.Abs(geo.RingArea(asRing(pt.rings[0])))
 		for _, h := range pt.rings[1:] {
-			pt.area -= math.Abs(shoelace(h))
+			pt.area -= math.Abs(geo.RingArea(asRing(h)))
 		}
 		if !(pt.area > 0) {
 			return pt, false

@@ -94,9 +94,9 @@ func TestTriangulationCoversPolygon(t *testing.T) {
 		if !ok {
 			t.Fatalf("polygon %d (%d rings, %d vertices): triangulation failed", n, len(rings), len(rings[0])/2)
 		}
-		want := math.Abs(shoelace(rings[0]))
+		want := math.Abs(geo.RingArea(asRing(rings[0])))
 		for _, h := range rings[1:] {
-			want -= math.Abs(shoelace(h))
+			want -= math.Abs(geo.RingArea(asRing(h)))
 		}
 		sum := 0.0
 		for k := 0; k+5 < len(tri); k += 6 {
@@ -216,7 +216,7 @@ func onOutline(g orb.MultiPolygon, p orb.Point) bool {
 			for i := range ring {
 				a, b := ring[i], ring[(i+1)%len(ring)]
 				d := math.Abs(cross(a[0], a[1], b[0], b[1], p[0], p[1])) / math.Max(1e-300, math.Hypot(b[0]-a[0], b[1]-a[1]))
-				if (d < 1e-9 || (a == b && p == a)) && onSegment(a[0]-1e-9, a[1]-1e-9, b[0]+1e-9, b[1]+1e-9, p[0], p[1]) || p == a {
+				if (d < 1e-9 || (a == b && p == a)) && inBox(a[0]-1e-9, a[1]-1e-9, b[0]+1e-9, b[1]+1e-9, p[0], p[1]) || p == a {
 					return true
 				}
 			}
@@ -333,4 +333,29 @@ func TestAntimeridian(t *testing.T) {
 	if math.Abs(s.Area()-want) > 1e-12 {
 		t.Errorf("area %v sr, want %v", s.Area(), want)
 	}
+}
+
+// asRing must show the same points as copying the flat ring pair by pair,
+// so that geo.RingArea on it is the shoelace area of the flat ring.
+func TestAsRingViewsFlatRing(t *testing.T) {
+	flat := []float64{-179.5, 0.25, 179.75, 0.5, 179.5, -0.125, -179.5, 0.25}
+	var want orb.Ring
+	for i := 0; i+1 < len(flat); i += 2 {
+		want = append(want, orb.Point{flat[i], flat[i+1]})
+	}
+	got := asRing(flat)
+	if !got.Equal(want) {
+		t.Fatalf("asRing = %v; want %v", got, want)
+	}
+	if a, b := geo.RingArea(got), geo.RingArea(want); a != b || a == 0 {
+		t.Errorf("RingArea of view %v, of copy %v", a, b)
+	}
+	if asRing(nil) != nil || asRing([]float64{1}) != nil {
+		t.Error("asRing of fewer than one point should be nil")
+	}
+}
+
+// inBox tells whether p lies within the box of ab.
+func inBox(ax, ay, bx, by, px, py float64) bool {
+	return math.Min(ax, bx) <= px && px <= math.Max(ax, bx) && math.Min(ay, by) <= py && py <= math.Max(ay, by)
 }

@@ -1,6 +1,11 @@
 package sample
 
-import "math"
+import (
+	"math"
+
+	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
+)
 
 // ringCheck is what checkRings found out about one part's rings.
 type ringCheck int
@@ -70,7 +75,9 @@ func clampCell(f float64, n int) int {
 }
 
 // checkRings tells whether a part's rings (outer first, closed, in the
-// plane) form a simple polygon with holes. Edges are bucketed into a grid so
+// plane) form a simple polygon with holes. Segments are compared by
+// geo.SegmentsMeet, the test geo/read's SelfIntersects uses too (that one
+// checks a single ring in file coordinates for the repair notes). Edges are bucketed into a grid so
 // that only edges sharing a cell are compared; on a layout where that still
 // means too many comparisons it stops and answers ringsTouch.
 func checkRings(rings [][]float64) ringCheck {
@@ -150,10 +157,10 @@ func checkRings(rings [][]float64) ringCheck {
 					}
 					continue
 				}
-				switch segMeet(ax, ay, bx, by, cx, cy, dx, dy) {
-				case 2:
+				switch geo.SegmentsMeet(orb.Point{ax, ay}, orb.Point{bx, by}, orb.Point{cx, cy}, orb.Point{dx, dy}) {
+				case geo.SegmentsCross:
 					return ringsCross
-				case 1:
+				case geo.SegmentsTouch:
 					touch = true
 				}
 			}
@@ -183,29 +190,6 @@ func checkRings(rings [][]float64) ringCheck {
 		return ringsTouch
 	}
 	return ringsSimple
-}
-
-// segMeet says whether segments ab and cd meet: 0 not at all, 1 touching
-// (an end on the other segment, or collinear overlap), 2 crossing at one
-// point inside both.
-func segMeet(ax, ay, bx, by, cx, cy, dx, dy float64) int {
-	d1 := cross(cx, cy, dx, dy, ax, ay)
-	d2 := cross(cx, cy, dx, dy, bx, by)
-	d3 := cross(ax, ay, bx, by, cx, cy)
-	d4 := cross(ax, ay, bx, by, dx, dy)
-	if ((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0)) {
-		return 2
-	}
-	if (d1 == 0 && onSegment(cx, cy, dx, dy, ax, ay)) || (d2 == 0 && onSegment(cx, cy, dx, dy, bx, by)) ||
-		(d3 == 0 && onSegment(ax, ay, bx, by, cx, cy)) || (d4 == 0 && onSegment(ax, ay, bx, by, dx, dy)) {
-		return 1
-	}
-	return 0
-}
-
-// onSegment tells whether p, collinear with ab, lies within ab's box.
-func onSegment(ax, ay, bx, by, px, py float64) bool {
-	return math.Min(ax, bx) <= px && px <= math.Max(ax, bx) && math.Min(ay, by) <= py && py <= math.Max(ay, by)
 }
 
 // spike tells whether neighbouring edges ab and cd (sharing a vertex) are

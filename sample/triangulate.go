@@ -3,6 +3,8 @@ package sample
 import (
 	"math"
 	"sort"
+
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // Triangulation of a simple polygon with holes by ear clipping, after
@@ -39,7 +41,7 @@ func (l *earList) add(x, y float64) int32 {
 // circle, counter-clockwise when ccw, and returns one of its vertices.
 func (l *earList) ring(r []float64, ccw bool) int32 {
 	m := len(r)/2 - 1
-	rev := (shoelace(r) > 0) != ccw
+	rev := (geo.RingArea(asRing(r)) > 0) != ccw
 	first := int32(-1)
 	last := int32(-1)
 	for k := 0; k < m; k++ {

@@ -14,6 +14,7 @@ import (
 	"sync"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render"
 )
 
@@ -172,12 +173,11 @@ func outlineSegments(polys []orb.MultiPolygon) [][4]float64 {
 
 func lonToWorld(lon float64) float64 { return (lon + 180) / 360 }
 
-// mercY is the Web Mercator y of a latitude in world units, 0 at 85.0511°N
-// and 1 at 85.0511°S.
+// mercY is the Web Mercator y of a latitude in world units, 0 at
+// proj.WebMercatorMaxLat north and 1 at as far south.
 func mercY(lat float64) float64 {
-	lat = math.Max(-85.05112878, math.Min(85.05112878, lat))
-	s := math.Sin(lat * math.Pi / 180)
-	return 0.5 - math.Log((1+s)/(1-s))/(4*math.Pi)
+	lat = math.Max(-proj.WebMercatorMaxLat, math.Min(proj.WebMercatorMaxLat, lat))
+	return 0.5 - proj.MercatorYSin(math.Sin(lat*math.Pi/180))/(2*math.Pi)
 }
 
 func finite4(s [4]float64) bool {

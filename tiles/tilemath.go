@@ -5,6 +5,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/maptile"
+	"github.com/stipple-maps/stipple/geo/proj"
 )
 
 // Zoom is a tile zoom level.
@@ -39,7 +40,8 @@ func Cover(b orb.Bound, z Zoom) []maptile.Tile {
 }
 
 // MetresPerPixel is the ground resolution at a latitude for a zoom and tile
-// size: cos(lat)·2π·6378137 / (size·2^z) (Microsoft, "Bing Maps Tile System").
+// size: cos(lat)·2π·R / (size·2^z), R = proj.WebRadius = 6378137 m
+// (Microsoft, "Bing Maps Tile System").
 func MetresPerPixel(lat float64, z Zoom, size int) float64 {
-	return math.Cos(lat*math.Pi/180) * 2 * math.Pi * 6378137 / (float64(size) * math.Exp2(float64(z)))
+	return math.Cos(lat*math.Pi/180) * 2 * math.Pi * proj.WebRadius / (float64(size) * math.Exp2(float64(z)))
 }

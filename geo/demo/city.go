@@ -93,9 +93,9 @@ func City(seed uint64) *geo.Layer {
 				c := lonLat(uc, vc)
 				poly = append(poly, lake(c, 0.0022))
 			}
-			area := math.Abs(ringArea(ring))
+			area := math.Abs(geo.RingArea(ring))
 			if len(poly) > 1 {
-				area -= math.Abs(ringArea(poly[1]))
+				area -= math.Abs(geo.RingArea(poly[1]))
 			}
 			n++
 			f := geo.Feature{
@@ -198,12 +198,4 @@ func counts(rng *rand.Rand, u, v, area float64) []int {
 func bump(u, v, cu, cv, s float64) float64 {
 	d2 := (u-cu)*(u-cu) + (v-cv)*(v-cv)
 	return math.Exp(-d2 / (2 * s * s))
-}
-
-func ringArea(r orb.Ring) float64 {
-	var a float64
-	for i := 1; i < len(r); i++ {
-		a += r[i-1][0]*r[i][1] - r[i][0]*r[i-1][1]
-	}
-	return a / 2
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // GeoPackage 1.3 §2.1.3.1.1 "BLOB Format": the geometry column holds a
@@ -292,32 +293,15 @@ func decodeBlob(b []byte, maxVertices int) (orb.MultiPolygon, header, error) {
 }
 
 // orient makes outer rings counter-clockwise and holes clockwise
-// (RFC 7946 §3.1.6), judged by the sign of the shoelace area. Rings of zero
+// (RFC 7946 §3.1.6), judged by the sign of geo.RingArea. Rings of zero
 // area are left as stored.
 func orient(mp orb.MultiPolygon) {
 	for _, p := range mp {
 		for i, ring := range p {
-			a := signedArea(ring)
+			a := geo.RingArea(ring)
 			if (i == 0 && a < 0) || (i > 0 && a > 0) {
 				ring.Reverse()
 			}
 		}
 	}
-}
-
-// signedArea is twice the shoelace area: positive for counter-clockwise
-// rings in an x-east, y-north plane. Coordinates are shifted by the first
-// point to keep precision for small rings far from the origin.
-func signedArea(ring orb.Ring) float64 {
-	if len(ring) < 3 {
-		return 0
-	}
-	x0, y0 := ring[0][0], ring[0][1]
-	var s float64
-	for i := 1; i+1 < len(ring); i++ {
-		ax, ay := ring[i][0]-x0, ring[i][1]-y0
-		bx, by := ring[i+1][0]-x0, ring[i+1][1]-y0
-		s += ax*by - bx*ay
-	}
-	return s
 }

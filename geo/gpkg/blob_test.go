@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // byteOrder is what the builders below need: reading and appending.
@@ -292,7 +293,7 @@ func FuzzGeometryBlob(f *testing.F) {
 				n += len(r)
 				// Near-zero areas may change sign with summation order:
 				// judge only rings whose area is clear of rounding.
-				a, bb := signedArea(r), r.Bound()
+				a, bb := geo.RingArea(r), r.Bound()
 				if math.Abs(a) > 1e-9*(bb.Max[0]-bb.Min[0])*(bb.Max[1]-bb.Min[1]) && ((i == 0 && a < 0) || (i > 0 && a > 0)) {
 					t.Fatalf("polygon ring %d wound wrongly: area %v", i, a)
 				}

@@ -7,8 +7,32 @@ import "math"
 const WebRadius = 6378137.0
 
 // WebMercatorMaxLat is the latitude at which Web Mercator's square world
-// ends, atan(sinh π) in degrees; Forward clamps latitudes to ±this.
+// ends, atan(sinh π) in degrees; Forward clamps latitudes to ±this. It is
+// the one definition of that limit: tiles and the dot store use it too.
 const WebMercatorMaxLat = 85.0511287798066
+
+// MercatorY is the northing of latitude phi (radians) on the unit sphere,
+// ln tan(π/4 + φ/2) (IOGP GN7-2 method 1024 with R = 1, FN = 0); multiply
+// by WebRadius for EPSG:3857 metres. It does not clamp: ±π/2 give ±Inf.
+// This is the one forward formula of Web Mercator in the project (the dot
+// store's World keeps its own form; its doc comment says why).
+func MercatorY(phi float64) float64 { return math.Log(math.Tan(math.Pi/4 + phi/2)) }
+
+// MercatorPhi is the inverse of MercatorY: the latitude in radians of the
+// unit-sphere northing y, φ = π/2 − 2 atan(e^(−y)) (IOGP GN7-2 method 1024,
+// reverse).
+func MercatorPhi(y float64) float64 { return math.Pi/2 - 2*math.Atan(math.Exp(-y)) }
+
+// MercatorYSin is MercatorY computed from s = sin φ instead of φ:
+// atanh(s) = ½ ln((1+s)/(1−s)), since tan(π/4 + φ/2) = √((1+s)/(1−s)).
+// It needs no tangent, so a caller that already holds sin φ (the sampler's
+// equal-area plane) saves the trigonometry. s = ±1 gives ±Inf.
+//
+// It is written as ½ ln((1+s)/(1−s)) rather than math.Atanh because that is
+// the form tiles' outline drawing has always used (as does orb's
+// maptile.Fraction): keeping it keeps outline tiles byte-identical. The two
+// differ by rounding only (TestMercatorYSin).
+func MercatorYSin(s float64) float64 { return 0.5 * math.Log((1+s)/(1-s)) }
 
 // WebMercator is the Popular Visualisation Pseudo Mercator of EPSG:3857
 // (IOGP GN7-2 method 1024): the spherical Mercator formulas with
@@ -32,7 +56,7 @@ func (p WebMercator) Forward(lon, lat float64) (x, y float64) {
 	lat = math.Max(-WebMercatorMaxLat, math.Min(WebMercatorMaxLat, lat))
 	l := wrapRad((lon - p.Lon0) * deg)
 	return p.FalseEasting + WebRadius*l,
-		p.FalseNorthing + WebRadius*math.Log(math.Tan(math.Pi/4+lat*deg/2))
+		p.FalseNorthing + WebRadius*MercatorY(lat*deg)
 }
 
 // Inverse maps metres back to lon, lat in degrees.
@@ -40,8 +64,7 @@ func (p WebMercator) Inverse(x, y float64) (lon, lat float64) {
 	if math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) {
 		return math.NaN(), math.NaN()
 	}
-	// φ = π/2 − 2 atan(e^(−N/R)) (IOGP GN7-2 method 1024, inverse).
-	lat = (math.Pi/2 - 2*math.Atan(math.Exp(-(y-p.FalseNorthing)/WebRadius))) / deg
+	lat = MercatorPhi((y-p.FalseNorthing)/WebRadius) / deg
 	lon = wrapDeg(p.Lon0 + (x-p.FalseEasting)/WebRadius/deg)
 	return lon, lat
 }

@@ -253,3 +253,54 @@ func TestConstructorErrors(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// MercatorY, MercatorPhi and MercatorYSin on the IOGP Guidance Note 7-2
+// worked example for method 1024 (Popular Visualisation Pseudo Mercator):
+// φ = 0.425542460 rad → N = 2 800 000.00 m; N = 2 810 000.00 m →
+// φ = 0.426970023 rad; R = 6 378 137 m. The square world's edge
+// atan(sinh π) maps to π (CHECKS.md, computed).
+func TestMercatorFormulasIOGPExample(t *testing.T) {
+	phi := dms(24, 22, 54.433) * deg
+	near(t, "R·MercatorY", WebRadius*MercatorY(phi), 2800000.00, 0.01)
+	near(t, "R·MercatorYSin", WebRadius*MercatorYSin(math.Sin(phi)), 2800000.00, 0.01)
+	near(t, "MercatorPhi", MercatorPhi(2810000.00/WebRadius), 0.426970023, 5e-10)
+	near(t, "MercatorY(max lat)", MercatorY(WebMercatorMaxLat*deg), math.Pi, 1e-13)
+	near(t, "MercatorYSin(max lat)", MercatorYSin(math.Sin(WebMercatorMaxLat*deg)), math.Pi, 1e-13)
+}
+
+// MercatorYSin against the tan/log form and against math.Atanh, every
+// 0.001° from −89.999° to 89.999°; and MercatorPhi undoing both. The bound
+// follows from conditioning: rounding sin φ (half an ulp, 1.1e-16 relative)
+// moves atanh(s) by up to 1.1e-16·dy/ds = 1.1e-16·sec²φ, so near the poles
+// the sin form is worth fewer digits than the tan form (1e-8 at 89.999°,
+// 1e-14 at the square world's edge); allow 4× that plus 4 ulps of y.
+func TestMercatorYSinMatchesTanForm(t *testing.T) {
+	worst, worstAtanh := 0.0, 0.0
+	for k := -89999; k <= 89999; k++ {
+		lat := float64(k) / 1000
+		phi := lat * deg
+		yt := MercatorY(phi)
+		ys := MercatorYSin(math.Sin(phi))
+		c := math.Cos(phi)
+		tol := 4 * (1.1e-16/(c*c) + 2.2e-16*math.Max(1, math.Abs(yt)))
+		if d := math.Abs(ys - yt); !(d <= tol) {
+			t.Fatalf("lat %.3f: MercatorYSin %.17g, tan form %.17g (off %.3g, tol %.3g)", lat, ys, yt, d, tol)
+		} else {
+			worst = math.Max(worst, d/tol)
+		}
+		if d := math.Abs(ys - math.Atanh(math.Sin(phi))); !(d <= tol) {
+			t.Fatalf("lat %.3f: MercatorYSin %.17g, atanh %.17g", lat, ys, math.Atanh(math.Sin(phi)))
+		} else {
+			worstAtanh = math.Max(worstAtanh, d/tol)
+		}
+		if back := MercatorPhi(ys) / deg; !(math.Abs(back-lat) <= 1e-9) {
+			t.Fatalf("lat %.3f: MercatorPhi(MercatorYSin) = %.12f", lat, back)
+		}
+	}
+	t.Logf("worst difference / tolerance: tan form %.3f, atanh %.3f", worst, worstAtanh)
+	for _, s := range []float64{1, -1} {
+		if y := MercatorYSin(s); !math.IsInf(y, int(s)) {
+			t.Errorf("MercatorYSin(%v) = %v; want %v·Inf", s, y, s)
+		}
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/reftool"
 	"github.com/stipple-maps/stipple/geo/table"
 )
 
@@ -84,7 +85,7 @@ func TestCountTextsInEveryFormat(t *testing.T) {
 	writeCountGeoJSON(t, src)
 	paths := map[string]string{"GeoJSON": src}
 	if ogrWanted() {
-		ogr := needTool(t, "ogr2ogr")
+		ogr := reftool.Need(t, "ogr2ogr")
 		for _, f := range []struct{ name, driver, file string }{
 			{"Shapefile DBF", "ESRI Shapefile", "counts.shp"},
 			{"GeoPackage", "GPKG", "counts.gpkg"},
@@ -139,5 +140,5 @@ func TestCountTextsInEveryFormat(t *testing.T) {
 // STIPPLE_REQUIRE_TOOLS=1; without it the GeoJSON and CSV cases still run.
 func ogrWanted() bool {
 	_, err := exec.LookPath("ogr2ogr")
-	return err == nil || os.Getenv("STIPPLE_REQUIRE_TOOLS") == "1"
+	return err == nil || reftool.Required()
 }

@@ -43,7 +43,7 @@ func Repair(res *Result) {
 					continue
 				}
 				crosses := SelfIntersects(r)
-				if area(r) == 0 && !crosses { // a bowtie's lobes cancel, but it has area
+				if geo.RingArea(r) == 0 && !crosses { // a bowtie's lobes cancel, but it has area
 					res.Repairs.DroppedRings++
 					note(f, "part %d %s %d has no area; dropped", pi, what, ri)
 					if ri == 0 {
@@ -92,15 +92,6 @@ func clean(r orb.Ring) (out orb.Ring, closed bool, dropped int) {
 	return out, closed, dropped
 }
 
-func area(r orb.Ring) float64 {
-	var a float64
-	for i := 1; i < len(r); i++ {
-		a += (r[i-1][0] - r[0][0]) * (r[i][1] - r[0][1])
-		a -= (r[i][0] - r[0][0]) * (r[i-1][1] - r[0][1])
-	}
-	return a / 2
-}
-
 func jumps(r orb.Ring) bool {
 	for i := 1; i < len(r); i++ {
 		if math.Abs(r[i][0]-r[i-1][0]) > 180 {
@@ -111,8 +102,15 @@ func jumps(r orb.Ring) bool {
 }
 
 // SelfIntersects reports whether two non-adjacent edges of the closed ring
-// cross or touch. It sweeps edges sorted by their west end, so compact rings
-// cost about n log n.
+// cross or touch (geo.SegmentsMeet). It sweeps edges sorted by their west
+// end, so compact rings cost about n log n.
+//
+// The sampler has its own ring check (sample's checkRings) on the same
+// segment test: it answers a different question (all rings of a part at
+// once, in its equal-area plane after antimeridian unwrapping; touching
+// apart from crossing; holes outside or nested) and buckets edges in a grid
+// for parts of tens of thousands of vertices. This one reports, per ring
+// and in the file's coordinates, what the notes say.
 func SelfIntersects(r orb.Ring) bool {
 	n := len(r) - 1 // edges
 	if n < 4 {
@@ -140,7 +138,7 @@ func SelfIntersects(r orb.Ring) bool {
 			if adjacent(a, e, n) {
 				continue
 			}
-			if segmentsTouch(r[a], r[a+1], r[e], r[e+1]) {
+			if geo.SegmentsMeet(r[a], r[a+1], r[e], r[e+1]) != geo.SegmentsApart {
 				return true
 			}
 		}
@@ -155,23 +153,4 @@ func adjacent(a, b, n int) bool {
 		d = -d
 	}
 	return d <= 1 || d == n-1
-}
-
-func orient(a, b, c orb.Point) float64 {
-	return (b[0]-a[0])*(c[1]-a[1]) - (b[1]-a[1])*(c[0]-a[0])
-}
-
-func onSegment(a, b, p orb.Point) bool {
-	return math.Min(a[0], b[0]) <= p[0] && p[0] <= math.Max(a[0], b[0]) &&
-		math.Min(a[1], b[1]) <= p[1] && p[1] <= math.Max(a[1], b[1])
-}
-
-func segmentsTouch(p1, p2, q1, q2 orb.Point) bool {
-	d1, d2 := orient(q1, q2, p1), orient(q1, q2, p2)
-	d3, d4 := orient(p1, p2, q1), orient(p1, p2, q2)
-	if ((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0)) {
-		return true
-	}
-	return (d1 == 0 && onSegment(q1, q2, p1)) || (d2 == 0 && onSegment(q1, q2, p2)) ||
-		(d3 == 0 && onSegment(p1, p2, q1)) || (d4 == 0 && onSegment(p1, p2, q2))
 }

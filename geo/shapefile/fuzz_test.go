@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/reftool"
 )
 
@@ -80,7 +81,7 @@ func FuzzReadSHP(f *testing.F) {
 					if len(r) < 4 || r[0] != r[len(r)-1] {
 						t.Fatalf("ring %d not closed or too short: %v", k, r)
 					}
-					a := signedArea(r)
+					a := geo.RingArea(r)
 					if k == 0 && a <= 0 || k > 0 && a >= 0 {
 						t.Fatalf("ring %d has area %v: wrong winding", k, a)
 					}

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // ringInfo is one usable ring of a record with what assembly needs.
@@ -50,7 +51,7 @@ func assemble(parts []orb.Ring) (orb.MultiPolygon, []string) {
 			r = append(r, r[0]) // copies: parts carry a capped capacity
 			unclosed = append(unclosed, k)
 		}
-		a, bound := areaWithBound(r)
+		a, bound := geo.RingAreaBound(r)
 		if math.IsInf(bound, 0) || math.IsNaN(a) {
 			huge = append(huge, k)
 			continue
@@ -177,31 +178,6 @@ func cmpFloat(a, b float64) int {
 		return 1
 	}
 	return 0
-}
-
-// signedArea is the shoelace area, positive for counter-clockwise rings with
-// y up. Coordinates are taken relative to the first vertex so that large
-// offsets (projected metres) do not swamp the products.
-func signedArea(r orb.Ring) float64 {
-	a, _ := areaWithBound(r)
-	return a
-}
-
-// areaWithBound returns signedArea and a bound on its rounding error: with
-// m terms, |computed − exact| ≤ γ·Σ|products|, γ = (m+2)·2⁻⁵² (a generous
-// form of the standard summation bound, Higham, "Accuracy and Stability of
-// Numerical Algorithms", §4.2, from memory). When |area| > 2·bound the sign
-// is certain and survives reversing the ring.
-func areaWithBound(r orb.Ring) (area, bound float64) {
-	x0, y0 := r[0][0], r[0][1]
-	var s, abs float64
-	for i := 1; i+1 < len(r); i++ {
-		p := (r[i][0] - x0) * (r[i+1][1] - y0)
-		q := (r[i+1][0] - x0) * (r[i][1] - y0)
-		s += p - q
-		abs += math.Abs(p) + math.Abs(q)
-	}
-	return s / 2, float64(len(r)+2) * 0x1p-52 * abs / 2
 }
 
 func boundWithin(in, out orb.Bound) bool {

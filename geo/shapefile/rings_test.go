@@ -3,7 +3,6 @@ package shapefile
 import (
 	"fmt"
 	"math"
-	"math/big"
 	"math/rand/v2"
 	"reflect"
 	"slices"
@@ -11,6 +10,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
+	"github.com/stipple-maps/stipple/geo"
 )
 
 // randomStar returns a closed star-shaped ring around (cx, cy), clockwise
@@ -71,67 +71,6 @@ func TestClassifyVsOrb(t *testing.T) {
 	}
 }
 
-// exactArea is the shoelace sum in exact arithmetic (math/big at 4096 bits
-// holds every product and sum of float64 here without rounding), using the
-// same relative coordinates as areaWithBound so only the summation differs.
-func exactArea(r orb.Ring) *big.Float {
-	x0, y0 := r[0][0], r[0][1]
-	s := new(big.Float).SetPrec(4096)
-	for i := 1; i+1 < len(r); i++ {
-		a := new(big.Float).SetPrec(4096).SetFloat64(r[i][0] - x0)
-		b := new(big.Float).SetPrec(4096).SetFloat64(r[i+1][1] - y0)
-		c := new(big.Float).SetPrec(4096).SetFloat64(r[i+1][0] - x0)
-		d := new(big.Float).SetPrec(4096).SetFloat64(r[i][1] - y0)
-		s.Add(s, new(big.Float).SetPrec(4096).Mul(a, b))
-		s.Sub(s, new(big.Float).SetPrec(4096).Mul(c, d))
-	}
-	return s.Quo(s, big.NewFloat(2))
-}
-
-// TestAreaBoundVsExact checks areaWithBound against the exact sum: the error
-// stays under the bound, and whenever |area| > 2·bound the sign is right for
-// the ring and for its reverse. Rings include nearly collinear slivers far
-// from the origin, where the sign is hard.
-func TestAreaBoundVsExact(t *testing.T) {
-	seed := uint64(7)
-	t.Logf("seed %d", seed)
-	rng := rand.New(rand.NewPCG(seed, 2))
-	decided := 0
-	for k := 0; k < 2000; k++ {
-		var r orb.Ring
-		if k%2 == 0 {
-			r = randomStar(rng, 1e6*rng.Float64(), 1e6*rng.Float64(), 3+rng.IntN(50), rng.IntN(2) == 0)
-		} else {
-			// A sliver: points on a line with tiny offsets.
-			x0, y0 := rng.Float64()*1e7, rng.Float64()*1e7
-			n := 3 + rng.IntN(10)
-			for i := 0; i < n; i++ {
-				tt := rng.Float64()
-				r = append(r, orb.Point{x0 + tt*1000, y0 + tt*777 + (rng.Float64()-0.5)*1e-9})
-			}
-			r = append(r, r[0])
-		}
-		a, bound := areaWithBound(r)
-		exact := exactArea(r)
-		diff := new(big.Float).Sub(new(big.Float).SetFloat64(a), exact)
-		if d, _ := diff.Float64(); math.Abs(d) > bound {
-			t.Fatalf("ring %d: error %g above bound %g", k, d, bound)
-		}
-		if math.Abs(a) > 2*bound {
-			decided++
-			rev := slices.Clone(r)
-			slices.Reverse(rev)
-			ar, _ := areaWithBound(rev)
-			if (a > 0) != (exact.Sign() > 0) || (ar > 0) == (a > 0) {
-				t.Fatalf("ring %d: area %g, reversed %g, exact sign %d", k, a, ar, exact.Sign())
-			}
-		}
-	}
-	if decided < 1000 {
-		t.Errorf("only %d of 2000 rings had a certain sign", decided)
-	}
-}
-
 // TestAssembleNested builds islands of concentric squares (depth 0 outer
 // clockwise, depth 1 hole, depth 2 outer, ...), shuffles all rings and
 // checks that every hole lands in the outer ring just outside it: the
@@ -187,7 +126,7 @@ func TestAssembleNested(t *testing.T) {
 		// Outer rings keep their file order.
 		var order []string
 		for _, r := range rings {
-			if a, _ := areaWithBound(r); a < 0 {
+			if geo.RingArea(r) < 0 {
 				order = append(order, fmt.Sprint(reversedCopy(r)))
 			}
 		}

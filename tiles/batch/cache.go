@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
@@ -114,7 +115,7 @@ func (c *tileCache) path(z, x, y int, suffix string) string {
 // Cover lists the tiles at zoom z that meet bound b, clamped to the Web
 // Mercator square (±85.0511°).
 func Cover(b orb.Bound, z int) [][2]int {
-	const maxLat = 85.05112878
+	const maxLat = proj.WebMercatorMaxLat
 	b.Min[1] = math.Max(b.Min[1], -maxLat)
 	b.Max[1] = math.Min(b.Max[1], maxLat)
 	b.Min[0] = math.Max(b.Min[0], -180)

@@ -3,6 +3,8 @@ package dotstore
 import (
 	"math"
 	"testing"
+
+	"github.com/stipple-maps/stipple/geo/proj"
 )
 
 // metres converts world cells back to EPSG:3857 metres (cell centre).
@@ -56,6 +58,27 @@ func TestKeyRoundTripAndTileRuns(t *testing.T) {
 		first, last := TileRange(z, int(300000000>>s), int(200000000>>s))
 		if k < first || k > last {
 			t.Fatalf("z%d: key %x outside its tile's range [%x, %x]", z, k, first, last)
+		}
+	}
+}
+
+// World keeps its own form of the Mercator northing (see its doc comment).
+// It must name the same cell as proj.MercatorY (IOGP GN7-2 method 1024, the
+// one shared formula) up to rounding: every 0.001° from 85°S to 85°N, the
+// world positions differ by less than 1e-5 of a cell, so the cells are the
+// same or, for a point on a cell edge, neighbours. CellLonLat, built on
+// proj.MercatorPhi, must lead back to the same cell.
+func TestWorldMatchesProjMercator(t *testing.T) {
+	for k := -85000; k <= 85000; k++ {
+		lat := float64(k) / 1000
+		lon := float64(k%360000)/1000 - 0.0005
+		x, y := World(lon, lat)
+		fy := (0.5 - proj.MercatorY(lat*math.Pi/180)/(2*math.Pi)) * WorldSize
+		if d := math.Abs(fy - (float64(y) + 0.5)); !(d <= 0.5+1e-5) {
+			t.Fatalf("lat %.3f: World y = %d, proj.MercatorY gives %.6f cells", lat, y, fy)
+		}
+		if x2, y2 := World(CellLonLat(x, y)); x2 != x || y2 != y {
+			t.Fatalf("lat %.3f: World(CellLonLat(%d, %d)) = (%d, %d)", lat, x, y, x2, y2)
 		}
 	}
 }

@@ -1,6 +1,10 @@
 package dotstore
 
-import "math"
+import (
+	"math"
+
+	"github.com/stipple-maps/stipple/geo/proj"
+)
 
 // WorldBits is the precision of a dot's world coordinates, in bits per axis.
 const WorldBits = 29
@@ -27,7 +31,15 @@ func Split(k uint64) (x, y uint32, cat int) {
 
 // World converts longitude/latitude degrees to world coordinates (Web
 // Mercator, OSM wiki "Slippy map tilenames" numbering scaled to 2^29 cells).
-// Latitudes beyond ±85.0511° are clamped to the edge of the square world.
+// Latitudes beyond ±proj.WebMercatorMaxLat are clamped to the edge of the
+// square world.
+//
+// World keeps the wiki's form ln(tan φ + sec φ) of the Mercator northing
+// instead of calling proj.MercatorY (ln tan(π/4 + φ/2)): the two differ by
+// rounding only (TestWorldMatchesProjMercator), but a changed last bit can
+// move a dot into the next cell, and dot keys must stay the same as those in
+// stores and shards written before. Change it only together with a
+// byte-identity check of dot keys and tiles.
 func World(lon, lat float64) (x, y uint32) {
 	fx := (lon + 180) / 360
 	phi := lat * math.Pi / 180
@@ -89,6 +101,6 @@ func CellLonLat(x, y uint32) (lon, lat float64) {
 	fx := (float64(x) + 0.5) / WorldSize
 	fy := (float64(y) + 0.5) / WorldSize
 	lon = fx*360 - 180
-	lat = (math.Pi/2 - 2*math.Atan(math.Exp(-math.Pi*(1-2*fy)))) * 180 / math.Pi
+	lat = proj.MercatorPhi(math.Pi*(1-2*fy)) * 180 / math.Pi
 	return lon, lat
 }

@@ -4,6 +4,7 @@ import (
 	"math"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
@@ -75,8 +76,8 @@ type Estimate struct {
 }
 
 // FillOf is the share of its bound that a lon/lat multipolygon covers, in
-// Web Mercator (shoelace area of the projected rings, holes subtracted, over
-// the projected bound's area); 1 for a degenerate bound.
+// Web Mercator (geo.RingArea of the rings projected to world cells, holes
+// subtracted, over the projected bound's area); 1 for a degenerate bound.
 func FillOf(mp orb.MultiPolygon) float64 {
 	b := mp.Bound()
 	x0, y0, x1, y1 := worldBound(b)
@@ -85,16 +86,15 @@ func FillOf(mp orb.MultiPolygon) float64 {
 		return 1
 	}
 	area := 0.0
+	var w orb.Ring
 	for _, poly := range mp {
 		for k, ring := range poly {
-			a := 0.0
-			for i := range ring {
-				j := (i + 1) % len(ring)
-				xi, yi := dotstore.World(ring[i][0], ring[i][1])
-				xj, yj := dotstore.World(ring[j][0], ring[j][1])
-				a += float64(xi)*float64(yj) - float64(xj)*float64(yi)
+			w = w[:0]
+			for _, p := range ring {
+				x, y := dotstore.World(p[0], p[1])
+				w = append(w, orb.Point{float64(x), float64(y)})
 			}
-			a = math.Abs(a) / 2
+			a := math.Abs(geo.RingArea(w))
 			if k == 0 {
 				area += a
 			} else {
