@@ -100,7 +100,7 @@ func WriteReport(ctx context.Context, out sink.Sink, r *Report, s *Summary) erro
 }
 
 // ReadReport loads shard i's report and summary; ok is false when the
-// shard has not finished (no report).
+// shard has not finished (no report, or the report of an older format).
 func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Summary, ok bool, err error) {
 	j, err := out.Get(ctx, ReportPath(i, n))
 	if errors.Is(err, sink.ErrNotExist) {
@@ -110,6 +110,9 @@ func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Sum
 		return nil, nil, false, err
 	}
 	r = &Report{}
+	if err := json.Unmarshal(j, r); err == nil && r.Format != ReportFormat && strings.HasPrefix(r.Format, "stipple-shard/") {
+		return nil, nil, false, nil // an older stipple's report: the shard is to be redone
+	}
 	if err := json.Unmarshal(j, r); err != nil || r.Format != ReportFormat {
 		return nil, nil, false, fmt.Errorf("shard: %s/%s: not a shard report (%v)", out, ReportPath(i, n), err)
 	}
