@@ -52,17 +52,3 @@ func TestParseShard(t *testing.T) {
 		}
 	}
 }
-
-func TestTilePath(t *testing.T) {
-	for p, want := range map[string][3]int{"9/261/170.png": {9, 261, 170}, "12/0/4095@2x.png": {12, 0, 4095}} {
-		z, x, y, ok := tilePath(p)
-		if !ok || [3]int{z, x, y} != want {
-			t.Errorf("tilePath(%q) = %d %d %d %v", p, z, x, y, ok)
-		}
-	}
-	for _, p := range []string{"map.json", "legend.png", "9/x/1.png", "9/1/1.jpg", ".stipple/shards/0000-of-0004.json"} {
-		if _, _, _, ok := tilePath(p); ok {
-			t.Errorf("tilePath(%q) accepted", p)
-		}
-	}
-}
