@@ -1,6 +1,9 @@
 package main
 
 import (
+	"bytes"
+	"context"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -51,4 +54,29 @@ func TestParseShard(t *testing.T) {
 			t.Errorf("parseShard(%q) = %v, %v; want %s", c.v, got, err, c.want)
 		}
 	}
+}
+
+// TestRenderFileURLEqualsFolder: render with --out file:///DIR goes
+// through the same one-machine run as --out DIR (no sharded detour) and
+// writes the same files, byte for byte.
+func TestRenderFileURLEqualsFolder(t *testing.T) {
+	if testing.Short() {
+		t.Skip("renders the demo twice")
+	}
+	root := t.TempDir()
+	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	folder, viaURL := filepath.Join(root, "folder"), filepath.Join(root, "url")
+	for _, out := range []string{folder, "file://" + filepath.ToSlash(viaURL)} {
+		var log bytes.Buffer
+		if err := cmdRender(context.Background(), []string{m.Path, "--out", out, "--workers", "2"}, &log, &log); err != nil {
+			t.Fatalf("--out %s: %v\n%s", out, err, log.String())
+		}
+		if strings.Contains(log.String(), "shard") {
+			t.Errorf("--out %s took the sharded path:\n%s", out, log.String())
+		}
+	}
+	compareTrees(t, publicFiles(t, folder), publicFiles(t, viaURL))
 }
