@@ -3,6 +3,7 @@ package tiles
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -12,6 +13,7 @@ import (
 
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // pngFiles lists a pyramid's tile files (relative paths) with their bytes.
@@ -154,4 +156,52 @@ func atoi(t *testing.T, s string) int {
 		v = 10*v + int(c-'0')
 	}
 	return v
+}
+
+// TestNewFingerprintRemovesOnlyKeptTiles: two writers with complementary
+// Keep filters share one output folder, each with its own state folder
+// (the parts of a sharded render). When one of them runs again with a new
+// fingerprint it clears its own old tiles first, and must leave the other's
+// alone: the output still holds the whole write's tiles, byte for byte.
+func TestNewFingerprintRemovesOnlyKeptTiles(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 5))
+	var keys []uint64
+	for i := 0; i < 8000; i++ {
+		wx, wy := worldAt(8, 30000+rng.Float64()*500, 20000+rng.Float64()*400)
+		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
+	}
+	src := sorted(keys)
+	look := func(z int) render.Dot {
+		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-10)), Opacity: 0.9}
+	}
+	opt := Options{MinZoom: 4, MaxZoom: 10, TileSize: 256, Colors: testColors, Look: look, Workers: 2, HiDPI: true}
+	whole := opt
+	whole.Dir = t.TempDir()
+	if _, err := Write(context.Background(), src, whole); err != nil {
+		t.Fatal(err)
+	}
+	want := pngFiles(t, whole.Dir)
+	out := t.TempDir()
+	keep := func(z, x, y int) bool { return (x+y+z)%2 == 0 }
+	part := func(mine bool, fp string) Options {
+		o := opt
+		o.Out, o.Fingerprint = sink.NewDir(out), fp
+		o.Dir = filepath.Join(out, StateDir, fmt.Sprint("part-", mine))
+		o.Keep = func(z, x, y int) bool { return keep(z, x, y) == mine }
+		return o
+	}
+	for _, o := range []Options{part(true, "a"), part(false, "a"), part(true, "b")} {
+		if _, err := Write(context.Background(), src, o); err != nil {
+			t.Fatal(err)
+		}
+	}
+	got := pngFiles(t, out)
+	if len(got) != len(want) {
+		t.Fatalf("the shared folder holds %d tiles; the whole write %d", len(got), len(want))
+	}
+	for rel, b := range want {
+		if !bytes.Equal(got[rel], b) {
+			t.Fatalf("tile %s missing or different", rel)
+		}
+	}
 }

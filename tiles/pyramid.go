@@ -140,7 +140,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	}
 	w := &writer{ctx: ctx, opt: opt, src: asIndexed(src), st: Stats{PerZoom: map[int]int64{}}}
 	w.rel, _ = src.(releaser)
-	man, resuming, err := openManifest(ctx, opt.Dir, opt.Out, opt.Fingerprint)
+	man, resuming, err := openManifest(ctx, opt.Dir, opt.Out, opt.Fingerprint, opt.Keep)
 	if err != nil {
 		return Stats{}, err
 	}

@@ -40,9 +40,11 @@ func manifestPath(dir string) string { return filepath.Join(dir, StateDir, manif
 
 // openManifest loads the manifest for fingerprint fp. It reports resuming =
 // true when an earlier run with the same fingerprint left tiles to keep. A
-// manifest with another fingerprint has its zoom folders removed first, so
-// no tile of an old look survives beside the new ones.
-func openManifest(ctx context.Context, dir string, out sink.Sink, fp string) (man *manifest, resuming bool, err error) {
+// manifest with another fingerprint has its zooms' tiles removed first, so
+// no tile of an old look survives beside the new ones; with keep set, only
+// the tiles keep accepts (a part of a sharded render removes its own
+// tiles, never those of the other parts sharing the output).
+func openManifest(ctx context.Context, dir string, out sink.Sink, fp string, keep func(z, x, y int) bool) (man *manifest, resuming bool, err error) {
 	man = &manifest{Fingerprint: fp, Done: map[string]ZoomStats{}}
 	data, err := os.ReadFile(manifestPath(dir))
 	if err == nil {
@@ -55,7 +57,7 @@ func openManifest(ctx context.Context, dir string, out sink.Sink, fp string) (ma
 		}
 		if json.Unmarshal(data, &old) == nil {
 			for _, zk := range old.Zooms {
-				if err := removeZoom(ctx, out, zk); err != nil {
+				if err := removeZoom(ctx, out, zk, keep); err != nil {
 					return nil, false, err
 				}
 			}
@@ -67,22 +69,37 @@ func openManifest(ctx context.Context, dir string, out sink.Sink, fp string) (ma
 }
 
 // removeZoom deletes the tiles of zoom key zk ("z" or "z@2x") from out and
-// nothing else: the other pass's files in the same folders are kept.
-func removeZoom(ctx context.Context, out sink.Sink, zk string) error {
+// nothing else: the other pass's files in the same folders are kept, and
+// so are the tiles keep (when set) rejects.
+func removeZoom(ctx context.Context, out sink.Sink, zk string, keep func(z, x, y int) bool) error {
 	z, suffix, _ := strings.Cut(zk, "@")
-	if _, err := strconv.Atoi(z); err != nil {
+	zi, err := strconv.Atoi(z)
+	if err != nil {
 		return nil // not ours
 	}
-	match := func(name string) bool { return strings.HasSuffix(name, ".png") && !strings.Contains(name, "@") }
+	ours := func(name string) bool { return strings.HasSuffix(name, ".png") && !strings.Contains(name, "@") }
 	if suffix != "" {
-		match = func(name string) bool { return strings.HasSuffix(name, "@"+suffix+".png") }
+		ours = func(name string) bool { return strings.HasSuffix(name, "@"+suffix+".png") }
+	}
+	// match takes a tile's column folder and file name.
+	match := func(col, name string) bool {
+		if !ours(name) {
+			return false
+		}
+		if keep == nil {
+			return true
+		}
+		x, errX := strconv.Atoi(col)
+		y, errY := strconv.Atoi(strings.TrimSuffix(strings.TrimSuffix(name, ".png"), "@"+suffix))
+		return errX == nil && errY == nil && keep(zi, x, y)
 	}
 	if d, ok := out.(*sink.Dir); ok {
 		return walkRemove(filepath.Join(d.Root(), z), match)
 	}
 	var old []string
 	if err := out.List(ctx, z+"/", func(p string, _ int64) error {
-		if match(p) {
+		parts := strings.Split(p, "/")
+		if len(parts) == 3 && match(parts[1], parts[2]) {
 			old = append(old, p)
 		}
 		return nil
@@ -97,7 +114,7 @@ func removeZoom(ctx context.Context, out sink.Sink, zk string) error {
 	return nil
 }
 
-func walkRemove(zdir string, match func(string) bool) error {
+func walkRemove(zdir string, match func(col, name string) bool) error {
 	cols, err := os.ReadDir(zdir)
 	if os.IsNotExist(err) {
 		return nil
@@ -115,7 +132,7 @@ func walkRemove(zdir string, match func(string) bool) error {
 			return fmt.Errorf("tiles: %w", err)
 		}
 		for _, f := range files {
-			if match(f.Name()) {
+			if match(c.Name(), f.Name()) {
 				if err := os.Remove(filepath.Join(cdir, f.Name())); err != nil {
 					return fmt.Errorf("tiles: %w", err)
 				}

@@ -11,6 +11,7 @@ import (
 
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/shard"
 )
 
@@ -41,11 +42,15 @@ func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err := o.apply(m); err != nil {
 		return err
 	}
-	sm, err := planShards(m, *n, o.hidpi || m.Tiles.HiDPI)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
 	}
-	p := makePlan(sm)
+	sp, err := mapjob.PlanShards(in, m, *n, o.hidpi || m.Tiles.HiDPI)
+	if err != nil {
+		return err
+	}
+	p := makePlan(sp)
 	if *asJSON {
 		b, _ := json.MarshalIndent(p, "", "  ")
 		_, err := fmt.Fprintf(stdout, "%s\n", b)
@@ -71,18 +76,18 @@ type shardWork struct {
 	Share float64 `json:"share_of_dots"`
 }
 
-func makePlan(sm *shardedMap) *shardPlan {
-	areas := areasOf(sm.m, sm.in)
+func makePlan(sp *mapjob.ShardPlan) *shardPlan {
+	areas := sp.Areas
 	rates := shard.MeasuredRates
-	est := shard.EstimateTiles(areas, sm.layout, rates)
-	p := &shardPlan{Layout: sm.layout, Est: est, Rates: rates, Areas: len(areas)}
+	est := shard.EstimateTiles(areas, sp.Layout, rates)
+	p := &shardPlan{Layout: sp.Layout, Est: est, Rates: rates, Areas: len(areas)}
 	for _, a := range areas {
 		p.Dots += a.Dots
 	}
-	for _, w := range shard.Work(areas, sm.layout, est, rates) {
+	for _, w := range shard.Work(areas, sp.Layout, est, rates) {
 		p.Shards = append(p.Shards, shardWork{ShardWork: w, Share: w.OwnDots / max(p.Dots, 1)})
 	}
-	p.Final = shard.Final(sm.layout, est, rates)
+	p.Final = shard.Final(sp.Layout, est, rates)
 	return p
 }
 

@@ -1,6 +1,9 @@
 package main
 
 import (
+	"bytes"
+	"context"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -53,16 +56,27 @@ func TestParseShard(t *testing.T) {
 	}
 }
 
-func TestTilePath(t *testing.T) {
-	for p, want := range map[string][3]int{"9/261/170.png": {9, 261, 170}, "12/0/4095@2x.png": {12, 0, 4095}} {
-		z, x, y, ok := tilePath(p)
-		if !ok || [3]int{z, x, y} != want {
-			t.Errorf("tilePath(%q) = %d %d %d %v", p, z, x, y, ok)
+// TestRenderFileURLEqualsFolder: render with --out file:///DIR goes
+// through the same one-machine run as --out DIR (no sharded detour) and
+// writes the same files, byte for byte.
+func TestRenderFileURLEqualsFolder(t *testing.T) {
+	if testing.Short() {
+		t.Skip("renders the demo twice")
+	}
+	root := t.TempDir()
+	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	folder, viaURL := filepath.Join(root, "folder"), filepath.Join(root, "url")
+	for _, out := range []string{folder, "file://" + filepath.ToSlash(viaURL)} {
+		var log bytes.Buffer
+		if err := cmdRender(context.Background(), []string{m.Path, "--out", out, "--workers", "2"}, &log, &log); err != nil {
+			t.Fatalf("--out %s: %v\n%s", out, err, log.String())
+		}
+		if strings.Contains(log.String(), "shard") {
+			t.Errorf("--out %s took the sharded path:\n%s", out, log.String())
 		}
 	}
-	for _, p := range []string{"map.json", "legend.png", "9/x/1.png", "9/1/1.jpg", ".stipple/shards/0000-of-0004.json"} {
-		if _, _, _, ok := tilePath(p); ok {
-			t.Errorf("tilePath(%q) accepted", p)
-		}
-	}
+	compareTrees(t, publicFiles(t, folder), publicFiles(t, viaURL))
 }

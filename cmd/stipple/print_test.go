@@ -82,15 +82,17 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, counts, err := mapjob.Load(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	store, _, err := mapjob.Place(layer, counts, m, 3)
+	layer := in.Layer
+	pl, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{Workers: 3})
 	if err != nil {
 		t.Fatal(err)
 	}
-	p := job.page
+	store := pl.Store
+	p := job.Page
 	if p.Len() != store.Len() {
 		t.Fatalf("page has %d dots, the store %d", p.Len(), store.Len())
 	}
@@ -123,8 +125,8 @@ func TestPrintShowsTheTileRunsDots(t *testing.T) {
 			}
 		}
 	}
-	if job.areas != len(layer.Features) {
-		t.Errorf("%d areas on the page, %d in the map", job.areas, len(layer.Features))
+	if job.Areas != len(layer.Features) {
+		t.Errorf("%d areas on the page, %d in the map", job.Areas, len(layer.Features))
 	}
 }
 
@@ -145,15 +147,15 @@ func TestPrintDotsAreTheTileStore(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	layer, counts, err := mapjob.Load(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	printStore, _, err := mapjob.Place(layer, counts, m, 2)
+	printPlaced, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
-	a, b := tileStore.Range(0, math.MaxUint64), printStore.Range(0, math.MaxUint64)
+	a, b := tileStore.Range(0, math.MaxUint64), printPlaced.Store.Range(0, math.MaxUint64)
 	if len(a) != len(b) {
 		t.Fatalf("tile run %d dots, print %d", len(a), len(b))
 	}
@@ -241,7 +243,7 @@ func TestPrintEqualArea(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		p := job.page
+		p := job.Page
 		if c.projection == "auto" && !strings.HasPrefix(page.Describe(p.Spec().Projection), "Albers") {
 			t.Errorf("auto chose %s for 29–61°N", page.Describe(p.Spec().Projection))
 		}
@@ -300,20 +302,17 @@ func TestPrintEqualArea(t *testing.T) {
 // their people.
 func TestPrintIDs(t *testing.T) {
 	m := demoMap(t)
-	layer, counts, err := mapjob.Load(m, nil)
+	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, results, err := mapjob.Place(layer, counts, m, 2)
-	if err != nil {
-		t.Fatal(err)
-	}
+	layer, counts := in.Layer, in.Counts
 	idx := []int{3, 40, 41, 200}
 	var ids []string
 	wantDots := make([]int, len(m.Categories))
 	for _, i := range idx {
 		ids = append(ids, layer.Features[i].ID)
-		for k, d := range results[i].Dots {
+		for k, d := range in.Dots[i] {
 			wantDots[k] += d
 		}
 	}
@@ -323,7 +322,7 @@ func TestPrintIDs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := job.page.Counts(); fmt.Sprint(got) != fmt.Sprint(wantDots) {
+	if got := job.Page.Counts(); fmt.Sprint(got) != fmt.Sprint(wantDots) {
 		t.Errorf("dots per category %v, want %v", got, wantDots)
 	}
 	for k := range m.Categories {
@@ -331,14 +330,14 @@ func TestPrintIDs(t *testing.T) {
 		for _, i := range idx {
 			want += counts[i][k]
 		}
-		if got := job.page.Spec().Entries[k].People; got != want {
+		if got := job.Page.Spec().Entries[k].People; got != want {
 			t.Errorf("category %d: legend people %v, want %v", k, got, want)
 		}
 	}
-	if job.areas != len(idx) {
-		t.Errorf("%d areas, want %d", job.areas, len(idx))
+	if job.Areas != len(idx) {
+		t.Errorf("%d areas, want %d", job.Areas, len(idx))
 	}
-	if n := len(job.page.Spec().Outlines); n != len(idx) {
+	if n := len(job.Page.Spec().Outlines); n != len(idx) {
 		t.Errorf("%d outlines, want %d", n, len(idx))
 	}
 }
@@ -407,7 +406,7 @@ func TestPrintDemoPreview(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	full := job.page.Raster()
+	full := job.Page.Raster()
 	if full.Rect.Dx() != 2480 || full.Rect.Dy() != 3508 {
 		t.Fatalf("demo page %v, want 2480 × 3508", full.Rect.Size())
 	}

@@ -200,7 +200,7 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	o.register(fs)
 	var sh shardFlag
 	fs.Var(&sh, "shard", shardUsage)
-	work := fs.String("work", "", "with --shard: local folder for a part's working files (default: in the output's .stipple folder, or the system's temporary folder for a bucket)")
+	work := fs.String("work", "", "local folder for the state of a bucket output or of a --shard part (default: the output's .stipple folder, or the system's temporary folder for a bucket)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -215,20 +215,15 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := o.apply(m); err != nil {
 		return err
 	}
-	if sh.set {
-		return renderSharded(ctx, m, sh.spec, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
-	}
-	if sink.IsBucketURL(m.Out) {
-		// A bucket takes the sharded path as one part plus the final step.
-		if err := renderSharded(ctx, m, shardSpec{Index: 0, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi}); err != nil {
-			return err
-		}
-		return renderSharded(ctx, m, shardSpec{Final: true, Count: 1}, shardOptions{Workers: o.workers, Work: *work, Log: stdout, HiDPI: o.hidpi})
-	}
 	opt, err := o.runOptions(m, stdout)
 	if err != nil {
 		return err
 	}
+	opt.Work = *work
+	if sh.set {
+		return renderShard(ctx, m, sh.spec, opt, stdout)
+	}
+	// A folder, file:// URL or bucket: mapjob.Run writes to each alike.
 	return renderMap(ctx, m, opt, stdout)
 }
 

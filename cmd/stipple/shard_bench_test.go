@@ -51,20 +51,22 @@ func BenchmarkShardBalance(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	store, results, _, err := mapjob.PlaceStore(context.Background(), in.Layer, in.Counts, m, mapjob.PlaceOptions{})
+	pl, err := mapjob.Place(context.Background(), in, m, mapjob.PlaceOptions{})
 	if err != nil {
 		b.Fatal(err)
 	}
-	keys := store.Keys()
+	defer pl.Store.Close()
+	keys := pl.Store.Keys()
 	r := shard.MeasuredRates
 	b.ReportAllocs()
 	b.ResetTimer()
 	for it := 0; it < b.N; it++ {
 		for _, n := range []int{2, 4, 16} {
-			l, err := layoutFor(m, in, n, false)
+			plan, err := mapjob.PlanShards(in, m, n, false)
 			if err != nil {
 				b.Fatal(err)
 			}
+			l := plan.Layout
 			own := make([]float64, n)
 			sampled := make([]float64, n)
 			tilesN := make([]float64, n)
@@ -73,9 +75,14 @@ func BenchmarkShardBalance(b *testing.B) {
 				own[i] = float64(len(l.OwnedKeys(keys, i)))
 			}
 			for j, f := range in.Layer.Features {
+				// The dots placed: the area's dots less those that found
+				// no place.
 				d := 0
-				for _, v := range results[j].Dots {
+				for _, v := range in.Dots[j] {
 					d += v
+				}
+				for _, v := range pl.Outcomes[j].Lost {
+					d -= v
 				}
 				for i := 0; i < n; i++ {
 					if l.Touches(i, f.Geometry.Bound()) {
@@ -206,10 +213,11 @@ func BenchmarkShardParts(b *testing.B) {
 	var table []string
 	b.ResetTimer()
 	for _, n := range counts {
-		l, err := layoutFor(m, in, n, false)
+		plan, err := mapjob.PlanShards(in, m, n, false)
 		if err != nil {
 			b.Fatal(err)
 		}
+		l := plan.Layout
 		zoomsPerDot := 0.0 // dot-zooms per own dot, in disc dot-zooms
 		for z := l.Split; z <= m.Tiles.MaxZoom; z++ {
 			if look(z).Diameter >= 1 {
@@ -227,7 +235,7 @@ func BenchmarkShardParts(b *testing.B) {
 			if err != nil || !ok {
 				b.Fatalf("part %d/%d: no report (%v)", i, n, err)
 			}
-			tl := float64(zoomTiles(rep.Zooms))
+			tl := float64(rep.Tiles + rep.Tiles2x)
 			rows = append(rows, [4]float64{float64(rep.DotsSampled), float64(rep.DotsOwned) * zoomsPerDot, tl, 1})
 			cpus = append(cpus, cpuN[i])
 			// Printed, not logged: a benchmark's log keeps only its first lines.

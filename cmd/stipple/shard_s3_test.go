@@ -14,12 +14,14 @@ import (
 
 	"github.com/johannesboyne/gofakes3"
 	"github.com/johannesboyne/gofakes3/backend/s3mem"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // TestRenderToFakeS3 renders the demo city (zooms 9–13) into a bucket of
 // an in-process S3-compatible server on 127.0.0.1, as a one-part sharded
-// render plus the final step, and reads every object back: the bytes must
+// render plus the final step (tiles Put straight into the bucket), and
+// reads every object back: the bytes must
 // equal a local render's files, tiles must be stored as image/png. A second
 // run finds the part complete and sends no tile again.
 func TestRenderToFakeS3(t *testing.T) {
@@ -50,8 +52,9 @@ func TestRenderToFakeS3(t *testing.T) {
 
 	m.Out = bucket
 	var log bytes.Buffer
+	opt := mapjob.Options{Workers: 2, Work: filepath.Join(root, "work"), Log: &log}
 	for _, spec := range []shardSpec{{Index: 0, Count: 1}, {Count: 1, Final: true}} {
-		if err := renderSharded(ctx, m, spec, shardOptions{Workers: 2, Work: filepath.Join(root, "work"), Log: &log}); err != nil {
+		if err := renderShard(ctx, m, spec, opt, &log); err != nil {
 			t.Fatalf("%s: %v\n%s", spec, err, log.String())
 		}
 	}
@@ -101,7 +104,7 @@ func TestRenderToFakeS3(t *testing.T) {
 	}
 	// Rerun: the part's report is there, so nothing is drawn or sent.
 	log.Reset()
-	if err := renderSharded(ctx, m, shardSpec{Index: 0, Count: 1}, shardOptions{Workers: 2, Work: filepath.Join(root, "work"), Log: &log}); err != nil {
+	if err := renderShard(ctx, m, shardSpec{Index: 0, Count: 1}, opt, &log); err != nil {
 		t.Fatal(err)
 	}
 	if !strings.Contains(log.String(), "already complete") {

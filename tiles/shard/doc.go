@@ -42,5 +42,6 @@
 // pixel of zoom S−1, far fewer than the dots, and the final step reads
 // them, adds them up per pixel and draws 4^(S−min)/3 tiles or fewer, with
 // no sampling and no geometry. It also writes the metadata, legend and
-// viewer from the shards' reports (tile counts, dots drawn, lost dots).
+// viewer from the shards' reports (tile counts, and what became of the
+// dots of areas that did not go plainly onto the tiles).
 package shard

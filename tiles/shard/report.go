@@ -11,8 +11,10 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
-// ReportFormat names the layout of Report files.
-const ReportFormat = "stipple-shard/1"
+// ReportFormat names the layout of Report files. 2: sparse area outcomes
+// (only areas whose dots did not all go plainly onto the tiles) and tile
+// totals instead of per-zoom counts.
+const ReportFormat = "stipple-shard/2"
 
 // ReportDir is the folder, inside the output, that holds the shards'
 // reports and summaries.
@@ -29,10 +31,21 @@ type Report struct {
 	Look   string `json:"look"`
 	Shard  int    `json:"shard"`
 	Shards int    `json:"shards"`
-	// Zooms holds the tiles the shard wrote, per zoom key ("z", "z@2x").
-	Zooms map[string]tiles.ZoomStats `json:"zooms"`
-	// Areas are the sampling results of the areas this shard owns
-	// (Layout.AreaOwner), in input order.
+	// Tiles and Tiles2x are the 1× and @2x tiles the shard wrote (zooms
+	// Split … max of its own blocks), TileBytes their bytes and PerZoom the
+	// 1× tiles per zoom.
+	Tiles     int64         `json:"tiles"`
+	Tiles2x   int64         `json:"tiles_2x"`
+	TileBytes int64         `json:"tile_bytes"`
+	PerZoom   map[int]int64 `json:"tiles_per_zoom"`
+	// AreasOwned is the number of areas this shard owns (those with
+	// geometry whose bound's centre lies in its blocks, Layout.AreaOwner);
+	// it reports what became of their dots.
+	AreasOwned int `json:"areas_owned"`
+	// Areas lists, in input order, the owned areas whose dots did not all
+	// go plainly onto the tiles (lost, beyond the tiles' latitude limit,
+	// or placed with a note); an owned area not listed had every dot
+	// drawn.
 	Areas []AreaResult `json:"areas"`
 	// Work done, for balance measurements.
 	AreasSampled int     `json:"areas_sampled"`
@@ -46,12 +59,17 @@ type Report struct {
 	EstimatedDots float64 `json:"estimated_dots"`
 }
 
-// AreaResult is what happened to one area's people.
+// AreaResult is what became of one area's dots when something did not go
+// plainly (mapjob.Outcome, with the area's feature index).
 type AreaResult struct {
-	Index int   `json:"i"`
-	Drawn []int `json:"drawn"` // dots per category
-	Lost  int   `json:"lost,omitempty"`
-	// Problem is the line the render summary prints for lost dots.
+	// Index is the area's position in the input.
+	Index int `json:"i"`
+	// Lost is the dots per category that found no place; nil for none.
+	Lost []int `json:"lost,omitempty"`
+	// Beyond is the dots per category placed beyond Web Mercator's
+	// latitude limit, which tiles cannot show; nil for none.
+	Beyond []int `json:"beyond,omitempty"`
+	// Problem says why dots were lost, or how they were placed.
 	Problem string `json:"problem,omitempty"`
 }
 
@@ -82,7 +100,7 @@ func WriteReport(ctx context.Context, out sink.Sink, r *Report, s *Summary) erro
 }
 
 // ReadReport loads shard i's report and summary; ok is false when the
-// shard has not finished (no report).
+// shard has not finished (no report, or the report of an older format).
 func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Summary, ok bool, err error) {
 	j, err := out.Get(ctx, ReportPath(i, n))
 	if errors.Is(err, sink.ErrNotExist) {
@@ -92,6 +110,9 @@ func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Sum
 		return nil, nil, false, err
 	}
 	r = &Report{}
+	if err := json.Unmarshal(j, r); err == nil && r.Format != ReportFormat && strings.HasPrefix(r.Format, "stipple-shard/") {
+		return nil, nil, false, nil // an older stipple's report: the shard is to be redone
+	}
 	if err := json.Unmarshal(j, r); err != nil || r.Format != ReportFormat {
 		return nil, nil, false, fmt.Errorf("shard: %s/%s: not a shard report (%v)", out, ReportPath(i, n), err)
 	}
