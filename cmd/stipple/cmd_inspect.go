@@ -262,7 +262,7 @@ func cmdInit(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	text := StarterMap(res, pos[0], *layerName)
+	text := starterMap(res, pos[0], *layerName)
 	if *out == "" {
 		fmt.Fprint(stdout, text)
 		return nil
@@ -277,11 +277,11 @@ func cmdInit(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	return nil
 }
 
-// StarterMap writes a map file for a polygon file: its numeric fields as
+// starterMap writes a map file for a polygon file: its numeric fields as
 // commented-out categories with the Okabe & Ito (2008) colour-blind-safe
 // colours, and a guess at the id field (the first text field whose values
 // are all distinct).
-func StarterMap(res *read.Result, path, layer string) string {
+func starterMap(res *read.Result, path, layer string) string {
 	l := res.Layer
 	var numeric []string
 	idField := ""

@@ -64,7 +64,7 @@ func TestRenderFileURLEqualsFolder(t *testing.T) {
 		t.Skip("renders the demo twice")
 	}
 	root := t.TempDir()
-	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	m, err := writeDemoSource(filepath.Join(root, "demo"))
 	if err != nil {
 		t.Fatal(err)
 	}

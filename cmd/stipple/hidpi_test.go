@@ -17,7 +17,7 @@ func TestHiDPIMetadata(t *testing.T) {
 		t.Skip("renders the demo four times")
 	}
 	root := t.TempDir()
-	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	m, err := writeDemoSource(filepath.Join(root, "demo"))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -62,7 +62,7 @@ func TestCellLonLat(t *testing.T) {
 
 func demoMap(t *testing.T) *mapfile.Map {
 	t.Helper()
-	m, err := WriteDemoSource(t.TempDir())
+	m, err := writeDemoSource(t.TempDir())
 	if err != nil {
 		t.Fatal(err)
 	}

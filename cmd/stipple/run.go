@@ -321,7 +321,7 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return err
 	}
 	release()
-	m, err := WriteDemoSource(dir)
+	m, err := writeDemoSource(dir)
 	if err != nil {
 		return err
 	}
@@ -339,8 +339,8 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	return renderMap(ctx, m, opt, stdout)
 }
 
-// DemoMap is the built-in demo's map file.
-const DemoMap = `# Quillmere: an invented harbour city. Every area, group and number here
+// demoMapFile is the built-in demo's map file.
+const demoMapFile = `# Quillmere: an invented harbour city. Every area, group and number here
 # is made up by stipple's demo generator; none of it describes real people.
 title = "Home languages of Quillmere (invented demo)"
 credit = "Invented data made by stipple's demo generator; not a real place."
@@ -365,9 +365,9 @@ opacity = 0.9
 # Colours: Okabe & Ito (2008), "Color Universal Design", colour-blind safe.
 `
 
-// WriteDemoSource writes the demo's GeoJSON and map file under dir/source
+// writeDemoSource writes the demo's GeoJSON and map file under dir/source
 // and returns the parsed map.
-func WriteDemoSource(dir string) (*mapfile.Map, error) {
+func writeDemoSource(dir string) (*mapfile.Map, error) {
 	src := filepath.Join(dir, "source")
 	if err := os.MkdirAll(src, 0o755); err != nil {
 		return nil, fmt.Errorf("demo: %w", err)
@@ -376,7 +376,7 @@ func WriteDemoSource(dir string) (*mapfile.Map, error) {
 		return nil, err
 	}
 	var b strings.Builder
-	b.WriteString(DemoMap)
+	b.WriteString(demoMapFile)
 	for _, g := range demo.Groups {
 		fmt.Fprintf(&b, "\n[[category]]\nkey = %q\nlabel = %q\ncolor = %q\nfields = [%q]\n", g.Field, g.Label, g.Color, g.Field)
 	}

@@ -41,7 +41,7 @@ func TestRenderToFakeS3(t *testing.T) {
 	bucket := "s3://maps/demo/v1?" + q.Encode()
 
 	root := t.TempDir()
-	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	m, err := writeDemoSource(filepath.Join(root, "demo"))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -83,7 +83,7 @@ func TestShardedRenderMatchesSingleMachine(t *testing.T) {
 	bin := buildStipple(t)
 	runner := newShardRunner(t, bin)
 	root := t.TempDir()
-	m, err := WriteDemoSource(filepath.Join(root, "demo"))
+	m, err := writeDemoSource(filepath.Join(root, "demo"))
 	if err != nil {
 		t.Fatal(err)
 	}
