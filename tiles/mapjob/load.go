@@ -253,9 +253,13 @@ func checkScale(m *mapfile.Map, layer *geo.Layer, counts [][]float64) error {
 			people += v
 		}
 	}
-	if dots := people / m.PeoplePerDot; dots > float64(m.MaxDots) {
+	limit := m.MaxDots
+	if limit <= 0 {
+		limit = mapfile.DefaultMaxDots // a map made in code, not read from a file
+	}
+	if dots := people / m.PeoplePerDot; dots > float64(limit) {
 		return fmt.Errorf("%s: key max_dots: this map would place about %s dots (%s people at %s), more than max_dots = %s; check people_per_dot and the counts, or raise max_dots",
-			m.Path, render.FormatCount(math.Round(dots)), render.FormatCount(math.Round(people)), render.DotNote(m.PeoplePerDot), render.FormatCount(float64(m.MaxDots)))
+			m.Path, render.FormatCount(math.Round(dots)), render.FormatCount(math.Round(people)), render.DotNote(m.PeoplePerDot), render.FormatCount(float64(limit)))
 	}
 	return nil
 }
