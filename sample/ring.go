@@ -35,7 +35,8 @@ func ringsOf(poly orb.Polygon) (plane, lonLat [][]float64) {
 	jump := false
 	for _, ring := range poly {
 		for i := 1; i < len(ring); i++ {
-			if math.Abs(ring[i][0]-ring[i-1][0]) > 180 {
+			// An edge along a pole line is a point on the globe: no jump.
+			if math.Abs(ring[i][0]-ring[i-1][0]) > 180 && !(math.Abs(ring[i][1]) == 90 && ring[i][1] == ring[i-1][1]) {
 				jump = true
 			}
 		}
