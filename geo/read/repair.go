@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/geo"
 )
 
@@ -40,6 +41,16 @@ func Repair(res *Result) {
 					if ri == 0 {
 						break
 					}
+					continue
+				}
+				if band, ok := fullCircle(r); ok {
+					res.Repairs.FullBands++
+					note(f, "part %d %s %d runs along a parallel from −180° to 180°, all the way round: drawn as the full band of longitudes it encloses", pi, what, ri)
+					r = band
+				}
+				if ri > 0 && len(keep) > 0 && outside(r, keep[0]) {
+					res.Repairs.DroppedRings++
+					note(f, "part %d hole %d lies wholly outside its outer ring; dropped (the area's people stay in the outer ring)", pi, ri)
 					continue
 				}
 				if polar, moved, ok := closeAtPole(r); ok {
@@ -116,6 +127,51 @@ func jumps(r orb.Ring) bool {
 
 func alongPole(a, b orb.Point) bool {
 	return math.Abs(a[1]) == 90 && a[1] == b[1]
+}
+
+// fullCircle repairs a ring with edges along a parallel from −180° to 180°
+// (a box written [[-180,s],[180,s],[180,n],[-180,n]]): read the short way
+// round, such an edge has no length and the band no area; meant is the
+// whole circle, so each such edge gets points at −90°, 0° and 90°, which
+// makes every edge of it less than 180° long. ok is false when the ring
+// has no such edge.
+func fullCircle(r orb.Ring) (out orb.Ring, ok bool) {
+	for i := 1; i < len(r); i++ {
+		a, b := r[i-1], r[i]
+		if a[1] == b[1] && math.Abs(a[0]) == 180 && b[0] == -a[0] && math.Abs(a[1]) != 90 {
+			ok = true
+			break
+		}
+	}
+	if !ok {
+		return r, false
+	}
+	out = orb.Ring{r[0]}
+	for i := 1; i < len(r); i++ {
+		a, b := r[i-1], r[i]
+		if a[1] == b[1] && math.Abs(a[0]) == 180 && b[0] == -a[0] && math.Abs(a[1]) != 90 {
+			step := 90.0
+			if b[0] < a[0] {
+				step = -90
+			}
+			for lon := a[0] + step; lon != b[0]; lon += step {
+				out = append(out, orb.Point{lon, a[1]})
+			}
+		}
+		out = append(out, b)
+	}
+	return out, true
+}
+
+// outside tells whether every vertex of ring h lies outside ring outer
+// (orb's planar even-odd test): a hole that cannot be one of outer's.
+func outside(h, outer orb.Ring) bool {
+	for _, p := range h {
+		if planar.RingContains(outer, p) {
+			return false
+		}
+	}
+	return true
 }
 
 // authalicR is the radius in km of the sphere with the area of WGS 84
