@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"cmp"
 	"context"
 	"flag"
@@ -11,7 +10,6 @@ import (
 	"os"
 	"slices"
 	"strconv"
-	"strings"
 
 	"github.com/stipple-maps/stipple/geo/measure"
 	"github.com/stipple-maps/stipple/render"
@@ -69,7 +67,11 @@ func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return err
 	}
 	if *csvPath != "" {
-		if err := writeAreaCSV(*csvPath, m, in, areas); err != nil {
+		table, err := mapjob.AreaTable(in, m, nil)
+		if err != nil {
+			return err
+		}
+		if err := os.WriteFile(*csvPath, table, 0o644); err != nil {
 			return err
 		}
 	}
@@ -143,54 +145,4 @@ func printMeasures(w io.Writer, m *mapfile.Map, in *mapjob.Input, areas []measur
 
 	fmt.Fprintln(w, "\nEvenness and exposure are two of the five dimensions of segregation Massey & Denton (1988) name;")
 	fmt.Fprintln(w, "concentration, centralization and clustering are not measured.")
-}
-
-// writeAreaCSV writes one row per area: id, people, each group's share,
-// entropy, normalised entropy, the largest group's key and its share.
-func writeAreaCSV(path string, m *mapfile.Map, in *mapjob.Input, areas []measure.Area) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := bufio.NewWriter(f)
-	head := []string{csvText("id"), csvText("people")}
-	for _, c := range m.Categories {
-		head = append(head, csvText("share_"+c.Key))
-	}
-	head = append(head, csvText("entropy"), csvText("entropy_normalised"), csvText("largest_group"), csvText("largest_share"))
-	fmt.Fprintf(w, "%s\r\n", strings.Join(head, ","))
-	row := make([]string, 0, len(head))
-	for i, a := range areas {
-		row = append(row[:0], csvText(in.Layer.Features[i].ID), csvNumber(a.People))
-		for _, s := range a.Shares {
-			row = append(row, csvNumber(s))
-		}
-		row = append(row, csvNumber(a.Entropy), csvNumber(a.Normalized))
-		if a.Largest >= 0 {
-			row = append(row, csvText(m.Categories[a.Largest].Key), csvNumber(a.LargestShare))
-		} else {
-			row = append(row, "", "") // no people, no largest group
-		}
-		fmt.Fprintf(w, "%s\r\n", strings.Join(row, ","))
-	}
-	if err := w.Flush(); err != nil {
-		f.Close()
-		return fmt.Errorf("%s: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("%s: %w", path, err)
-	}
-	return nil
-}
-
-func csvNumber(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
-
-// csvText quotes a text cell (RFC 4180) and, when it begins with =, +, -,
-// @, tab or carriage return, prefixes a single quote so a spreadsheet does
-// not read it as a formula (OWASP, "CSV Injection").
-func csvText(s string) string {
-	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		s = "'" + s
-	}
-	return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
 }

@@ -228,6 +228,9 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	logf("wrote %d tiles (%.1f MB) in %s%s", st.Tiles+st.Tiles2x, float64(st.Bytes)/1e6, sum.TileTime.Round(time.Millisecond), kept)
 
 	sum.Metadata = Metadata(m, sum)
+	if err := PutMeasures(ctx, out, in, m, nil, sum.Metadata); err != nil {
+		return nil, err
+	}
 	if err := PutFurniture(ctx, out, sum.Metadata, m.RGBA()); err != nil {
 		return nil, err
 	}

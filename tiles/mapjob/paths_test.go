@@ -3,7 +3,9 @@ package mapjob
 import (
 	"bytes"
 	"context"
+	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"image/png"
 	"math"
 	"os"
@@ -14,6 +16,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/measure"
 	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/tiles"
@@ -396,4 +399,40 @@ func TestDroppedZoomsLeaveTheFolder(t *testing.T) {
 		t.Fatal(err)
 	}
 	sameFiles(t, first, published(t, m.Out))
+}
+
+// TestMeasuresBesideTheMap: a render writes the per-area table and the
+// map's mixing measures into map.json and alt.txt, the values of package
+// geo/measure on the same counts (its own tests check the formulas against
+// Reardon & Firebaugh 2002).
+func TestMeasuresBesideTheMap(t *testing.T) {
+	m := smallWithMask(t)
+	s, err := Run(context.Background(), m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	x, err := measure.Measure(in.Counts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ms := s.Metadata.Measures
+	if ms == nil || ms.H == nil || *ms.H != x.H || *ms.M != x.M || *ms.Entropy != x.Entropy {
+		t.Fatalf("map.json measures %+v; want H %v M %v E %v", ms, x.H, x.M, x.Entropy)
+	}
+	table, err := os.ReadFile(filepath.Join(m.Out, AreaTableFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(table)).ReadAll()
+	if err != nil || len(rows) != 1+len(in.Layer.Features) || rows[0][0] != "id" || rows[1][0] != in.Layer.Features[0].ID {
+		t.Fatalf("areas.csv: %v rows (%v); want a header and %d areas", len(rows), err, len(in.Layer.Features))
+	}
+	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
+	if !strings.Contains(string(alt), fmt.Sprintf("Theil's H, how unevenly the groups are spread over the areas (0 when every area has the whole map's mix, 1 when each area holds one group), is %.3f.", x.H)) {
+		t.Errorf("alt.txt does not state H: %s", alt)
+	}
 }
