@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // lockFile is the run lock in a state folder: "pid host start" of the run
@@ -59,6 +60,12 @@ func Claim(out string, force bool) (release func(), err error) {
 			if werr != nil {
 				os.Remove(path)
 				return nil, fmt.Errorf("output: %w", werr)
+			}
+			// Half-written files of a killed run: no other run writes
+			// here while we hold the lock.
+			old, _ := filepath.Glob(filepath.Join(out, filepath.FromSlash(sink.TempDir), "put-*"))
+			for _, f := range old {
+				os.Remove(f)
 			}
 			return func() {
 				if b, err := os.ReadFile(path); err == nil && string(b) == me {
