@@ -28,7 +28,7 @@ func (e usageError) Error() string { return e.msg }
 const usage = `stipple turns people counted per area into dot-density maps.
 
   stipple render MAP.toml [flags]   render the map a map file describes
-  stipple demo [DIR]                render the built-in invented city into DIR (default stipple-demo)
+  stipple demo [DIR]                render the built-in invented city into DIR (default stipple-demo), and two counts of it in DIR/compare
   stipple inspect FILE [--map MAP.toml]   describe a polygon file; with a map, what a render would make
   stipple init FILE [-o MAP.toml]   write a starter map file for a polygon file
   stipple serve DIR [--port 8080]   serve a rendered folder on 127.0.0.1 for a quick look
@@ -228,6 +228,9 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 }
 
 func renderMap(ctx context.Context, m *mapfile.Map, opt mapjob.Options, stdout io.Writer) error {
+	if len(m.Layers) > 0 {
+		return renderLayers(ctx, m, opt, stdout)
+	}
 	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
@@ -340,7 +343,21 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	return renderMap(ctx, m, opt, stdout)
+	if err := renderMap(ctx, m, opt, stdout); err != nil {
+		return err
+	}
+	// The two invented counts, compared on the newer areas, in DIR/compare.
+	cm, err := writeDemoCompare(dir)
+	if err != nil {
+		return err
+	}
+	oc := o
+	oc.out = filepath.Join(dir, "compare")
+	if err := oc.apply(cm); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\ndemo: an invented older count on older boundaries, carried onto the newer areas, compared with the newer count in %s\n", oc.out)
+	return renderMap(ctx, cm, opt, stdout)
 }
 
 // demoMapFile is the built-in demo's map file.
