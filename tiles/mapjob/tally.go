@@ -3,8 +3,11 @@ package mapjob
 import (
 	"fmt"
 	"math"
+	"slices"
+	"sort"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
@@ -32,6 +35,21 @@ type Tally struct {
 	Notes    []string
 	// Bounds is the bound of the areas that have people and geometry.
 	Bounds orb.Bound
+	// Lost totals the people with no dot by reason (the sampler's problem
+	// text), sorted by reason: the methods note says why.
+	Lost []LostReason
+	// GeometryNotes is the number of repair and warning notes made while
+	// reading the input file (all of it, also for a subset of areas), and
+	// Repairs their counts by kind; both zero for a layer made in code.
+	GeometryNotes int
+	Repairs       read.Repairs
+}
+
+// LostReason is the people of the areas whose dots were lost for one reason.
+type LostReason struct {
+	Reason string  `json:"reason"`
+	Areas  int     `json:"areas"`
+	People float64 `json:"people"`
 }
 
 // TallyAreas tallies the areas idx of the input (all when idx is nil) from
@@ -77,9 +95,13 @@ func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 		case lost > 0:
 			t.NotDrawn += float64(lost) * m.PeoplePerDot
 			t.Problems = append(t.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, o.Problem))
+			t.addLost(o.Problem, float64(lost)*m.PeoplePerDot)
 		case ok && o.Problem != "":
 			t.Notes = append(t.Notes, fmt.Sprintf("feature %d (id %q): %s", f.Index, f.ID, o.Problem))
 		}
+	}
+	if in.Read != nil {
+		t.GeometryNotes, t.Repairs = len(in.Read.Notes), in.Read.Repairs
 	}
 	if idx == nil {
 		for i := range in.Layer.Features {
@@ -91,4 +113,14 @@ func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 		}
 	}
 	return t
+}
+
+// addLost adds people lost for reason to t.Lost, kept sorted by reason.
+func (t *Tally) addLost(reason string, people float64) {
+	i := sort.Search(len(t.Lost), func(i int) bool { return t.Lost[i].Reason >= reason })
+	if i == len(t.Lost) || t.Lost[i].Reason != reason {
+		t.Lost = slices.Insert(t.Lost, i, LostReason{Reason: reason})
+	}
+	t.Lost[i].Areas++
+	t.Lost[i].People += people
 }
