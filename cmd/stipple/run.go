@@ -89,6 +89,8 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdBatch(ctx, args[1:], stdout, stderr)
 	case "measure":
 		return cmdMeasure(ctx, args[1:], stdout, stderr)
+	case "publish":
+		return cmdPublish(ctx, args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "stipple", mapjob.Version)
 		return nil
