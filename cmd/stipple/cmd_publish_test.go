@@ -137,10 +137,14 @@ func TestPublishCopiesWhatTheWebNeeds(t *testing.T) {
 			t.Errorf("%s: HTTP %d, %d bytes; the render wrote %d (%v)", p, code, len(body), len(orig), err)
 		}
 	}
-	for _, p := range []string{"", tiles.EmbedPage, tiles.MetadataFile, tiles.MethodsFile, "legend.png", "viewer.js", tiles.DataScript} {
+	for _, p := range []string{"", tiles.EmbedPage, tiles.MetadataFile, tiles.MethodsFile, "legend.png", "viewer.js", tiles.DataScript, tiles.StillFile} {
 		if _, code := get(p); code != 200 {
 			t.Errorf("/%s: HTTP %d", p, code)
 		}
+	}
+	// embed.html falls back to the still without JavaScript.
+	if page, _ := get(tiles.EmbedPage); !bytes.Contains(page, []byte(`<noscript><img src="still.png"`)) {
+		t.Error("embed.html has no still in a noscript element")
 	}
 	tj, _ := get(tiles.TileJSONFile)
 	var j tiles.TileJSON

@@ -91,6 +91,8 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdMeasure(ctx, args[1:], stdout, stderr)
 	case "publish":
 		return cmdPublish(ctx, args[1:], stdout, stderr)
+	case "still":
+		return cmdStill(ctx, args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "stipple", mapjob.Version)
 		return nil

@@ -88,7 +88,8 @@ func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
 // legend as legend.png (300 px wide), legend@2x.png (the same at twice the
 // pixels) and legend.svg (text kept as text, for print and CMS work), then
 // map.json with its TileJSON 3.0.0 descriptor (tilejson.json) and the
-// methods note (methods.txt), then the viewer (index.html, embed.html,
+// methods note (methods.txt), a still of the whole map (still.png, the
+// no-script fallback of embed.html), then the viewer (index.html, embed.html,
 // alt.txt, its scripts and the tile index listed from out). md.Legend is set to the legends'
 // names. Every command that makes a map writes its furniture here, so a
 // folder, a bucket, a shard's final step and a batch extent get the same
@@ -120,6 +121,9 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 		return err
 	}
 	if err := sink.PutFile(ctx, out, tiles.MethodsFile, []byte(tiles.MethodsText(md))); err != nil {
+		return err
+	}
+	if err := putStill(ctx, out, md, leg); err != nil {
 		return err
 	}
 	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})

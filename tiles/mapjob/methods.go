@@ -1,9 +1,14 @@
 package mapjob
 
 import (
+	"context"
+	"fmt"
+	"image/color"
+
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // roundingRules says in a sentence what each rounding rule does (the
@@ -58,4 +63,33 @@ func MethodsOf(m *mapfile.Map, s *Summary) *tiles.Methods {
 		}
 	}
 	return me
+}
+
+// putStill writes still.png: the whole map at 1200 × 675 with its legend,
+// composed from the tiles already in out.
+func putStill(ctx context.Context, out sink.Sink, md *tiles.Metadata, leg render.Legend) error {
+	w, h := tiles.StillSizes["wide"][0], tiles.StillSizes["wide"][1]
+	img, _, err := tiles.Still(ctx, out, md, tiles.StillOptions{View: tiles.FitView(md, w, h), Width: w, Height: h, Legend: leg})
+	if err != nil {
+		return err
+	}
+	b, err := tiles.StillPNG(img)
+	if err != nil {
+		return err
+	}
+	return sink.PutFile(ctx, out, tiles.StillFile, b)
+}
+
+// MetadataColors are the colours of md's categories, as the map file gave
+// them.
+func MetadataColors(md *tiles.Metadata) ([]color.NRGBA, error) {
+	cs := make([]color.NRGBA, len(md.Categories))
+	for i, c := range md.Categories {
+		v, err := render.ParseHex(c.Color)
+		if err != nil {
+			return nil, fmt.Errorf("category %q: colour %q: %w", c.Key, c.Color, err)
+		}
+		cs[i] = v
+	}
+	return cs, nil
 }
