@@ -55,6 +55,9 @@ type Metadata struct {
 	Categories   []Category `json:"categories"`
 	// NotDrawn totals the people that have no dot, and says why.
 	NotDrawn NotDrawn `json:"not_drawn"`
+	// Methods is how the map was made, for a note under a story
+	// (methods.txt says the same in prose); nil in maps made before it.
+	Methods *Methods `json:"methods,omitempty"`
 	// Legend names the legend images written beside this file.
 	Legend []string `json:"legend"`
 	// Measures, when set, are the map's mixing measures.

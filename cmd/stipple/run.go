@@ -89,6 +89,10 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdBatch(ctx, args[1:], stdout, stderr)
 	case "measure":
 		return cmdMeasure(ctx, args[1:], stdout, stderr)
+	case "publish":
+		return cmdPublish(ctx, args[1:], stdout, stderr)
+	case "still":
+		return cmdStill(ctx, args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "stipple", mapjob.Version)
 		return nil

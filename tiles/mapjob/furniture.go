@@ -54,6 +54,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		md.NotDrawn.Features = []string{}
 	}
 	sort.Strings(md.NotDrawn.Features)
+	md.Methods = MethodsOf(m, s)
 	return md
 }
 
@@ -92,8 +93,10 @@ func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
 // PutFurniture writes a map's furniture into out, after its tiles: the
 // legend as legend.png (300 px wide), legend@2x.png (the same at twice the
 // pixels) and legend.svg (text kept as text, for print and CMS work), then
-// map.json, then the viewer (index.html, embed.html, alt.txt, its scripts
-// and the tile index listed from out). md.Legend is set to the legends'
+// map.json with its TileJSON 3.0.0 descriptor (tilejson.json) and the
+// methods note (methods.txt), a still of the whole map (still.png, the
+// no-script fallback of embed.html), then the viewer (index.html, embed.html,
+// alt.txt, its scripts and the tile index listed from out). md.Legend is set to the legends'
 // names. Every command that makes a map writes its furniture here, so a
 // folder, a bucket, a shard's final step and a batch extent get the same
 // files.
@@ -118,6 +121,15 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 	}
 	md.Legend = append(md.Legend, "legend.svg")
 	if err := tiles.PutMetadata(ctx, out, md); err != nil {
+		return err
+	}
+	if err := tiles.PutTileJSON(ctx, out, md); err != nil {
+		return err
+	}
+	if err := sink.PutFile(ctx, out, tiles.MethodsFile, []byte(tiles.MethodsText(md))); err != nil {
+		return err
+	}
+	if err := putStill(ctx, out, md, leg); err != nil {
 		return err
 	}
 	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})
