@@ -83,6 +83,20 @@ type Measures struct {
 	MostDiverse []AreaDiversity `json:"most_diverse_areas"`
 	// AreaTable names the per-area CSV beside map.json.
 	AreaTable string `json:"area_table"`
+	// Intervals, when the counts are survey estimates with margins of
+	// error, are the measures' intervals from seeded draws of the counts.
+	Intervals *MeasureIntervals `json:"intervals,omitempty"`
+}
+
+// MeasureIntervals are percentile intervals of the measures over Draws
+// seeded draws of the counts within their margins of error (package
+// geo/measure, Simulate); nil bounds are undefined.
+type MeasureIntervals struct {
+	Level float64     `json:"level"`
+	Draws int         `json:"draws"`
+	Seed  uint64      `json:"seed"`
+	H     [2]*float64 `json:"theil_h"`
+	M     [2]*float64 `json:"mutual_information_m"`
 }
 
 // AreaDiversity is one area's composition in brief.

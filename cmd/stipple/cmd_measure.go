@@ -39,6 +39,7 @@ const (
 func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("measure", flag.ContinueOnError)
 	fs.SetOutput(stderr)
+	draws := fs.Int("draws", 1000, "with fields_moe: seeded draws of the counts for the measures' intervals")
 	csvPath := fs.String("csv", "", "also write the per-area table (id, people, shares, entropy, largest group) to this CSV file")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -76,6 +77,20 @@ func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		}
 	}
 	printMeasures(stdout, m, in, areas, x)
+	if in.Margins != nil {
+		iv, err := measure.Simulate(ctx, in.Counts, in.Margins, measure.Options{Draws: *draws, Seed: m.Seed})
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\nThe counts are survey estimates (fields_moe: published 90%% margins, standard error = margin / %.3f).\n", measure.Z90)
+		fmt.Fprintf(stdout, "Intervals holding %.0f%% of the values over %d seeded draws of the counts (seed %d):\n", 100*iv.Level, iv.Draws, iv.Seed)
+		fmt.Fprintf(stdout, "  H from %s to %s\n  M from %s to %s\n", measureValue(iv.H.Lo), measureValue(iv.H.Hi), measureValue(iv.M.Lo), measureValue(iv.M.Hi))
+		for a := range iv.D {
+			for b := a + 1; b < len(iv.D); b++ {
+				fmt.Fprintf(stdout, "  D %s / %s from %s to %s\n", m.Categories[a].Label, m.Categories[b].Label, measureValue(iv.D[a][b].Lo), measureValue(iv.D[a][b].Hi))
+			}
+		}
+	}
 	if *csvPath != "" {
 		fmt.Fprintf(stdout, "\nper-area table: %s\n", *csvPath)
 	}

@@ -138,6 +138,11 @@ type Category struct {
 	Label  string   `toml:"label"`
 	Color  string   `toml:"color"`
 	Fields []string `toml:"fields"`
+	// FieldsMOE, for survey tables, names the fields holding each count
+	// field's published 90% margin of error, one for each of Fields in the
+	// same order; the measures then get intervals and the map says its
+	// counts are estimates.
+	FieldsMOE []string `toml:"fields_moe"`
 }
 
 // Defaults fill keys a map file may leave out.
@@ -362,6 +367,9 @@ func (m *Map) checkCategories(lines *Lines, prefix string) error {
 				return at("fields", fmt.Sprintf("%q is also a field of category %d; its people would be drawn twice", f, j+1))
 			}
 			fieldOf[f] = i
+		}
+		if c.FieldsMOE != nil && len(c.FieldsMOE) != len(c.Fields) {
+			return at("fields_moe", fmt.Sprintf("lists %d fields; want one margin field for each of the %d fields, in the same order", len(c.FieldsMOE), len(c.Fields)))
 		}
 	}
 	return nil

@@ -28,7 +28,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 		Tiles: tiles.TilesTemplate, PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution,
+		Note: render.DotNote(m.PeoplePerDot), Caution: cautionOf(s),
 		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
 	}
 	if s.Tiles.Tiles2x > 0 {
@@ -133,4 +133,17 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 		return err
 	}
 	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})
+}
+
+// EstimatesCaution is added to the caution of a map whose counts are
+// survey estimates with published margins of error.
+const EstimatesCaution = " These counts are survey estimates with margins of error: small differences between areas may not be real."
+
+// cautionOf is the map's caution: the standard one, and a word on
+// estimates when the counts carry margins of error.
+func cautionOf(s *Summary) string {
+	if s.Estimates {
+		return render.Caution + EstimatesCaution
+	}
+	return render.Caution
 }

@@ -68,6 +68,11 @@ func AreaTable(in *Input, m *mapfile.Map, idx []int) ([]byte, error) {
 	return b.Bytes(), nil
 }
 
+// RenderDraws is the number of seeded draws of the counts a render makes
+// for the measures' intervals when the map gives margins of error
+// (stipple measure makes more).
+const RenderDraws = 200
+
 // MostDiverse is how many areas Measures names as the most diverse.
 const MostDiverse = 5
 
@@ -75,7 +80,7 @@ const MostDiverse = 5
 // map.json: entropy, Theil's H, the mutual information index M, and the
 // most diverse areas (geo/measure). NaN values (undefined, e.g. H with one
 // group) are left out as nil.
-func Measures(in *Input, m *mapfile.Map, idx []int) (*tiles.Measures, error) {
+func Measures(ctx context.Context, in *Input, m *mapfile.Map, idx []int) (*tiles.Measures, error) {
 	counts, rows := countsOf(in, idx)
 	x, err := measure.Measure(counts)
 	if err != nil {
@@ -92,6 +97,18 @@ func Measures(in *Input, m *mapfile.Map, idx []int) (*tiles.Measures, error) {
 		return &v
 	}
 	out := &tiles.Measures{Entropy: num(x.Entropy), H: num(x.H), M: num(x.M), AreaTable: AreaTableFile, MostDiverse: []tiles.AreaDiversity{}}
+	if in.Margins != nil {
+		moe := make([][]float64, len(rows))
+		for r, i := range rows {
+			moe[r] = in.Margins[i]
+		}
+		iv, err := measure.Simulate(ctx, counts, moe, measure.Options{Draws: RenderDraws, Seed: m.Seed})
+		if err != nil {
+			return nil, err
+		}
+		out.Intervals = &tiles.MeasureIntervals{Level: iv.Level, Draws: iv.Draws, Seed: iv.Seed,
+			H: [2]*float64{num(iv.H.Lo), num(iv.H.Hi)}, M: [2]*float64{num(iv.M.Lo), num(iv.M.Hi)}}
+	}
 	order := make([]int, 0, len(areas))
 	for r, a := range areas {
 		if a.People > 0 {
@@ -110,7 +127,7 @@ func Measures(in *Input, m *mapfile.Map, idx []int) (*tiles.Measures, error) {
 // PutMeasures computes the areas' measures into md and writes the
 // per-area table (AreaTableFile) into out; call it before PutFurniture.
 func PutMeasures(ctx context.Context, out sink.Sink, in *Input, m *mapfile.Map, idx []int, md *tiles.Metadata) error {
-	ms, err := Measures(in, m, idx)
+	ms, err := Measures(ctx, in, m, idx)
 	if err != nil {
 		return err
 	}

@@ -436,3 +436,52 @@ func TestMeasuresBesideTheMap(t *testing.T) {
 		t.Errorf("alt.txt does not state H: %s", alt)
 	}
 }
+
+// TestEstimatesCarryIntervals: with fields_moe (testdata/estimates,
+// invented), the map says its counts are estimates (caution, legend,
+// alt.txt) and map.json gives the measures' intervals with the draw count
+// and seed; the two-area table of ../shared/CHECKS.md (Reardon & Firebaugh
+// 2002) has H = 0.531004, which its interval holds. With all margins zero
+// the interval has no width.
+func TestEstimatesCarryIntervals(t *testing.T) {
+	m, err := mapfile.Read("../../testdata/estimates/map.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Out = filepath.Join(t.TempDir(), "out")
+	s, err := Run(context.Background(), m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ms := s.Metadata.Measures
+	if ms == nil || ms.Intervals == nil || ms.Intervals.Draws != RenderDraws || ms.Intervals.Seed != 4 {
+		t.Fatalf("map.json measures %+v; want intervals from %d draws, seed 4", ms, RenderDraws)
+	}
+	lo, hi := *ms.Intervals.H[0], *ms.Intervals.H[1]
+	if math.Abs(*ms.H-0.531004) > 1e-6 || !(lo < 0.531004 && 0.531004 < hi) {
+		t.Errorf("H %v in [%v, %v]; want 0.531004 inside", *ms.H, lo, hi)
+	}
+	if !strings.HasSuffix(s.Metadata.Caution, EstimatesCaution) {
+		t.Errorf("caution %q does not say the counts are estimates", s.Metadata.Caution)
+	}
+	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
+	if !strings.Contains(string(alt), "The counts are survey estimates: over 200 seeded draws") {
+		t.Errorf("alt.txt: %s", alt)
+	}
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range in.Margins {
+		for k := range in.Margins[i] {
+			in.Margins[i][k] = 0
+		}
+	}
+	zero, err := Measures(context.Background(), in, m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if *zero.Intervals.H[0] != *zero.H || *zero.Intervals.H[1] != *zero.H {
+		t.Errorf("zero margins: H interval [%v, %v]; want both %v", *zero.Intervals.H[0], *zero.Intervals.H[1], *zero.H)
+	}
+}

@@ -34,6 +34,9 @@ type Tally struct {
 	// area whose dots were all placed, but not plainly.
 	Problems []string
 	Notes    []string
+	// Estimates is set when the counts are survey estimates: the map file
+	// names their margins of error (fields_moe).
+	Estimates bool
 	// Bounds is the extent of the areas that have people and geometry, as
 	// RFC 7946 §5.2 gives a box: Min is (west, south), Max (east, north),
 	// and west > east when the areas cross the antimeridian (the shortest
@@ -63,7 +66,7 @@ type LostReason struct {
 // taken from the sampler here, so every path counts it alike.
 func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 	nc := len(m.Categories)
-	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}}
+	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}, Estimates: in.Margins != nil}
 	var parts []orb.Bound
 	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Streams: Streams(m)}
 	add := func(i int) {
