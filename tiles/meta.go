@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -55,6 +56,9 @@ type Metadata struct {
 	Categories   []Category `json:"categories"`
 	// NotDrawn totals the people that have no dot, and says why.
 	NotDrawn NotDrawn `json:"not_drawn"`
+	// Theme is the map's house style (ground, font, words); nil is
+	// theme.Default. It is not written to map.json.
+	Theme *theme.Theme `json:"-"`
 	// Legend names the legend images written beside this file.
 	Legend []string `json:"legend"`
 	// Stats of the pyramid.
