@@ -7,13 +7,9 @@ import (
 	"math"
 	"strconv"
 	"strings"
-	"sync"
 
 	"github.com/fogleman/gg"
-	"github.com/golang/freetype/truetype"
 	"golang.org/x/image/font"
-	"golang.org/x/image/font/gofont/gobold"
-	"golang.org/x/image/font/gofont/goregular"
 )
 
 // LegendEntry is one category row of a legend.
@@ -37,6 +33,12 @@ type Legend struct {
 	Credit string
 	// NotDrawn, when set, says how many people have no dot and why.
 	NotDrawn string
+	// CreditPrefix goes before the credit (see CreditLineWith); ""
+	// is DefaultCreditPrefix.
+	CreditPrefix string
+	// Font sets the legend's text; nil is DefaultFont. legend.svg names
+	// its family.
+	Font *Font
 }
 
 // DotNote returns the note for a dot value: "1 dot = 25 people".
@@ -47,18 +49,33 @@ func DotNote(perDot float64) string {
 	return fmt.Sprintf("1 dot = %s people", FormatCount(perDot))
 }
 
-// CreditLine is a map's credit as every output prints it: "Source: "
-// and the credit, unless the credit already starts with a word and a colon
-// of its own ("Source: …", "Data: …", "Sources: …"), which is kept as written.
-func CreditLine(credit string) string {
+// DefaultCreditPrefix is the word CreditLine puts before a credit.
+const DefaultCreditPrefix = "Source: "
+
+// CreditLine is a map's credit as every output prints it:
+// CreditLineWith(DefaultCreditPrefix, credit).
+func CreditLine(credit string) string { return CreditLineWith(DefaultCreditPrefix, credit) }
+
+// CreditLineWith is the credit after prefix ("Source: ", "Quelle : "),
+// unless the credit already starts with a word and a colon of its own
+// ("Source: …", "Data: …", "Sources: …") or with the prefix itself, which
+// is kept as written, so no output says "Source: Source: …". An empty
+// prefix is DefaultCreditPrefix.
+func CreditLineWith(prefix, credit string) string {
 	credit = strings.TrimSpace(credit)
 	if credit == "" {
 		return ""
 	}
+	if prefix == "" {
+		prefix = DefaultCreditPrefix
+	}
+	if p := strings.TrimSpace(prefix); p != "" && strings.HasPrefix(strings.ToLower(credit), strings.ToLower(p)) {
+		return credit
+	}
 	if head, rest, ok := strings.Cut(credit, ":"); ok && head != "" && len(head) <= 24 && !strings.ContainsAny(head, " \t/") && strings.HasPrefix(rest, " ") {
 		return credit
 	}
-	return "Source: " + credit
+	return prefix + credit
 }
 
 // Caution is the standard caution printed with every map.
@@ -76,10 +93,28 @@ const CautionShort = "Dots are placed at random inside each area: a dot is not a
 // orange, sky blue, bluish green, yellow, blue, vermillion, reddish purple.
 var OkabeIto = []string{"#000000", "#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "#CC79A7"}
 
-// DefaultPalette is the order stipple hands the Okabe & Ito colours to a
-// new map's categories: the strongest, most distinct hues first, yellow
-// (weak on a light ground) and black (reads as ink, not as a group) last.
-var DefaultPalette = []string{"#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442", "#000000"}
+// DefaultGround is the map ground the viewer shows under the dots: a cool
+// light grey.
+const DefaultGround = "#eceff3"
+
+// DefaultPalette is the colours stipple hands to a new map's categories,
+// in order. It starts from Okabe & Ito (2008) and keeps every colour at
+// 3:1 or more of WCAG 2.x contrast against DefaultGround (WCAG 2.1,
+// 1.4.11 Non-text Contrast), which five of their eight do not reach:
+//
+//   - blue #0072B2 and vermillion #D55E00 are theirs, unchanged;
+//   - bluish green #009E73 is darkened to #00896A, reddish purple #CC79A7
+//     to #B5508A;
+//   - sky blue #56B4E9 gives way to a violet #4B2F8F;
+//   - orange #E69F00 and yellow #F0E442 are left out: darkened to 3:1 they
+//     turn ochre and olive and, seen with protanopia, match the vermillion;
+//   - black stays last (it reads as ink, not as a group).
+//
+// The changed colours were chosen so that every two colours stay apart
+// (CIELAB ΔE*ab at least 10) in normal vision and in the simulations of
+// protanopia, deuteranopia and tritanopia of Machado, Oliveira &
+// Fernandes (2009); TestDefaultPalette checks both rules.
+var DefaultPalette = []string{"#0072B2", "#D55E00", "#00896A", "#B5508A", "#4B2F8F", "#000000"}
 
 // ParseHex reads a #rrggbb colour.
 func ParseHex(s string) (color.NRGBA, error) {
@@ -187,27 +222,10 @@ func FormatCount(v float64) string {
 	return b.String()
 }
 
-var (
-	fontsOnce        sync.Once
-	regular, boldTTF *truetype.Font
-)
-
-func loadFonts() {
-	fontsOnce.Do(func() {
-		regular, _ = truetype.Parse(goregular.TTF)
-		boldTTF, _ = truetype.Parse(gobold.TTF)
-	})
-}
-
-// Face returns the Go font at size points for the given scale; bold picks
-// the bold cut. The fonts ship inside the binary (golang.org/x/image).
+// Face returns DefaultFont at size points for the given scale; bold picks
+// the bold cut.
 func Face(size, scale float64, bold bool) font.Face {
-	loadFonts()
-	f := regular
-	if bold {
-		f = boldTTF
-	}
-	return truetype.NewFace(f, &truetype.Options{Size: size * scale, DPI: 72, Hinting: font.HintingFull})
+	return DefaultFont().Face(size, scale, bold)
 }
 
 // Legend colours, shared by the PNG and SVG legends: ink and muted text on
@@ -251,13 +269,13 @@ func legendLayout(l Legend, width int) (items []legendItem, height float64) {
 		if s == "" {
 			return nil
 		}
-		measure.SetFontFace(Face(size, 1, bold))
-		// Leave room for fonts a little wider than Go's, which the SVG may
+		measure.SetFontFace(l.Font.Face(size, 1, bold))
+		// Leave room for a fallback font a little wider, which the SVG may
 		// be shown in.
 		return measure.WordWrap(s, w*0.94)
 	}
 	textW := func(s string, size float64) float64 {
-		measure.SetFontFace(Face(size, 1, false))
+		measure.SetFontFace(l.Font.Face(size, 1, false))
 		w, _ := measure.MeasureString(s)
 		return w
 	}
@@ -292,7 +310,7 @@ func legendLayout(l Legend, width int) (items []legendItem, height float64) {
 	lines(wrap(l.Caution, 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
 	y += 6
 	if l.Credit != "" {
-		lines(wrap(CreditLine(l.Credit), 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
+		lines(wrap(CreditLineWith(l.CreditPrefix, l.Credit), 11, false, W-2*legendPad), 11, 15, false, LegendMuted)
 	}
 	return items, y + legendPad
 }
@@ -314,7 +332,7 @@ func DrawLegend(l Legend, width int, scale float64) image.Image {
 			dc.Stroke()
 			continue
 		}
-		dc.SetFontFace(Face(it.Size, scale, it.Bold))
+		dc.SetFontFace(l.Font.Face(it.Size, scale, it.Bold))
 		dc.SetColor(it.Color)
 		x := it.X * scale
 		if it.Right {

@@ -10,7 +10,8 @@ import (
 // LegendSVG returns the legend as a standalone SVG 1.1 document width CSS
 // pixels wide, for print and CMS workflows. It draws the same layout as
 // DrawLegend; text stays text (selectable, searchable, restylable), set in
-// the reader's sans-serif. Every string from the map file is XML-escaped.
+// the legend's font family (Legend.Font; a reader without it sees a
+// sans-serif of the same widths for the built-in face). Every string from the map file is XML-escaped.
 func LegendSVG(l Legend, width int) []byte {
 	items, h := legendLayout(l, width)
 	var b bytes.Buffer
@@ -26,7 +27,7 @@ func LegendSVG(l Legend, width int) []byte {
 	fmt.Fprintf(&b, "<title id=\"legend-title\">%s</title>\n", esc(l.Title))
 	fmt.Fprintf(&b, "<desc id=\"legend-desc\">%s</desc>\n", esc(l.Note+". "+l.Caution))
 	fmt.Fprintf(&b, "<rect width=\"%d\" height=\"%s\" fill=\"%s\"/>\n", width, H, Hex(LegendPaper))
-	fmt.Fprintf(&b, "<g font-family=\"system-ui, -apple-system, 'Segoe UI', 'Helvetica Neue', Arial, sans-serif\">\n")
+	fmt.Fprintf(&b, "<g font-family=\"%s\">\n", esc(l.Font.CSSFamily()))
 	ring := fmt.Sprintf("stroke=\"%s\" stroke-opacity=\"%.2f\" stroke-width=\"1\"", Hex(LegendRing), float64(LegendRing.A)/255)
 	for _, it := range items {
 		if it.Swatch {

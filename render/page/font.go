@@ -5,51 +5,51 @@ import (
 	"sync"
 
 	"github.com/golang/freetype/truetype"
+	"github.com/stipple-maps/stipple/render"
 	"golang.org/x/image/font"
-	"golang.org/x/image/font/gofont/gobold"
-	"golang.org/x/image/font/gofont/goregular"
 	"golang.org/x/image/math/fixed"
 )
 
-// The page uses the Go fonts (golang.org/x/image/font/gofont), shipped in
-// the binary and embedded in the PDF, so the PNG and the PDF measure and
-// draw the same glyphs. Text is measured unhinted and without kerning
-// (the Go fonts have no kern table), which is also how the PDF places it.
-var (
-	fontOnce        sync.Once
-	fontReg, fontBd *truetype.Font
-	// measureFaces are 1000-pixel faces used to measure text precisely.
+// A page is set in Spec.Font (render.DefaultFont, Liberation Sans, when
+// nil): the same TrueType files are drawn into the PNG and embedded in the
+// PDF, so the two measure and draw the same glyphs. Text is measured
+// unhinted and without kerning, which is also how the PDF places it.
+type typeface struct {
+	font *render.Font
+	// measureReg and measureBd are 1000-pixel faces used to measure text
+	// precisely.
 	measureReg, measureBd font.Face
-	// ascent is the fonts' ascent as a share of the em (the same in both cuts).
+	// ascent is the regular cut's ascent as a share of the em.
 	ascent float64
-)
+}
 
 const measureSize = 1000
 
-func loadFonts() {
-	fontOnce.Do(func() {
-		var err error
-		if fontReg, err = truetype.Parse(goregular.TTF); err != nil {
-			panic("page: the embedded Go Regular font does not parse: " + err.Error()) // a build defect, not input
-		}
-		if fontBd, err = truetype.Parse(gobold.TTF); err != nil {
-			panic("page: the embedded Go Bold font does not parse: " + err.Error())
-		}
-		opt := &truetype.Options{Size: measureSize, DPI: 72, Hinting: font.HintingNone}
-		measureReg = truetype.NewFace(fontReg, opt)
-		measureBd = truetype.NewFace(fontBd, opt)
-		ascent = fix(measureReg.Metrics().Ascent) / measureSize
-	})
+// typefaces keeps one typeface per font, so pages of one font share their
+// measuring faces.
+var typefaces sync.Map // *render.Font → *typeface
+
+func typefaceOf(f *render.Font) *typeface {
+	if f == nil {
+		f = render.DefaultFont()
+	}
+	if t, ok := typefaces.Load(f); ok {
+		return t.(*typeface)
+	}
+	opt := &truetype.Options{Size: measureSize, DPI: 72, Hinting: font.HintingNone}
+	t := &typeface{font: f, measureReg: truetype.NewFace(f.TrueType(false), opt), measureBd: truetype.NewFace(f.TrueType(true), opt)}
+	t.ascent = fix(t.measureReg.Metrics().Ascent) / measureSize
+	got, _ := typefaces.LoadOrStore(f, t)
+	return got.(*typeface)
 }
 
 func fix(v fixed.Int26_6) float64 { return float64(v) / 64 }
 
 // textWidth returns the width of s in millimetres at size points.
-func textWidth(s string, size float64, bold bool) float64 {
-	loadFonts()
-	f := measureReg
+func (t *typeface) textWidth(s string, size float64, bold bool) float64 {
+	f := t.measureReg
 	if bold {
-		f = measureBd
+		f = t.measureBd
 	}
 	var w fixed.Int26_6
 	for _, r := range s {
@@ -64,9 +64,8 @@ func textWidth(s string, size float64, bold bool) float64 {
 
 // ascentMM is the height of the font's ascent above the baseline at size
 // points, in millimetres.
-func ascentMM(size float64) float64 {
-	loadFonts()
-	return ascent * size * mmPerPt
+func (t *typeface) ascentMM(size float64) float64 {
+	return t.ascent * size * mmPerPt
 }
 
 // lineMM is the line pitch for text of size points: 1.25 em (common
@@ -75,7 +74,7 @@ func lineMM(size float64) float64 { return 1.25 * size * mmPerPt }
 
 // wrap breaks s into lines no wider than width millimetres, at spaces; a
 // single word wider than the line stays whole on its own line.
-func wrap(s string, size float64, bold bool, width float64) []string {
+func (t *typeface) wrap(s string, size float64, bold bool, width float64) []string {
 	var lines []string
 	for _, para := range strings.Split(s, "\n") {
 		words := strings.Fields(para)
@@ -84,7 +83,7 @@ func wrap(s string, size float64, bold bool, width float64) []string {
 		}
 		line := words[0]
 		for _, w := range words[1:] {
-			if textWidth(line+" "+w, size, bold) <= width {
+			if t.textWidth(line+" "+w, size, bold) <= width {
 				line += " " + w
 				continue
 			}
@@ -97,11 +96,30 @@ func wrap(s string, size float64, bold bool, width float64) []string {
 }
 
 // rasterFace returns a face for drawing text of size points at dpi.
-func rasterFace(size, dpi float64, bold bool) font.Face {
-	loadFonts()
-	f := fontReg
-	if bold {
-		f = fontBd
+func (t *typeface) rasterFace(size, dpi float64, bold bool) font.Face {
+	return truetype.NewFace(t.font.TrueType(bold), &truetype.Options{Size: size, DPI: dpi, Hinting: font.HintingNone})
+}
+
+// pdfFamily is the name the PDF gives the font: its family without
+// spaces, which pdffonts and other tools list.
+func (t *typeface) pdfFamily() string {
+	return strings.NewReplacer(" ", "", "/", "", "(", "", ")", "", "<", "", ">", "", "[", "", "]", "", "{", "", "}", "", "%", "", "#", "").Replace(t.font.Family)
+}
+
+// Words are a page's own words, for a desk to translate; empty fields are
+// English. Scale holds {denominator} and {latitude}.
+type Words struct {
+	People, Dots, All     string
+	Scale, ScaleUndefined string
+}
+
+func (w Words) or() Words {
+	def := Words{People: "people", Dots: "dots", All: "All",
+		Scale: "Scale 1 : {denominator}, true at the map centre ({latitude})", ScaleUndefined: "Scale not defined at the map centre."}
+	for _, f := range []struct{ p, d *string }{{&w.People, &def.People}, {&w.Dots, &def.Dots}, {&w.All, &def.All}, {&w.Scale, &def.Scale}, {&w.ScaleUndefined, &def.ScaleUndefined}} {
+		if *f.p == "" {
+			*f.p = *f.d
+		}
 	}
-	return truetype.NewFace(f, &truetype.Options{Size: size, DPI: dpi, Hinting: font.HintingNone})
+	return w
 }

@@ -1,10 +1,10 @@
 package page
 
 import (
-	"fmt"
 	"image/color"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render"
@@ -42,9 +42,9 @@ func textItem(s string, x, y, size float64, bold bool, c color.NRGBA) item {
 
 // textBlock appends lines of text whose first line's top is at y and
 // returns the y below the last line.
-func textBlock(items []item, lines []string, x, y, size float64, bold bool, c color.NRGBA) ([]item, float64) {
+func (l *Layout) textBlock(items []item, lines []string, x, y, size float64, bold bool, c color.NRGBA) ([]item, float64) {
 	for _, ln := range lines {
-		items = append(items, textItem(ln, x, y+ascentMM(size)+(lineMM(size)-size*mmPerPt)/2, size, bold, c))
+		items = append(items, textItem(ln, x, y+l.tf.ascentMM(size)+(lineMM(size)-size*mmPerPt)/2, size, bold, c))
 		y += lineMM(size)
 	}
 	return items, y
@@ -99,27 +99,27 @@ func (l *Layout) legendColumn(x, y, w float64, counts []int) ([]item, float64) {
 	y0 := y
 	var items []item
 	sz, hs := 9*fs, 7*fs
-	numW := textWidth("000,000,000", sz, false)
+	numW := l.tf.textWidth("000,000,000", sz, false)
 	dotsR := x + w
 	peopleR := dotsR - numW - 3*fs
 	labelX := x + 5*fs
 	labelW := peopleR - numW - 2*fs - labelX
 	right := func(s string, r, y, size float64, bold bool, c color.NRGBA) item {
-		return textItem(s, r-textWidth(s, size, bold), y, size, bold, c)
+		return textItem(s, r-l.tf.textWidth(s, size, bold), y, size, bold, c)
 	}
-	base := y + ascentMM(hs)
-	items = append(items, right("people", peopleR, base, hs, false, muted), right("dots", dotsR, base, hs, false, muted))
+	base := y + l.tf.ascentMM(hs)
+	items = append(items, right(l.words.People, peopleR, base, hs, false, muted), right(l.words.Dots, dotsR, base, hs, false, muted))
 	y += lineMM(hs) + 1*fs
 	pitch := math.Max(5*fs, lineMM(sz)+1.2*fs)
 	var people float64
 	total := 0
 	for k, e := range l.spec.Entries {
-		lines := wrap(e.Label, sz, false, math.Max(labelW, 10))
+		lines := l.tf.wrap(e.Label, sz, false, math.Max(labelW, 10))
 		rowH := pitch + float64(len(lines)-1)*lineMM(sz)
 		mid := y + pitch/2
 		c := e.Color
 		items = append(items, item{kind: kCircle, x: x + 1.6*fs, y: mid, r: 1.4 * fs, fill: &c})
-		b := mid + ascentMM(sz)/2 - 0.15*fs
+		b := mid + l.tf.ascentMM(sz)/2 - 0.15*fs
 		for i, ln := range lines {
 			items = append(items, textItem(ln, labelX, b+float64(i)*lineMM(sz), sz, false, ink))
 		}
@@ -132,14 +132,14 @@ func (l *Layout) legendColumn(x, y, w float64, counts []int) ([]item, float64) {
 	if len(l.spec.Entries) > 1 {
 		items = append(items, item{kind: kRect, x: x, y: y + 0.6*fs, w: w, h: 0.15 * fs, fill: &muted})
 		y += 1.2 * fs
-		b := y + pitch/2 + ascentMM(sz)/2 - 0.15*fs
-		items = append(items, textItem("All", labelX, b, sz, true, ink),
+		b := y + pitch/2 + l.tf.ascentMM(sz)/2 - 0.15*fs
+		items = append(items, textItem(l.words.All, labelX, b, sz, true, ink),
 			right(render.FormatCount(people), peopleR, b, sz, true, ink),
 			right(render.FormatCount(float64(total)), dotsR, b, sz, true, ink))
 		y += pitch
 	}
 	y += 2 * fs
-	items, y = textBlock(items, wrap(l.spec.Note, 10*fs, true, w), x, y, 10*fs, true, ink)
+	items, y = l.textBlock(items, l.tf.wrap(l.spec.Note, 10*fs, true, w), x, y, 10*fs, true, ink)
 	return items, y - y0
 }
 
@@ -160,7 +160,7 @@ func (l *Layout) notesColumn(x, y, w float64, bar *scaleBar) ([]item, float64) {
 	y += lineMM(small) + 2*fs
 	if bar != nil {
 		if bar.ok {
-			items, _ = textBlock(items, []string{bar.caption}, x, capY, small, false, ink)
+			items, _ = l.textBlock(items, []string{bar.caption}, x, capY, small, false, ink)
 			seg := bar.length / 4
 			for i := 0; i < 4; i++ {
 				fill := ink
@@ -171,27 +171,27 @@ func (l *Layout) notesColumn(x, y, w float64, bar *scaleBar) ([]item, float64) {
 			}
 			for i, t := range bar.ticks {
 				pos := x + float64(i)*bar.length/2
-				tw := textWidth(t, small, false)
+				tw := l.tf.textWidth(t, small, false)
 				if i == len(bar.ticks)-1 {
-					items = append(items, textItem(t, pos-textWidth(bar.last, small, false)/2, tickY+ascentMM(small), small, false, ink))
+					items = append(items, textItem(t, pos-l.tf.textWidth(bar.last, small, false)/2, tickY+l.tf.ascentMM(small), small, false, ink))
 					continue
 				}
-				items = append(items, textItem(t, pos-tw/2, tickY+ascentMM(small), small, false, ink))
+				items = append(items, textItem(t, pos-tw/2, tickY+l.tf.ascentMM(small), small, false, ink))
 			}
 		} else {
-			items, _ = textBlock(items, []string{bar.caption}, x, capY, small, false, muted)
+			items, _ = l.textBlock(items, []string{bar.caption}, x, capY, small, false, muted)
 		}
 	}
-	items, y = textBlock(items, wrap(Describe(l.spec.Projection)+".", small, false, w), x, y, small, false, muted)
+	items, y = l.textBlock(items, l.tf.wrap(Describe(l.spec.Projection)+".", small, false, w), x, y, small, false, muted)
 	y += 1.5 * fs
-	items, y = textBlock(items, wrap(l.spec.Caution, small, false, w), x, y, small, false, ink)
+	items, y = l.textBlock(items, l.tf.wrap(l.spec.Caution, small, false, w), x, y, small, false, ink)
 	for _, fn := range l.spec.Footnotes {
 		y += 1.5 * fs
-		items, y = textBlock(items, wrap(fn, small, false, w), x, y, small, false, muted)
+		items, y = l.textBlock(items, l.tf.wrap(fn, small, false, w), x, y, small, false, muted)
 	}
 	if l.spec.Credit != "" {
 		y += 1.5 * fs
-		items, y = textBlock(items, wrap(l.spec.Credit, small, false, w), x, y, small, false, muted)
+		items, y = l.textBlock(items, l.tf.wrap(l.spec.Credit, small, false, w), x, y, small, false, muted)
 	}
 	return items, y - y0
 }
@@ -219,7 +219,7 @@ func (l *Layout) scaleBar(maxLen float64) scaleBar {
 	_, k := proj.ScaleAt(p, lon, lat)
 	perGround := l.scale * k // page mm per ground metre
 	if math.IsNaN(perGround) || !(perGround > 0) {
-		return scaleBar{caption: "Scale not defined at the map centre."}
+		return scaleBar{caption: l.words.ScaleUndefined}
 	}
 	d := math.Pow(10, math.Floor(math.Log10(maxLen/perGround)))
 	for _, m := range []float64{5, 2, 1} {
@@ -236,7 +236,7 @@ func (l *Layout) scaleBar(maxLen float64) scaleBar {
 	num := func(v float64) string { return strconv.FormatFloat(v/div, 'f', -1, 64) }
 	b.last = num(d)
 	b.ticks = []string{"0", num(d / 2), b.last + " " + unit}
-	b.caption = fmt.Sprintf("Scale 1 : %s, true at the map centre (%s)", render.FormatCount(roundSig(b.denominator, 3)), latString(lat))
+	b.caption = strings.NewReplacer("{denominator}", render.FormatCount(roundSig(b.denominator, 3)), "{latitude}", latString(lat)).Replace(l.words.Scale)
 	return b
 }
 

@@ -9,6 +9,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo/proj"
+	"github.com/stipple-maps/stipple/render"
 )
 
 // Entry is one legend row: a group, its colour and the people it has in
@@ -47,6 +48,11 @@ type Spec struct {
 	// Outlines, when not nil, are drawn as thin lines over the dots
 	// (longitude/latitude polygons, e.g. the areas' boundaries).
 	Outlines []orb.MultiPolygon
+	// Font sets the text (nil: render.DefaultFont); the PDF embeds it.
+	Font *render.Font
+	// Words are the page's own words (column heads, total, scale
+	// caption); empty fields are English.
+	Words Words
 }
 
 // Limits on a Spec, so that a mistyped option fails with a message.
@@ -84,6 +90,9 @@ type Layout struct {
 	portrait bool   // furniture below the map (else beside it)
 	panel    Rect   // where the furniture goes
 	colGap   float64
+
+	tf    *typeface // Spec.Font
+	words Words     // Spec.Words, English where empty
 }
 
 var (
@@ -100,16 +109,16 @@ func NewLayout(spec Spec) (*Layout, error) {
 		return nil, err
 	}
 	s := spec.Size
-	l := &Layout{spec: spec, ppm: spec.DPI / mmPerInch}
+	l := &Layout{spec: spec, ppm: spec.DPI / mmPerInch, tf: typefaceOf(spec.Font), words: spec.Words.or()}
 	// Text grows and shrinks with the page, gently: a poster gets larger
 	// type, a postcard smaller (common practice).
 	l.fs = math.Max(0.7, math.Min(1.6, math.Min(s.W, s.H)/210))
 	M := spec.Margin
 	y := M
-	l.head, y = textBlock(nil, wrap(spec.Title, 17*l.fs, true, s.W-2*M), M, y, 17*l.fs, true, ink)
+	l.head, y = l.textBlock(nil, l.tf.wrap(spec.Title, 17*l.fs, true, s.W-2*M), M, y, 17*l.fs, true, ink)
 	if spec.Subtitle != "" {
 		y += 0.5 * l.fs
-		l.head, y = textBlock(l.head, wrap(spec.Subtitle, 10*l.fs, false, s.W-2*M), M, y, 10*l.fs, false, muted)
+		l.head, y = l.textBlock(l.head, l.tf.wrap(spec.Subtitle, 10*l.fs, false, s.W-2*M), M, y, 10*l.fs, false, muted)
 	}
 	y += 3 * l.fs
 	gap := 4 * l.fs

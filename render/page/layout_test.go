@@ -24,8 +24,8 @@ func TestLayoutFits(t *testing.T) {
 			var x0, y0, x1, y1 float64
 			switch it.kind {
 			case kText:
-				x0, x1 = it.x, it.x+textWidth(it.text, it.size, it.bold)
-				y0, y1 = it.y-ascentMM(it.size), it.y
+				x0, x1 = it.x, it.x+p.tf.textWidth(it.text, it.size, it.bold)
+				y0, y1 = it.y-p.tf.ascentMM(it.size), it.y
 			case kRect, kDots:
 				x0, y0, x1, y1 = it.x, it.y, it.x+it.w, it.y+it.h
 			case kCircle:

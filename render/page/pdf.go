@@ -9,8 +9,6 @@ import (
 	"time"
 
 	"github.com/go-pdf/fpdf"
-	"golang.org/x/image/font/gofont/gobold"
-	"golang.org/x/image/font/gofont/goregular"
 )
 
 // DotMode says how a PDF holds the dots.
@@ -80,8 +78,8 @@ func (m DotMode) String() string {
 var pdfDate = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
 
 // WritePDF writes the page as a one-page PDF of the page's size. Text,
-// legend, scale bar, frame and outlines are vector graphics in the
-// embedded Go fonts; the dots are a raster at the page's DPI or vector
+// legend, scale bar, frame and outlines are vector graphics, the text in
+// the page's font (Spec.Font), embedded; the dots are a raster at the page's DPI or vector
 // circles, as mode says.
 func (p *Page) WritePDF(w io.Writer, mode DotMode) error {
 	// fpdf writes the MediaBox in points with two decimals but places
@@ -99,8 +97,9 @@ func (p *Page) WritePDF(w io.Writer, mode DotMode) error {
 	pdf.SetTitle(p.spec.Title, true)
 	pdf.SetMargins(0, 0, 0)
 	pdf.SetAutoPageBreak(false, 0)
-	pdf.AddUTF8FontFromBytes("go", "", goregular.TTF)
-	pdf.AddUTF8FontFromBytes("go", "B", gobold.TTF)
+	fam := p.tf.pdfFamily()
+	pdf.AddUTF8FontFromBytes(fam, "", p.tf.font.Regular)
+	pdf.AddUTF8FontFromBytes(fam, "B", p.tf.font.Bold)
 	pdf.AddPage()
 	setFill := func(c color.NRGBA) { pdf.SetFillColor(int(c.R), int(c.G), int(c.B)) }
 	setDraw := func(c color.NRGBA) { pdf.SetDrawColor(int(c.R), int(c.G), int(c.B)) }
@@ -115,7 +114,7 @@ func (p *Page) WritePDF(w io.Writer, mode DotMode) error {
 			if it.bold {
 				style = "B"
 			}
-			pdf.SetFont("go", style, it.size)
+			pdf.SetFont(fam, style, it.size)
 			c := *it.fill
 			pdf.SetTextColor(int(c.R), int(c.G), int(c.B))
 			pdf.Text(it.x, it.y, it.text)

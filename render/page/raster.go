@@ -30,7 +30,7 @@ func (p *Page) Raster() *image.RGBA {
 			}
 			f, ok := faces[key]
 			if !ok {
-				f = rasterFace(it.size, p.spec.DPI, it.bold)
+				f = p.tf.rasterFace(it.size, p.spec.DPI, it.bold)
 				faces[key] = f
 			}
 			dc.SetFontFace(f)

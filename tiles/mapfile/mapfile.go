@@ -13,6 +13,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 	"github.com/stipple-maps/stipple/geo/table"
+	"github.com/stipple-maps/stipple/render/theme"
 )
 
 // Map is one map file.
@@ -46,6 +47,13 @@ type Map struct {
 	// Layers, when set, are two or more maps rendered into one folder with
 	// a layer switch and a compare divider (see Layer).
 	Layers []Layer `toml:"layer"`
+	// ThemeTable is the [theme] table as written.
+	ThemeTable ThemeTable `toml:"theme"`
+
+	// Theme is the house style resolved from ThemeTable (its theme file,
+	// fonts and text over the defaults). Read sets it; a Map made in code
+	// may leave it nil, which means theme.Default.
+	Theme *theme.Theme `toml:"-"`
 }
 
 // Input names the polygons and where their counts come from.
@@ -216,6 +224,9 @@ func Parse(path string, data []byte) (*Map, error) {
 		return nil, &Error{Path: path, Line: line, Key: name, Msg: "unknown key"}
 	}
 	if err := m.check(md, lines, data); err != nil {
+		return nil, err
+	}
+	if err := m.resolveTheme(lines); err != nil {
 		return nil, err
 	}
 	return &m, nil

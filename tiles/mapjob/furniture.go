@@ -12,6 +12,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
@@ -28,7 +29,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 		Tiles: tiles.TilesTemplate, PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Note: render.DotNote(m.PeoplePerDot), Caution: cautionOf(s),
+		Note: m.Theme.DotNote(m.PeoplePerDot), Caution: cautionOf(theme.Or(m.Theme).Text.Caution, s), Theme: m.Theme,
 		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
 	}
 	if s.Tiles.Tiles2x > 0 {
@@ -83,7 +84,9 @@ func dotstoreWorld(lon, lat float64, z int) [2]float64 {
 
 // LegendOf is the legend for the metadata.
 func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
-	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit, NotDrawn: tiles.NotDrawnText(md)}
+	th := theme.Or(md.Theme)
+	l := render.Legend{Title: md.Title, Note: md.Note, Caution: md.Caution, Credit: md.Credit, NotDrawn: tiles.NotDrawnText(md),
+		CreditPrefix: th.Text.CreditPrefix, Font: th.Font}
 	for k, c := range md.Categories {
 		l.Entries = append(l.Entries, render.LegendEntry{Label: c.Label, Color: colors[k], People: c.People, Dots: c.DotsDrawn})
 	}
@@ -139,11 +142,11 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 // survey estimates with published margins of error.
 const EstimatesCaution = " These counts are survey estimates with margins of error: small differences between areas may not be real."
 
-// cautionOf is the map's caution: the standard one, and a word on
+// cautionOf is the map's caution: the theme's (base), and a word on
 // estimates when the counts carry margins of error.
-func cautionOf(s *Summary) string {
+func cautionOf(base string, s *Summary) string {
 	if s.Estimates {
-		return render.Caution + EstimatesCaution
+		return base + EstimatesCaution
 	}
-	return render.Caution
+	return base
 }

@@ -11,10 +11,17 @@ import (
 	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/render/page"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
+
+// printWords are the print page's own words from the map's theme.
+func printWords(t *theme.Theme) page.Words {
+	tx := theme.Or(t).Text
+	return page.Words{People: tx.People, Dots: tx.Dots, All: tx.All, Scale: tx.Scale, ScaleUndefined: tx.ScaleUndefined}
+}
 
 // PrintCaution is printed on every page: the map caution, which already
 // says that maps of groups can be misused.
@@ -120,7 +127,8 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	colors := m.RGBA()
 	spec := page.Spec{
 		Size: opt.Size, DPI: opt.DPI, Margin: opt.Margin, Title: m.Title,
-		Note: render.DotNote(m.PeoplePerDot), Caution: PrintCaution, Credit: render.CreditLine(m.Credit),
+		Note: m.Theme.DotNote(m.PeoplePerDot), Caution: theme.Or(m.Theme).Text.Caution, Credit: m.Theme.CreditLine(m.Credit),
+		Font: theme.Or(m.Theme).Font, Words: printWords(m.Theme),
 		Projection: pr, Extent: extent, DotMM: opt.DotMM, Opacity: m.Dots.Opacity,
 	}
 	if opt.Title != "" {

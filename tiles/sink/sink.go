@@ -97,6 +97,8 @@ func TypeOf(name string) string {
 		return "image/svg+xml"
 	case ".pdf":
 		return "application/pdf"
+	case ".ttf":
+		return "font/ttf" // RFC 8081 §4.4.2
 	case ".txt", ".md":
 		return "text/plain; charset=utf-8"
 	}

@@ -156,7 +156,7 @@ func TestDenseDotSizeOnScreen(t *testing.T) {
 	checkDrawn(t, "one dot", tb, st, true)
 	img := tb.screenshot(2560)
 	want, _ := render.ParseHex(dotColor)
-	paper, _ := render.ParseHex("#f2efe7")
+	paper, _ := render.ParseHex(render.DefaultGround)
 	// Device pixels: the dot's centre is at (1280, 800), its radius 30.
 	for _, p := range []image.Point{{1280, 800}, {1280 - 25, 800}, {1280 + 25, 800}, {1280, 800 - 25}, {1280, 800 + 25}} {
 		if !near(img, p, want) {

@@ -445,7 +445,7 @@ func TestDotColourOnScreen(t *testing.T) {
 	tb.open(srv.URL + fmt.Sprintf("/index.html#z=14.00&lat=%.5f&lon=%.5f", dotAt[1], dotAt[0]))
 	img := tb.screenshot(1280)
 	want, _ := render.ParseHex(dotColor)
-	paper, _ := render.ParseHex("#f2efe7")
+	paper, _ := render.ParseHex(render.DefaultGround)
 	// The dot is 40 px wide at zoom 14 and lies at the view's centre.
 	for _, p := range []image.Point{{640, 400}, {628, 392}, {652, 410}} {
 		if !near(img, p, want) {
