@@ -115,6 +115,13 @@ func (c *tileCache) path(z, x, y int, suffix string) string {
 // Cover lists the tiles at zoom z that meet bound b, clamped to the Web
 // Mercator square (±85.0511°).
 func Cover(b orb.Bound, z int) [][2]int {
+	if b.Min[0] > b.Max[0] { // across the antimeridian
+		var out [][2]int
+		for _, part := range unwrapped(b) {
+			out = append(out, Cover(part, z)...)
+		}
+		return out
+	}
 	const maxLat = proj.WebMercatorMaxLat
 	b.Min[1] = math.Max(b.Min[1], -maxLat)
 	b.Max[1] = math.Min(b.Max[1], maxLat)

@@ -485,9 +485,10 @@ func checkBox(b []float64) error {
 		return fmt.Errorf("latitudes must be within -90 to 90")
 	case s >= n:
 		return fmt.Errorf("south %v must be below north %v", s, n)
-	case w >= e:
-		return fmt.Errorf("west %v must be less than east %v (boxes across the antimeridian are not supported)", w, e)
+	case w == e:
+		return fmt.Errorf("west and east are both %v; the box has no width", w)
 	}
+	// West above east crosses the antimeridian (RFC 7946 §5.2).
 	return nil
 }
 

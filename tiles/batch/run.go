@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"image/color"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -414,9 +415,30 @@ func oneLine(s string) string { return strings.ReplaceAll(s, "\n", " ") }
 
 // withMargin grows b by share of its width and height on every side.
 func withMargin(b orb.Bound, share float64) orb.Bound {
-	dx := (b.Max[0] - b.Min[0]) * share
+	width := mapjob.ExtentOfBound(b).Width()
+	dx := width * share
 	dy := (b.Max[1] - b.Min[1]) * share
-	return orb.Bound{Min: orb.Point{b.Min[0] - dx, b.Min[1] - dy}, Max: orb.Point{b.Max[0] + dx, b.Max[1] + dy}}
+	if width+2*dx >= 360 {
+		return orb.Bound{Min: orb.Point{-180, b.Min[1] - dy}, Max: orb.Point{180, b.Max[1] + dy}}
+	}
+	wrap := func(lon float64) float64 { return math.Remainder(lon, 360) }
+	w, e := b.Min[0]-dx, b.Max[0]+dx
+	if b.Min[0] <= b.Max[0] && w >= -180 && e <= 180 {
+		return orb.Bound{Min: orb.Point{w, b.Min[1] - dy}, Max: orb.Point{e, b.Max[1] + dy}}
+	}
+	return orb.Bound{Min: orb.Point{wrap(w), b.Min[1] - dy}, Max: orb.Point{wrap(e), b.Max[1] + dy}}
+}
+
+// unwrapped splits a bound whose west exceeds its east (across the
+// antimeridian) into the two ordinary bounds either side of 180°.
+func unwrapped(b orb.Bound) []orb.Bound {
+	if b.Min[0] <= b.Max[0] {
+		return []orb.Bound{b}
+	}
+	return []orb.Bound{
+		{Min: orb.Point{b.Min[0], b.Min[1]}, Max: orb.Point{180, b.Max[1]}},
+		{Min: orb.Point{-180, b.Min[1]}, Max: orb.Point{b.Max[0], b.Max[1]}},
+	}
 }
 
 // complete reports whether the extent folder holds a finished extent made
@@ -504,10 +526,13 @@ func nearAreas(f *File, perDot float64, layer *geo.Layer) []int {
 			continue
 		}
 		fb := ft.Geometry.Bound()
+	boxes:
 		for _, b := range boxes {
-			if fb.Intersects(b) {
-				areas = append(areas, i)
-				break
+			for _, part := range unwrapped(b) {
+				if fb.Intersects(part) {
+					areas = append(areas, i)
+					break boxes
+				}
 			}
 		}
 	}

@@ -9,6 +9,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/tiles/mapjob"
 )
 
 // Picked is what an extent selected from the layer.
@@ -39,8 +40,16 @@ func RepresentativePoint(g orb.MultiPolygon) (p orb.Point, ok bool) {
 }
 
 // inBox is the half-open test: west and south edges in, east and north out.
+// A box whose west exceeds its east crosses the antimeridian (RFC 7946
+// §5.2): it holds the longitudes from west to 180° and from −180° to east.
 func inBox(b [4]float64, p orb.Point) bool {
-	return p[0] >= b[0] && p[0] < b[2] && p[1] >= b[1] && p[1] < b[3]
+	if p[1] < b[1] || p[1] >= b[3] {
+		return false
+	}
+	if b[0] > b[2] {
+		return p[0] >= b[0] || p[0] < b[2]
+	}
+	return p[0] >= b[0] && p[0] < b[2]
 }
 
 // Pick selects the extent's areas from layer. An id or value that matches
@@ -116,13 +125,17 @@ func Pick(e *Extent, layer *geo.Layer) (*Picked, error) {
 		p.Rule = fmt.Sprintf("the %d areas whose %s is %s", len(p.Features), e.Field, strings.Join(vals, " or "))
 	}
 	slices.Sort(p.Features)
-	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	// The areas' extent, across the antimeridian where they straddle it.
+	var parts []orb.Bound
 	for _, i := range p.Features {
-		if g := layer.Features[i].Geometry; len(g) > 0 {
-			b = b.Union(g.Bound())
+		for _, poly := range layer.Features[i].Geometry {
+			if len(poly) > 0 && len(poly[0]) > 0 {
+				parts = append(parts, poly.Bound())
+			}
 		}
 	}
-	if !(b.Min[0] <= b.Max[0]) {
+	b := mapjob.BoundOf(parts)
+	if !(b.Min[1] <= b.Max[1]) {
 		return nil, fmt.Errorf("%s: none of its %d areas has a geometry to map", e.Select, len(p.Features))
 	}
 	p.Bound = b

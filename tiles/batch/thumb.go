@@ -38,11 +38,15 @@ func Thumbnail(store *dotstore.Store, p *Picked, layer *geo.Layer, e *Extent, co
 	scale := tileSize / 256 // a 512 map's pixel is half a 256 map's
 	z := mapjob.FitZoom(p.Bound, (ThumbW-2*pad)/scale, (ThumbH-2*pad)/scale, 0, max(e.MaxZoom, 0))
 	worldPx := float64(tileSize) * math.Exp2(float64(z)) // pixels across the world at z
+	centre := mapjob.ExtentOfBound(p.Bound).Centre()
+	// Longitudes are taken within 180° of the centre's, so a view across
+	// the antimeridian is one piece.
 	toPx := func(lon, lat float64) (float64, float64) {
-		x, y := dotstore.World(lon, lat)
-		return (float64(x) + 0.5) / dotstore.WorldSize * worldPx, (float64(y) + 0.5) / dotstore.WorldSize * worldPx
+		lon = centre[0] + math.Remainder(lon-centre[0], 360)
+		_, y := dotstore.World(0, lat)
+		return (lon + 180) / 360 * worldPx, (float64(y) + 0.5) / dotstore.WorldSize * worldPx
 	}
-	cx, cy := toPx((p.Bound.Min[0]+p.Bound.Max[0])/2, (p.Bound.Min[1]+p.Bound.Max[1])/2)
+	cx, cy := toPx(centre[0], centre[1])
 	ox, oy := cx-ThumbW/2, cy-ThumbH/2
 
 	d := look(z)
@@ -67,11 +71,15 @@ func Thumbnail(store *dotstore.Store, p *Picked, layer *geo.Layer, e *Extent, co
 	keys := store.Keys()
 	cellPx := worldPx / dotstore.WorldSize
 	for ty := ty0; ty <= ty1; ty++ {
-		for tx := max(0, tx0); tx <= min(n-1, tx1); tx++ {
-			first, last := dotstore.TileRange(z, tx, ty)
+		for tx := max(tx0, tx1-n+1); tx <= tx1; tx++ {
+			// Tile columns past either edge of the world are those of the
+			// other side, shifted by a world's width.
+			wrapped := ((tx % n) + n) % n
+			shift := float64(tx-wrapped) * float64(tileSize)
+			first, last := dotstore.TileRange(z, wrapped, ty)
 			for _, k := range rangeOf(keys, first, last) {
 				wx, wy, cat := dotstore.Split(k)
-				px := (float64(wx)+0.5)*cellPx - ox
+				px := (float64(wx)+0.5)*cellPx + shift - ox
 				py := (float64(wy)+0.5)*cellPx - oy
 				if hist {
 					ix, iy := int(math.Floor(px)), int(math.Floor(py))
@@ -110,7 +118,11 @@ func Thumbnail(store *dotstore.Store, p *Picked, layer *geo.Layer, e *Extent, co
 	}
 	if e.Select == ByBox {
 		b := p.Bound
-		ring(orb.Ring{{b.Min[0], b.Min[1]}, {b.Max[0], b.Min[1]}, {b.Max[0], b.Max[1]}, {b.Min[0], b.Max[1]}})
+		east := b.Max[0]
+		if east < b.Min[0] {
+			east += 360 // across the antimeridian
+		}
+		ring(orb.Ring{{b.Min[0], b.Min[1]}, {east, b.Min[1]}, {east, b.Max[1]}, {b.Min[0], b.Max[1]}})
 	} else {
 		for _, i := range p.Features {
 			for _, poly := range layer.Features[i].Geometry {
