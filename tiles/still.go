@@ -32,7 +32,6 @@ var StillSizes = map[string][2]int{
 	"square":   {1080, 1080},
 }
 
-
 // View is the centre and zoom of a still.
 type View struct {
 	Zoom     int
