@@ -17,6 +17,9 @@
     return 0.5 - Math.log((1 + s) / (1 - s)) / (4 * Math.PI);
   }
   function xToLon(x) { return x * 360 - 180; }
+  // normLon puts a longitude in [−180, 180): the view's centre may sit in
+  // the world copy east or west of the first, over a map that crosses 180°.
+  function normLon(lon) { return ((lon + 180) % 360 + 360) % 360 - 180; }
   function yToLat(y) { return Math.atan(Math.sinh(Math.PI * (1 - 2 * y))) * 180 / Math.PI; }
   // Metres per CSS pixel at a latitude and (fractional) zoom: Microsoft,
   // "Bing Maps Tile System": cos(lat) · 2π · 6378137 / (256 · 2^z).
@@ -105,7 +108,7 @@
   TileLayer.prototype.level = function (set, z) {
     var k = set + "/" + z, L = this.levels[k];
     if (!L) {
-      L = { key: k, set: set, z: z, el: document.createElement("div"), tiles: {}, ax: null, ay: null, used: 0 };
+      L = { key: k, set: set, z: z, el: document.createElement("div"), tiles: {}, used: 0 };
       L.el.className = "st-level";
       this.levels[k] = L;
     }
@@ -128,7 +131,6 @@
       var cx = v.x * n * T, cy = v.y * n * T;
       var x0 = Math.floor((cx - w / 2 / s) / T), x1 = Math.floor((cx + w / 2 / s) / T);
       var y0 = Math.max(0, Math.floor((cy - h / 2 / s) / T)), y1 = Math.min(n - 1, Math.floor((cy + h / 2 / s) / T));
-      if (L.ax === null) { L.ax = x0; L.ay = y0; }
       var seen = {}, wantN = 0, loadedN = 0;
       for (var ty = y0; ty <= y1; ty++) {
         for (var tx = x0; tx <= x1; tx++) {
@@ -144,8 +146,8 @@
             img.draggable = false;
             img.onload = tileArrived;
             img.onerror = tileFailed;
-            img.style.left = (tx - L.ax) * T + "px";
-            img.style.top = (ty - L.ay) * T + "px";
+            img.stX = tx;
+            img.stY = ty;
             if (dense(set)) {
               img.stPlain = tileURL(sets[set].tiles, tz, wx, ty);
               img.src = tileURL(sets[set].tiles_2x, tz, wx, ty);
@@ -180,12 +182,23 @@
     keep.slice(2).forEach(function (M) { M.el.remove(); delete self.levels[M.key]; });
     for (var pk in this.levels) place(this.levels[pk], v, w, h);
   };
+  // place puts every tile of level L on whole device pixels: each tile
+  // edge is rounded to the nearest device pixel on its own, so a tile ends
+  // exactly where its neighbour starts. A layer moved or scaled as a whole
+  // by a fractional CSS transform would leave each tile edge part-covered,
+  // and the ground would show through as a thin light line.
   function place(L, v, w, h) {
-    if (L.ax === null) return;
-    var n = Math.pow(2, L.z), s = Math.pow(2, v.z - L.z);
-    var ox = w / 2 - v.x * n * T * s + L.ax * T * s;
-    var oy = h / 2 - v.y * n * T * s + L.ay * T * s;
-    L.el.style.transform = "translate(" + ox.toFixed(2) + "px," + oy.toFixed(2) + "px) scale(" + s.toFixed(5) + ")";
+    var n = Math.pow(2, L.z), u = T * Math.pow(2, v.z - L.z), r = window.devicePixelRatio || 1;
+    var ox = w / 2 - v.x * n * u, oy = h / 2 - v.y * n * u;
+    function edge(o, i) { return Math.round((o + i * u) * r) / r; }
+    for (var k in L.tiles) {
+      var img = L.tiles[k], s = img.style;
+      var x0 = edge(ox, img.stX), x1 = edge(ox, img.stX + 1), y0 = edge(oy, img.stY), y1 = edge(oy, img.stY + 1);
+      s.left = x0 + "px";
+      s.top = y0 + "px";
+      s.width = (x1 - x0) + "px";
+      s.height = (y1 - y0) + "px";
+    }
   }
 
   function Stack(el) {
@@ -204,21 +217,33 @@
     shown().forEach(function (l) { a = Math.min(a, l.min_zoom); b = Math.max(b, l.max_zoom); });
     return [a, b];
   }
+  // box is the shown maps' extent in world units. Bounds are
+  // [west, south, east, north] as in RFC 7946 §5.2: west > east means the
+  // extent crosses 180°, and its east edge is then taken in the next world
+  // copy (x beyond 1), so the box is one unbroken span.
   function box() {
-    var b = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity };
+    var b = null;
     shown().forEach(function (l) {
-      b.x0 = Math.min(b.x0, lonToX(l.bounds[0])); b.x1 = Math.max(b.x1, lonToX(l.bounds[2]));
-      b.y0 = Math.min(b.y0, latToY(l.bounds[3])); b.y1 = Math.max(b.y1, latToY(l.bounds[1]));
+      var x0 = lonToX(l.bounds[0]), x1 = lonToX(l.bounds[2]);
+      if (x1 < x0) x1 += 1;
+      var y0 = latToY(l.bounds[3]), y1 = latToY(l.bounds[1]);
+      if (!b) { b = { x0: x0, y0: y0, x1: x1, y1: y1 }; return; }
+      var d = Math.round((b.x0 + b.x1) / 2 - (x0 + x1) / 2);
+      b.x0 = Math.min(b.x0, x0 + d); b.x1 = Math.max(b.x1, x1 + d);
+      b.y0 = Math.min(b.y0, y0); b.y1 = Math.max(b.y1, y1);
     });
+    if (b.x1 - b.x0 > 1) { var c = (b.x0 + b.x1) / 2; b.x0 = c - 0.5; b.x1 = c + 0.5; }
     return b;
   }
+  // near moves world x by whole worlds to the copy nearest the box.
+  function near(x, b) { return x - Math.round(x - (b.x0 + b.x1) / 2); }
   function size() { return { w: mapEl.clientWidth, h: mapEl.clientHeight }; }
   // constrain keeps the zoom in its limits and some of the map in view.
   function constrain() {
     var lim = zoomLimits(), b = box(), sz = size();
     st.z = clamp(st.z, lim[0], lim[1]);
     var k = Math.pow(2, st.z) * T, mx = Math.max(0, sz.w / 2 - 48) / k, my = Math.max(0, sz.h / 2 - 48) / k;
-    st.x = clamp(st.x, b.x0 - mx, b.x1 + mx);
+    st.x = clamp(near(st.x, b), b.x0 - mx, b.x1 + mx);
     st.y = clamp(st.y, Math.max(0, b.y0 - my), Math.min(1, b.y1 + my));
   }
   function zoomAt(z, px, py) {
@@ -241,23 +266,41 @@
     st.y -= dy / k;
     schedule();
   }
-  // The key card covers the left of the map on wide screens: fit around it.
-  function covered() {
-    if (getComputedStyle(keyEl).position !== "absolute") return 0;
-    return keyEl.offsetLeft + keyEl.offsetWidth;
-  }
-  function fit(maxZ) {
-    var b = box(), sz = size(), left = covered(), lim = zoomLimits();
-    var top = byId("st-tools") ? 60 : 16, bottom = 60, side = 16;
-    if (embed) top = bottom = side = 10;
-    var aw = Math.max(sz.w - left - 2 * side, 40), ah = Math.max(sz.h - top - bottom, 40);
-    var z = Math.log(Math.min(aw / ((b.x1 - b.x0) * T), ah / ((b.y1 - b.y0) * T))) / Math.LN2;
-    if (!isFinite(z)) z = lim[1];
-    z = clamp(Math.floor(z * 100) / 100, lim[0], Math.min(lim[1], maxZ === undefined ? Infinity : maxZ));
+  // fit shows the whole map as large as the screen allows in a rectangle
+  // clear of the key card (where it lies over the map) and the controls:
+  // each candidate rectangle runs from the map's edges or an obstacle's
+  // edges, and the one that gives the deepest zoom wins.
+  function fit() {
+    var b = box(), sz = size(), lim = zoomLimits(), m = mapEl.getBoundingClientRect(), pad = embed ? 8 : 12;
+    var obs = [];
+    function add(el) {
+      if (!el || el.hidden) return;
+      var r = el.getBoundingClientRect();
+      if (r.width && r.height) obs.push({ l: r.left - m.left, t: r.top - m.top, r: r.right - m.left, b: r.bottom - m.top });
+    }
+    if (getComputedStyle(keyEl).position === "absolute") add(keyEl);
+    add(byId("st-tools"));
+    add(mapEl.parentNode.querySelector(".st-corner"));
+    var ls = [0], rs = [sz.w], ts = [0], bs = [sz.h];
+    obs.forEach(function (o) { ls.push(o.r); rs.push(o.l); ts.push(o.b); bs.push(o.t); });
+    var best = null;
+    ls.forEach(function (l) { rs.forEach(function (r) { ts.forEach(function (t) { bs.forEach(function (bt) {
+      if (r - l < 2 * pad + 40 || bt - t < 2 * pad + 40) return;
+      for (var i = 0; i < obs.length; i++) {
+        var o = obs[i];
+        if (o.l < r && o.r > l && o.t < bt && o.b > t) return;
+      }
+      var w = r - l - 2 * pad, h = bt - t - 2 * pad;
+      var z = Math.log(Math.min(w / ((b.x1 - b.x0) * T), h / ((b.y1 - b.y0) * T))) / Math.LN2;
+      if (!best || z > best.z) best = { z: z, l: l + pad, t: t + pad, w: w, h: h };
+    }); }); }); });
+    if (!best) best = { z: Math.log(Math.min(sz.w / ((b.x1 - b.x0) * T), sz.h / ((b.y1 - b.y0) * T))) / Math.LN2, l: 0, t: 0, w: sz.w, h: sz.h };
+    var z = isFinite(best.z) ? best.z : lim[1];
+    z = clamp(Math.floor(z * 100) / 100, lim[0], lim[1]);
     var k = Math.pow(2, z) * T;
     st.z = z;
-    st.x = (b.x0 + b.x1) / 2 - (left + (sz.w - left) / 2 - sz.w / 2) / k;
-    st.y = (b.y0 + b.y1) / 2 - ((top + (sz.h - top - bottom) / 2) - sz.h / 2) / k;
+    st.x = (b.x0 + b.x1) / 2 - (best.l + best.w / 2 - sz.w / 2) / k;
+    st.y = (b.y0 + b.y1) / 2 - (best.t + best.h / 2 - sz.h / 2) / k;
     schedule();
   }
 
@@ -332,7 +375,7 @@
     return -1;
   }
   function hashString() {
-    var p = "z=" + st.z.toFixed(2) + "&lat=" + yToLat(st.y).toFixed(5) + "&lon=" + xToLon(st.x).toFixed(5);
+    var p = "z=" + st.z.toFixed(2) + "&lat=" + yToLat(st.y).toFixed(5) + "&lon=" + normLon(xToLon(st.x)).toFixed(5);
     if (layers.length > 1) p += "&layer=" + encodeURIComponent(layers[st.layer].key);
     if (st.right >= 0) p += "&right=" + encodeURIComponent(layers[st.right].key) + "&split=" + st.split.toFixed(3);
     if (st.outline) p += "&areas=1";
@@ -358,7 +401,7 @@
     // A hash may name only the layers: then the start view is the map's.
     if (!isFinite(z) || !isFinite(lat) || !isFinite(lon)) return false;
     st.z = z;
-    st.x = lonToX(lon);
+    st.x = near(lonToX(normLon(lon)), box());
     st.y = latToY(lat);
     constrain();
     schedule();
@@ -549,12 +592,11 @@
   window.addEventListener("resize", schedule);
 
   // ---- Start: the hash's view, or the metadata's, shrunk to fit. ----
-  if (embed && window.innerHeight < 420) fold(true);
+  // On narrow screens and in embeds the key opens folded: one compact
+  // block of swatches, labels, the dot value and the short caution.
+  if (embed || (window.matchMedia && matchMedia("(max-width: 719px)").matches)) fold(true);
   showLegends();
-  if (!readHash()) {
-    var c = layers[0].center;
-    fit(c[2]);
-  }
+  if (!readHash()) fit();
   render();
 
   // A small window for scripts and tests: the view and the loading state.
@@ -565,7 +607,7 @@
         [s.dots, s.outline].forEach(function (t) { want += t.want; loaded += t.loaded; });
       });
       return {
-        lon: xToLon(st.x), lat: yToLat(st.y), z: st.z,
+        lon: normLon(xToLon(st.x)), lat: yToLat(st.y), z: st.z,
         tileZoom: stackA.dots.cur ? stackA.dots.cur.z : -1,
         tiles: want, loaded: loaded, ready: want === loaded && !frame,
         layer: layers[st.layer].key, right: st.right >= 0 ? layers[st.right].key : "",

@@ -36,7 +36,7 @@ func TestOldZoomStaysWhileTheNextLoads(t *testing.T) {
 	type levels struct {
 		Zooms   []string
 		Visible int
-		Scale   string
+		Width   float64 // CSS pixels, of the old zoom's first tile
 		Ready   bool
 	}
 	read := func() levels {
@@ -45,11 +45,12 @@ func TestOldZoomStaysWhileTheNextLoads(t *testing.T) {
 			var old = null, zs = [];
 			ls.forEach(function (l) { var img = l.querySelector("img"); zs.push(img ? img.src.split("/ten/")[1].split("/")[0] : "-"); if (zs[zs.length-1] === "11") old = l; });
 			var vis = old ? Array.prototype.filter.call(old.querySelectorAll("img"), function (i) { return i.complete && i.naturalWidth > 0; }).length : 0;
-			return { zooms: zs, visible: vis, scale: old ? old.style.transform : "", ready: stippleViewer.state().ready };
+			return { zooms: zs, visible: vis, width: old && old.querySelector("img") ? old.querySelector("img").getBoundingClientRect().width : 0, ready: stippleViewer.state().ready };
 		})()`)
 	}
 	during := read()
-	if during.Ready || during.Visible == 0 || !strings.Contains(during.Scale, "scale(1.41421") {
+	// Each tile edge is rounded to a whole device pixel: 256·√2 = 362.04.
+	if during.Ready || during.Visible == 0 || math.Abs(during.Width-256*math.Sqrt2) > 1 {
 		t.Errorf("while zoom 12 loads: %+v; want zoom 11's tiles shown at scale √2", during)
 	}
 	close(release)
@@ -69,20 +70,28 @@ func TestKeyFoldsAndOutlinesToggle(t *testing.T) {
 	srv := serve(t, f.Dir)
 	tb := newTab(t, 390, 844)
 	tb.open(srv.URL + "/index.html#z=12.00&lat=-34.22500&lon=-128.41000")
-	h0 := eval[float64](tb, `document.getElementById("st-map").clientHeight`)
+	type fold struct {
+		Expanded, Short, Caution string
+		Counts                   bool
+		Map                      float64
+	}
+	read := func() fold {
+		return eval[fold](tb, `({ expanded: document.getElementById("st-fold").getAttribute("aria-expanded"),
+		short: getComputedStyle(document.querySelector(".st-caution-short")).display,
+		caution: getComputedStyle(document.querySelector(".st-legend:not([hidden]) .st-caution")).display,
+		counts: document.querySelector(".st-legend:not([hidden]) .st-count").offsetHeight > 0,
+		map: document.getElementById("st-map").clientHeight })`)
+	}
+	// A phone opens with the key folded: the short caution, no counts.
+	folded := read()
+	if folded.Expanded != "false" || folded.Short == "none" || folded.Caution != "none" || folded.Counts {
+		t.Errorf("key at open on a phone: %+v; want folded", folded)
+	}
 	tb.do(chromedp.Click(chromedp.CSS("#st-fold")))
 	st := tb.waitTiles()
-	type fold struct {
-		Expanded, Short string
-		Body            bool
-		Map             float64
-	}
-	got := eval[fold](tb, `({ expanded: document.getElementById("st-fold").getAttribute("aria-expanded"),
-		short: getComputedStyle(document.querySelector(".st-caution-short")).display,
-		body: document.getElementById("st-key-body").offsetHeight > 0,
-		map: document.getElementById("st-map").clientHeight })`)
-	if got.Expanded != "false" || got.Short == "none" || got.Body || got.Map < h0+200 {
-		t.Errorf("folded key: %+v (map was %.0f px tall)", got, h0)
+	open := read()
+	if open.Expanded != "true" || open.Short != "none" || open.Caution == "none" || !open.Counts || open.Map > folded.Map-150 {
+		t.Errorf("key shown: %+v (map was %.0f px tall folded)", open, folded.Map)
 	}
 	// The areas' outlines are tiles of their own, over the dots.
 	tb.do(chromedp.Click(chromedp.CSS("#st-outline")))

@@ -212,3 +212,54 @@ func oneDot(t *testing.T) *viewerFixture {
 	}
 	return &dotMap
 }
+
+var blockMap viewerFixture
+
+// Where the block map lies: a square 0.1° wide, centred where the 180°
+// meridian crosses the equator, so that tile column 0 meets the last column
+// and the equator is a tile row boundary at every zoom. Open sea: nothing
+// is there.
+const blockHalf = 0.05
+
+// block renders a synthetic map of 100,000 people, one dot each, opaque,
+// filling the square above so densely that the ground shows through only
+// where a seam lets it; with @2x tiles. Its area is cut at 180° into two
+// rings, as RFC 7946 §3.1.9 asks, and its map.json bounds cross 180°
+// (RFC 7946 §5.2: west > east).
+func block(t *testing.T) *viewerFixture {
+	t.Helper()
+	blockMap.once.Do(func() {
+		dir := filepath.Join(tmpRoot, "block")
+		h := blockHalf
+		east := orb.Ring{{180 - h, -h}, {180, -h}, {180, h}, {180 - h, h}, {180 - h, -h}}
+		west := orb.Ring{{-180, -h}, {-180 + h, -h}, {-180 + h, h}, {-180, h}, {-180, -h}}
+		layer := &geo.Layer{Path: "synthetic", Name: "synthetic", Fields: []string{"n"}, Features: []geo.Feature{{
+			Index: 0, ID: "block", Geometry: orb.MultiPolygon{{east}, {west}}, Props: map[string]any{"n": int64(100000)},
+		}}}
+		text := "title = \"A dense square across 180° (synthetic)\"\ncredit = \"Synthetic test data.\"\npeople_per_dot = 1\nseed = 3\n" +
+			"[input]\nfile = \"synthetic.geojson\"\n[tiles]\nmin_zoom = 10\nmax_zoom = 14\nsize = 256\n" +
+			"[dots]\ndiameter = 4\nmin_diameter = 1\nopacity = 1\n" +
+			"[[category]]\nkey = \"n\"\nlabel = \"People\"\ncolor = \"#0072B2\"\nfields = [\"n\"]\n"
+		m, err := mapfile.Parse(filepath.Join(dir, "map.toml"), []byte(text))
+		if err != nil {
+			blockMap.err = err
+			return
+		}
+		m.Out = dir
+		sum, err := mapjob.Run(context.Background(), m, mapjob.Options{Layer: layer, HiDPI: true})
+		if err != nil {
+			blockMap.err = err
+			return
+		}
+		md := sum.Metadata
+		md.Bounds = [4]float64{180 - h, -h, -180 + h, h}
+		md.Center = [3]float64{180, 0, 12}
+		blockMap.Layers = []layerFixture{{Map: m, Meta: md}}
+		blockMap.Dir = dir
+		blockMap.err = tiles.WriteViewer(dir, md)
+	})
+	if blockMap.err != nil {
+		t.Fatalf("block fixture: %v", blockMap.err)
+	}
+	return &blockMap
+}
