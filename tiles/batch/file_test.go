@@ -29,7 +29,7 @@ func TestParseErrorsNameFileLineAndKey(t *testing.T) {
 		{"missing title", head + "[[extent]]\nslug = \"a\"\nbbox = [0, 0, 1, 1]\n", `B:2: key extent[1].title: missing: give the extent's map a title`},
 		{"no selection", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\n", `B:2: key extent[1]: missing: give bbox = [west, south, east, north], ids = [...] or field = "..." with values = [...]`},
 		{"two selections", head + ext + "ids = [\"x\"]\n", `B:6: key extent[1].ids: give one of bbox, ids or field (with values), not several`},
-		{"box order", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nbbox = [1, 0, 0, 1]\n", `B:5: key extent[1].bbox: west 1 must be less than east 0 (boxes across the antimeridian are not supported)`},
+		{"box without width", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nbbox = [1, 0, 1, 1]\n", `B:5: key extent[1].bbox: west and east are both 1; the box has no width`},
 		{"box size", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nbbox = [1, 0, 2]\n", `B:5: key extent[1].bbox: has 3 numbers; want [west, south, east, north] in degrees`},
 		{"empty ids", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nids = []\n", `B:5: key extent[1].ids: is empty; list the ids of the extent's areas`},
 		{"twice id", head + "[[extent]]\nslug = \"a\"\ntitle = \"A\"\nids = [\"x\", \"x\"]\n", `B:5: key extent[1].ids: id "x" is listed twice`},
