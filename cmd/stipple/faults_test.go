@@ -177,16 +177,19 @@ func TestTwoRendersIntoOneFolder(t *testing.T) {
 	bin := buildStipple(t)
 	dir := filepath.Join(t.TempDir(), "map")
 	first := exec.Command(bin, "demo", dir, "--max-zoom", "16")
-	stdout := &firstLine{seen: make(chan struct{})}
-	first.Stdout = stdout
 	if err := first.Start(); err != nil {
 		t.Fatal(err)
 	}
-	select {
-	case <-stdout.seen:
-	case <-time.After(time.Minute):
-		first.Process.Kill()
-		t.Fatal("the first render printed nothing in a minute")
+	// Wait until the first holds the folder's run lock.
+	lock := filepath.Join(dir, tiles.StateDir, "lock")
+	for start := time.Now(); ; time.Sleep(10 * time.Millisecond) {
+		if _, err := os.Stat(lock); err == nil {
+			break
+		}
+		if time.Since(start) > time.Minute {
+			first.Process.Kill()
+			t.Fatal("the first render took no lock in a minute")
+		}
 	}
 	second := exec.Command(bin, "demo", dir)
 	var errOut bytes.Buffer
