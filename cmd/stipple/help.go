@@ -295,15 +295,23 @@ var flagRules = map[string]flagRule{
 	"shards":    func(v float64) string { return unless(v >= 1, "want at least 1 part") },
 	"port":      func(v float64) string { return unless(v >= 0 && v <= 65535, "want a port from 0 to 65535") },
 	// render/page's limits (MinDPI, MaxDPI, maxDotMM).
-	"dpi":      func(v float64) string { return unless(v >= 36 && v <= 1200, "want 36 to 1200 dots per inch") },
-	"dot-mm":   func(v float64) string { return unless(v > 0 && v <= 10, "want a dot diameter above 0 and at most 10 mm") },
-	"diameter": func(v float64) string { return unless(v > 0 && v <= 64, "want a diameter above 0 and at most 64 pixels, as dots.diameter") },
-	"opacity":  func(v float64) string { return unless(v > 0 && v <= 1, "want an opacity above 0 and at most 1, as dots.opacity") },
-	"people":   func(v float64) string { return unless(v >= 1, "want at least 1 person") },
-	"areas":    func(v float64) string { return unless(v >= 1, "want at least 1 area") },
+	"dpi": func(v float64) string { return unless(v >= 36 && v <= 1200, "want 36 to 1200 dots per inch") },
+	"dot-mm": func(v float64) string {
+		return unless(v > 0 && v <= 10, "want a dot diameter above 0 and at most 10 mm")
+	},
+	"diameter": func(v float64) string {
+		return unless(v > 0 && v <= 64, "want a diameter above 0 and at most 64 pixels, as dots.diameter")
+	},
+	"opacity": func(v float64) string {
+		return unless(v > 0 && v <= 1, "want an opacity above 0 and at most 1, as dots.opacity")
+	},
+	"people": func(v float64) string { return unless(v >= 1, "want at least 1 person") },
+	"areas":  func(v float64) string { return unless(v >= 1, "want at least 1 area") },
 }
 
-func zoomRule(v float64) string { return unless(v >= 0 && v <= 22, "want a zoom from 0 to 22, as tiles.min_zoom and max_zoom") }
+func zoomRule(v float64) string {
+	return unless(v >= 0 && v <= 22, "want a zoom from 0 to 22, as tiles.min_zoom and max_zoom")
+}
 
 func unless(ok bool, why string) string {
 	if ok {

@@ -47,8 +47,8 @@ var (
 			"stipple demo --max-zoom 12      # into ./stipple-demo, fewer zooms",
 		}})
 	versionDoc = register(cmdDoc{Name: "version", Order: 200, Usage: "version",
-		Short: "print the version (also: stipple --version)",
-		About: "Prints stipple's version, the one map.json records.",
+		Short:    "print the version (also: stipple --version)",
+		About:    "Prints stipple's version, the one map.json records.",
 		Examples: []string{"stipple version"}})
 	helpDoc = register(cmdDoc{Name: "help", Order: 210, Usage: "help [COMMAND]",
 		Short: "list the commands, or show one command's flags and examples",
