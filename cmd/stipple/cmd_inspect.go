@@ -209,14 +209,20 @@ func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) {
 	var dots float64
 	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
 	var bounds []orb.Bound
+	// The dots are the render's own allocation (mapjob.Load's in.Dots, by
+	// the map's rounding rule and seed), so the numbers agree with render.
 	for k, c := range m.Categories {
 		var people float64
+		var n int
 		for i := range in.Counts {
 			people += in.Counts[i][k]
+			n += in.Dots[i][k]
 		}
-		dots += people / m.PeoplePerDot
-		fmt.Fprintf(w, "  %-24s %14s people  %12.0f dots\n", c.Label, render.FormatCount(people), people/m.PeoplePerDot)
+		dots += float64(n)
+		fmt.Fprintf(w, "  %-24s %14s people  %12d dots (expected %.1f)\n", c.Label, render.FormatCount(people), n, people/m.PeoplePerDot)
 	}
+	fmt.Fprintf(w, "  dots: exactly the dots render allocates with this map file (rounding = %q, seed %d); render draws them all\n", m.Rounding, m.Seed)
+	fmt.Fprintln(w, "  except those in areas it cannot draw (counted there as not drawn)")
 	for i, f := range in.Layer.Features {
 		has := slices.ContainsFunc(in.Counts[i], func(v float64) bool { return v > 0 })
 		if has && len(f.Geometry) > 0 {
