@@ -27,7 +27,7 @@ func cmdBatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := flag.NewFlagSet("batch", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	workers := fs.Int("workers", 0, "parallel workers, at most 4 per core (default: one per core)")
-	memory := fs.String("memory", "", "memory budget for the dots and print pages, e.g. 2GiB (default 2GiB)")
+	memory := fs.String("memory", "", "memory budget for the dots and print pages, a `size` such as 512MiB (default 2GiB)")
 	force := fs.Bool("force", false, "redo every extent, even those complete from an earlier run")
 	out := fs.String("out", "", "batch folder (default: the batch file's out)")
 	pos, err := parse(fs, args)

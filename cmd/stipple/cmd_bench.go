@@ -41,7 +41,7 @@ func cmdBench(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	people := fs.Int64("people", 30_000_000, "people in the invented country")
 	areas := fs.Int("areas", 3072, "areas in the invented country (a grid of about 4:3)")
 	perDot := fs.Float64("per-dot", 1, "people per dot")
-	minZoom := fs.Int("min-zoom", 0, "lowest zoom, 0 to 22")
+	minZoom := fs.Int("min-zoom", 0, "lowest zoom, 0 to 22 (default 0)")
 	maxZoom := fs.Int("max-zoom", 12, "deepest zoom, 0 to 22")
 	workers := fs.Int("workers", 0, "parallel workers, at most 4 per core (default: one per core)")
 	memory := fs.String("memory", "", "dot store memory budget, e.g. 2GiB (default 2GiB)")

@@ -265,23 +265,23 @@ func tilesTouched(bounds []orb.Bound, z int) int {
 	return total + len(seen)
 }
 
-var initDoc = register(cmdDoc{Name: "init", Order: 40, Usage: "init FILE [-o MAP.toml] [--layer NAME]",
+var initDoc = register(cmdDoc{Name: "init", Order: 40, Usage: "init FILE [--out MAP.toml] [--table COUNTS.csv] [--layer NAME]",
 	Short: "write a starter map file for a polygon file",
 	About: "Reads a polygon file and writes a map file for it: the input path relative to the map file, a guess " +
 		"at the id field, and the fields that hold whole counts of people as commented-out categories in a " +
 		"colour-blind-safe palette (Okabe & Ito 2008). Fields that are not counts (decimals, or names of areas, " +
-		"lengths, codes and ids) are listed in a separate commented block. Without -o it prints the file.",
+		"lengths, codes and ids) are listed in a separate commented block. Without --out it prints the file.",
 	Examples: []string{
-		"stipple init ../data/tracts.shp -o mymap/map.toml   # then: stipple render mymap/map.toml",
-		"stipple init regions.gpkg --layer districts",
+		"stipple init ../data/tracts.shp --out mymap/map.toml   # then: stipple render mymap/map.toml",
+		"stipple init tracts.shp --table counts.csv           # counts in a CSV beside the shapes",
 	}})
 
 func cmdInit(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("init", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	var out string
-	fs.StringVar(&out, "out", "", "write the map file here; its folder is made if missing (default: print it)")
-	fs.StringVar(&out, "o", "", "the same as --out")
+	fs.StringVar(&out, "out", "", "write the map `file` here; its folder is made if missing (default: print it)")
+	fs.StringVar(&out, "o", "", "") // -o, as before: an alias without help
 	layerName := fs.String("layer", "", "GeoPackage layer (default: the only polygon layer)")
 	tablePath := fs.String("table", "", "a CSV `file` of counts to join onto the areas: its whole-number columns become the categories (default: none, the counts are in the polygon file)")
 	pos, err := parse(fs, args)

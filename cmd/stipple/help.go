@@ -71,7 +71,7 @@ func generalHelp() string {
 	for _, d := range ds {
 		fmt.Fprintf(&b, "  %-*s  %s\n", w, d.Name, d.Short)
 	}
-	b.WriteString("\nRun \"stipple help COMMAND\" (or \"stipple COMMAND -h\") for a command's flags and examples.\n")
+	b.WriteString("\nRun \"stipple help COMMAND\" (or \"stipple COMMAND --help\") for a command's flags and examples.\n")
 	b.WriteString("Flags are written --name VALUE or --name=VALUE, before or after the arguments.\n")
 	b.WriteString("Exit codes: 0 done, 1 the map or its data could not be made, 2 wrong command line,\n130 interrupted (Ctrl-C), 143 stopped (SIGTERM).\n")
 	return b.String()
@@ -119,10 +119,13 @@ func shortUsage(d *cmdDoc) string {
 func flagHelp(fs *flag.FlagSet) string {
 	var b strings.Builder
 	fs.VisitAll(func(f *flag.Flag) {
+		if f.Usage == "" {
+			return // an alias kept for old command lines (init's -o)
+		}
 		name, usage := flag.UnquoteUsage(f)
 		line := "  --" + f.Name
 		if name != "" {
-			line += " " + strings.ToUpper(name)
+			line += " " + valueName(name)
 		}
 		if !strings.Contains(usage, "(default") && !isZeroDefault(f) {
 			def := f.DefValue
@@ -134,6 +137,20 @@ func flagHelp(fs *flag.FlagSet) string {
 		fmt.Fprintf(&b, "%s\n%s\n", line, wrap(usage, 76, "      "))
 	})
 	return b.String()
+}
+
+// valueName is the placeholder after a flag in help: the usage's
+// back-quoted word, else one from the type.
+func valueName(name string) string {
+	switch name {
+	case "int", "uint":
+		return "N"
+	case "float":
+		return "NUMBER"
+	case "string":
+		return "TEXT"
+	}
+	return strings.ToUpper(name)
 }
 
 func isStringFlag(f *flag.Flag) bool {
@@ -249,26 +266,33 @@ func nearestFlag(fs *flag.FlagSet, name string) string {
 	return ""
 }
 
-// editDistance is the Levenshtein distance between a and b (insertions,
-// deletions, substitutions; Levenshtein 1966), over bytes.
+// editDistance is the optimal-string-alignment distance between a and b,
+// over bytes: the fewest insertions, deletions, substitutions (Levenshtein
+// 1966) and swaps of two neighbouring letters (Damerau 1964) that turn a
+// into b, no substring edited twice. A swap is the commonest typo
+// ("--tabel"), so it counts as one edit.
 func editDistance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
+	d := make([][]int, len(a)+1)
+	for i := range d {
+		d[i] = make([]int, len(b)+1)
+		d[i][0] = i
+	}
+	for j := range d[0] {
+		d[0][j] = j
 	}
 	for i := 1; i <= len(a); i++ {
-		cur[0] = i
 		for j := 1; j <= len(b); j++ {
 			cost := 1
 			if a[i-1] == b[j-1] {
 				cost = 0
 			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+			d[i][j] = min(d[i-1][j]+1, d[i][j-1]+1, d[i-1][j-1]+cost)
+			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] {
+				d[i][j] = min(d[i][j], d[i-2][j-2]+1)
+			}
 		}
-		prev, cur = cur, prev
 	}
-	return prev[len(b)]
+	return d[len(a)][len(b)]
 }
 
 // maxWorkersPerCore caps --workers: more goroutines than a few per core

@@ -41,7 +41,7 @@ var (
 	demoDoc = register(cmdDoc{Name: "demo", Order: 20, Usage: "demo [DIR] [flags]",
 		Short: "render the built-in invented city into DIR (default stipple-demo)",
 		About: "Writes the invented city Quillmere (its areas, groups and counts are all made up) and its map file " +
-			"into DIR/source, then renders it into DIR, as render would. The flags replace the demo map file's values.",
+			"into DIR/source, then renders it into DIR, as render would. The flags replace the demo's own settings.",
 		Examples: []string{
 			"stipple demo /tmp/demo          # then open /tmp/demo/index.html",
 			"stipple demo --max-zoom 12      # into ./stipple-demo, fewer zooms",
@@ -52,7 +52,7 @@ var (
 		Examples: []string{"stipple version"}})
 	helpDoc = register(cmdDoc{Name: "help", Order: 210, Usage: "help [COMMAND]",
 		Short: "list the commands, or show one command's flags and examples",
-		About: "Without a command, lists the commands. With one, prints the same help as \"stipple COMMAND -h\": " +
+		About: "Without a command, lists the commands. With one, prints the same help as \"stipple COMMAND --help\": " +
 			"the synopsis, what it does, its flags with their defaults, and examples.",
 		Examples: []string{"stipple help", "stipple help render"}})
 )
@@ -214,7 +214,7 @@ func (o *overrides) registerFrom(fs *flag.FlagSet, demo *mapfile.Map) {
 	if demo != nil {
 		from = func(_ string, v any) string { return fmt.Sprintf("(default %v, the demo's)", v) }
 	} else {
-		fs.StringVar(&o.out, "out", "", "output folder or bucket URL "+from("out", nil))
+		fs.StringVar(&o.out, "out", "", "output `folder` or bucket URL "+from("out", nil))
 	}
 	var d mapfile.Map
 	if demo != nil {
@@ -226,7 +226,7 @@ func (o *overrides) registerFrom(fs *flag.FlagSet, demo *mapfile.Map) {
 	fs.IntVar(&o.maxZoom, "max-zoom", 0, "deepest zoom, 0 to 22 "+from("tiles.max_zoom", d.Tiles.MaxZoom))
 	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 "+from("tiles.size", d.Tiles.Size))
 	fs.IntVar(&o.workers, "workers", 0, "parallel workers, at most 4 per core (default: one per core)")
-	fs.StringVar(&o.memory, "memory", "", "memory budget, e.g. 512MiB or 2GiB: dots beyond it are spilled to disk, sorted, and merged (default 2GiB)")
+	fs.StringVar(&o.memory, "memory", "", "memory budget, a `size` such as 512MiB or 2GiB: dots beyond it are spilled to disk, sorted, and merged (default 2GiB)")
 	fs.BoolVar(&o.force, "force", false, "write into a folder that holds files stipple did not write")
 	hd := "(default: the map file's tiles.hidpi)"
 	if demo != nil {
