@@ -67,7 +67,7 @@ func (o *printOptions) register(fs *flag.FlagSet) {
 	fs.StringVar(&o.out, "out", "", "output path without extension (default: OUT/print, OUT being the map's output folder)")
 	fs.StringVar(&o.formats, "format", "png,pdf", "files to write: png, pdf or both")
 	fs.StringVar(&o.pdfDots, "pdf-dots", "auto", fmt.Sprintf("dots in the PDF: raster, vector, or auto (vector up to %d dots)", page.VectorLimit))
-	fs.Int64Var(&o.seed, "seed", 0, "random seed, a whole number from 0 up; keep it to match the tiles (default: the map file's seed)")
+	fs.Int64Var(&o.seed, "seed", -1, "random seed, a whole number from 0 up; keep it to match the tiles (default: the map file's seed)")
 	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot, at least 0.01 (default: the map file's people_per_dot)")
 	fs.IntVar(&o.workers, "workers", 0, "parallel workers for placing dots, at most 4 per core (default: one per core)")
 	fs.StringVar(&o.memory, "memory", "", "memory budget when the dots must be placed again, e.g. 2GiB (default 2GiB)")

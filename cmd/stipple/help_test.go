@@ -188,6 +188,7 @@ func TestBadCommandLines(t *testing.T) {
 		{[]string{"version", "--short"}, "unknown flag --short"},
 		{[]string{"help", "rendr"}, `unknown command "rendr"; did you mean "render"?`},
 		{[]string{"rendr", m}, `unknown command "rendr"; did you mean "render"?`},
+		{[]string{}, "no command given"},
 	}
 	for _, c := range cases {
 		t.Run(strings.Join(c.args, " "), func(t *testing.T) {
@@ -205,7 +206,7 @@ func TestBadCommandLines(t *testing.T) {
 			if len(lines) > 3 {
 				t.Errorf("%d lines; want the message and the short usage only:\n%s", len(lines), stderr)
 			}
-			if cmd := c.args[0]; docs[cmd] != nil && cmd != "help" {
+			if cmd := first(c.args); docs[cmd] != nil && cmd != "help" {
 				if len(lines) < 2 || lines[1] != "usage: stipple "+docs[cmd].Usage {
 					t.Errorf("no short usage of %s:\n%s", cmd, stderr)
 				}

@@ -70,7 +70,7 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 0
 	case errors.As(err, &ue):
 		fmt.Fprintln(stderr, "stipple: "+oneLine(ue.msg))
-		if d, ok := docs[args[0]]; ok && args[0] != "help" {
+		if d, ok := docs[first(args)]; ok && first(args) != "help" {
 			fmt.Fprint(stderr, shortUsage(d))
 		} else {
 			fmt.Fprintln(stderr, `Run "stipple help" for the commands.`)
@@ -83,6 +83,14 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "stipple: "+oneLine(err.Error()))
 		return 1
 	}
+}
+
+// first is args[0], or "" for no arguments.
+func first(args []string) string {
+	if len(args) == 0 {
+		return ""
+	}
+	return args[0]
 }
 
 func oneLine(s string) string { return strings.ReplaceAll(s, "\n", " ") }
