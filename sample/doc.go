@@ -15,16 +15,17 @@
 // # Coordinate space
 //
 // Input polygons and output points are longitude/latitude degrees (WGS 84);
-// output longitudes are in [-180, 180]. Dots are drawn in the cylindrical
-// equal-area plane x = longitude (degrees), y = sin(latitude), where equal
-// areas of the plane are equal areas of the sphere. Polygon edges are taken
-// as straight lines in that plane, and containment is decided there, and
-// only there, by one exact rule: even-odd ray casting with half-open edges
-// (see contain.go). Every test the sampler makes (for the feature, for
-// masks, in every method) is that rule, so a dot is inside exactly when
-// that rule says so for the plane image of the polygon. At the scale of
-// census areas a straight edge in this plane differs from any other reading
-// of "straight" by far less than a dot.
+// output longitudes are in [-180, 180]. Polygon edges are straight lines in
+// longitude/latitude (RFC 7946 §3.1.1, as GIS readers take them). Dots are
+// drawn in the cylindrical equal-area plane x = longitude (degrees),
+// y = sin(latitude), where equal areas of the plane are equal areas of the
+// sphere; there an edge is a curve, which the proposals follow by
+// densification to within EdgeTolerance. Containment is decided by one
+// exact rule: even-odd ray casting with half-open edges (see contain.go) on
+// the lon/lat rings, which is ray casting in the plane against the edges'
+// curved images, since a horizontal ray of the plane is a parallel. Every
+// test the sampler makes (for the feature, for masks, in every method) is
+// that rule, so no dot falls outside the lon/lat polygon.
 //
 // A part whose ring jumps by more than 180° of longitude between vertices
 // is taken to cross the antimeridian: its rings are unwrapped (longitudes

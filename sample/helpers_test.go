@@ -36,11 +36,11 @@ func toPlane(p orb.Point) (float64, float64) {
 
 // refInside is the independent containment test: go-geom's ray-crossing
 // point-in-ring (xy.IsPointInRing; boundary counts as inside) applied to the
-// part's rings converted to the plane, inside when an odd number of rings
-// contain the point. shift tries x ± 360 too, for parts drawn across the
+// part's rings in lon/lat, where edges are straight (RFC 7946 §3.1.1),
+// inside when an odd number of rings contain the point. shift tries x ± 360 too, for parts drawn across the
 // antimeridian.
 func refInside(poly orb.Polygon, p orb.Point) bool {
-	x, y := toPlane(p)
+	x, y := p[0], p[1]
 	for _, s := range []float64{0, 360, -360} {
 		n := 0
 		for _, ring := range refRings(poly) {
@@ -55,7 +55,7 @@ func refInside(poly orb.Polygon, p orb.Point) bool {
 	return false
 }
 
-// refRings converts a polygon to flat plane rings, unwrapping a ring that
+// refRings converts a polygon to flat lon/lat rings, unwrapping a ring that
 // jumps across the antimeridian the plain way (consecutive longitudes kept
 // within 180° of each other) and moving holes next to the outer ring.
 func refRings(poly orb.Polygon) [][]float64 {
@@ -74,7 +74,7 @@ func refRings(poly orb.Polygon) [][]float64 {
 				}
 			}
 			prev = lon
-			flat = append(flat, lon, math.Sin(p[1]*degToRad))
+			flat = append(flat, lon, p[1])
 		}
 		if ri > 0 && len(out) > 0 {
 			d := math.Round((out[0][0] - flat[0]) / 360)

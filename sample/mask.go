@@ -8,8 +8,8 @@ import (
 
 // Mask is a prepared set of areas where nobody lives (water, parks): dots
 // are kept out of them. A point is masked when it is inside any mask polygon
-// by the even-odd rule in the equal-area plane, the same test and plane as
-// the sampler's. Polygons crossing the antimeridian are unwrapped like
+// by the even-odd rule with edges straight in lon/lat, the same test as the
+// sampler's. Polygons crossing the antimeridian are unwrapped like
 // features. A Mask is read-only after NewMask and safe for concurrent use.
 type Mask struct {
 	parts []maskPart
@@ -19,8 +19,8 @@ type Mask struct {
 }
 
 type maskPart struct {
-	minX, minY, maxX, maxY float64
-	ix                     *edgeIndex
+	minX, minY, maxX, maxY float64    // y in the plane (sin latitude)
+	ix                     *edgeIndex // lon/lat rings (x, latitude)
 }
 
 // maxMaskCells caps the mask's bucket grid.
@@ -33,12 +33,16 @@ func NewMask(polys []orb.MultiPolygon) *Mask {
 	m := &Mask{}
 	for _, mp := range polys {
 		for _, poly := range mp {
-			rings := planeRings(poly)
+			_, rings := ringsOf(poly)
 			if len(rings) == 0 {
 				continue
 			}
-			x0, y0, x1, y1 := bounds(rings)
-			if !((x1-x0)*(y1-y0) > 0) {
+			// Edges straight in lon/lat are monotone in x and latitude, so
+			// the box of the vertices is the box of the part; y is kept in
+			// the plane (sin latitude) for the bucket grid.
+			x0, lat0, x1, lat1 := bounds(rings)
+			y0, y1 := math.Sin(lat0*degToRad), math.Sin(lat1*degToRad)
+			if !((x1-x0)*(lat1-lat0) > 0) {
 				continue
 			}
 			mp := maskPart{x0, y0, x1, y1, newEdgeIndex(rings)}
@@ -118,11 +122,13 @@ func (m *Mask) Len() int {
 
 // Contains tells whether q (lon/lat degrees) is masked.
 func (m *Mask) Contains(q orb.Point) bool {
-	return m.containsPlane(wrapLon(q[0]), math.Sin(q[1]*degToRad))
+	lat := math.Max(-90, math.Min(90, q[1]))
+	return m.containsLonLat(wrapLon(q[0]), math.Sin(lat*degToRad), lat)
 }
 
-// containsPlane is Contains for a plane point with x in [-180, 180].
-func (m *Mask) containsPlane(x, y float64) bool {
+// containsLonLat is Contains for a point with x in [-180, 180], its
+// latitude and y = sin(latitude).
+func (m *Mask) containsLonLat(x, y, lat float64) bool {
 	if m == nil || len(m.parts) == 0 {
 		return false
 	}
@@ -136,7 +142,7 @@ func (m *Mask) containsPlane(x, y float64) bool {
 		// The part is listed once per shift that reaches this cell.
 		for _, s := range [3]float64{0, 360, -360} {
 			px := x + s
-			if px >= p.minX && px <= p.maxX && y >= p.minY && y <= p.maxY && p.ix.contains(px, y) {
+			if px >= p.minX && px <= p.maxX && y >= p.minY && y <= p.maxY && p.ix.contains(px, lat) {
 				return true
 			}
 		}

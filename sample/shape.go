@@ -75,8 +75,9 @@ type part struct {
 	weight                 float64 // proposal area
 	method                 method
 	check                  ringCheck
-	ix                     *edgeIndex
-	tri                    []float64 // 6 per triangle
+	ix                     *edgeIndex // plane rings, for the grid
+	ll                     *edgeIndex // lon/lat rings: containment
+	tri                    []float64  // 6 per triangle
 	tris                   *alias
 	grid                   *cellGrid
 }
@@ -112,7 +113,9 @@ func newShape(g orb.MultiPolygon, force method) *Shape {
 
 // newPart prepares one polygon; ok is false when it has no area.
 func newPart(poly orb.Polygon, force method) (part, bool) {
-	pt := part{rings: planeRings(poly)}
+	var llRings [][]float64
+	pt := part{}
+	pt.rings, llRings = ringsOf(poly)
 	if len(pt.rings) == 0 {
 		return pt, false
 	}
@@ -121,8 +124,12 @@ func newPart(poly orb.Polygon, force method) (part, bool) {
 	if !(box > 0) || math.IsInf(box, 0) {
 		return pt, false
 	}
-	pt.check = checkRings(pt.rings)
+	// Topology is that of the lon/lat rings: densified chords of two edges
+	// may meet within EdgeTolerance where the edges themselves do not (two
+	// diagonals crossing at both their midpoints meet at a shared vertex).
+	pt.check = checkRings(llRings)
 	pt.ix = newEdgeIndex(pt.rings)
+	pt.ll = newEdgeIndex(llRings)
 	m := force
 	if pt.check == ringsSimple {
 		pt.area = math.Abs(geo.RingArea(asRing(pt.rings[0])))
@@ -177,8 +184,8 @@ func newPart(poly orb.Polygon, force method) (part, bool) {
 	return pt, true
 }
 
-// propose draws one point from the part's proposal and says whether it is
-// inside the part.
+// propose draws one point from the part's proposal (in the plane) and says
+// whether it may be inside the part; inside makes the final test.
 func (pt *part) propose(p *rand.PCG) (x, y float64, ok bool) {
 	switch pt.method {
 	case byTriangles:
@@ -195,7 +202,17 @@ func (pt *part) propose(p *rand.PCG) (x, y float64, ok bool) {
 	}
 	x = pt.minX + unit(p)*(pt.maxX-pt.minX)
 	y = pt.minY + unit(p)*(pt.maxY-pt.minY)
-	return x, y, pt.ix.contains(x, y)
+	return x, y, true
+}
+
+// inside is the containment test of plane point (x, y) against the part's
+// rings with edges straight in lon/lat: a horizontal ray in the plane is a
+// parallel, so even-odd ray casting on (x, latitude) against the lon/lat
+// edges is ray casting in the plane against the curved images of the edges.
+// It returns the point's latitude too.
+func (pt *part) inside(x, y float64) (lat float64, ok bool) {
+	lat = math.Asin(math.Max(-1, math.Min(1, y))) / degToRad
+	return lat, pt.ll.contains(x, lat)
 }
 
 // Area is the shape's area on the unit sphere (steradians). For parts whose
@@ -211,7 +228,9 @@ func (s *Shape) Point(p *rand.PCG, maxTry int) (orb.Point, bool) {
 	for try := 0; try < maxTry && len(s.parts) > 0; try++ {
 		pt := &s.parts[s.pick.draw(p)]
 		if x, y, ok := pt.propose(p); ok {
-			return lonLat(x, y), true
+			if lat, in := pt.inside(x, y); in {
+				return orb.Point{wrapLon(x), lat}, true
+			}
 		}
 	}
 	return orb.Point{}, false
@@ -225,19 +244,24 @@ func (s *Shape) pointUnmasked(p *rand.PCG, maxTry int, m *Mask) (orb.Point, bool
 		if !ok {
 			continue
 		}
-		x = wrapLon(x)
-		if m.containsPlane(x, y) {
+		lat, in := pt.inside(x, y)
+		if !in {
 			continue
 		}
-		return lonLat(x, y), true
+		x = wrapLon(x)
+		if m.containsLonLat(x, y, lat) {
+			continue
+		}
+		return orb.Point{x, lat}, true
 	}
 	return orb.Point{}, false
 }
 
 // Contains tells whether point q (lon/lat degrees) is inside the shape by
-// the test the sampler uses: even-odd in the equal-area plane.
+// the test the sampler uses: even-odd against the edges straight in lon/lat.
 func (s *Shape) Contains(q orb.Point) bool {
-	y := math.Sin(q[1] * degToRad)
+	lat := math.Max(-90, math.Min(90, q[1]))
+	y := math.Sin(lat * degToRad)
 	for k := range s.parts {
 		pt := &s.parts[k]
 		if y < pt.minY || y > pt.maxY {
@@ -247,21 +271,16 @@ func (s *Shape) Contains(q orb.Point) bool {
 		// 360° that lands in the part's box.
 		x := q[0] + 360*math.Ceil((pt.minX-q[0])/360)
 		for n := 0; x <= pt.maxX && n < 4096; n++ {
-			if x >= pt.minX && pt.ix.contains(x, y) {
+			if x >= pt.minX && pt.ll.contains(x, lat) {
 				return true
 			}
 			x += 360
 		}
-		if q[0] >= pt.minX && q[0] <= pt.maxX && pt.ix.contains(q[0], y) {
+		if q[0] >= pt.minX && q[0] <= pt.maxX && pt.ll.contains(q[0], lat) {
 			return true
 		}
 	}
 	return false
-}
-
-// lonLat maps a plane point back to lon/lat degrees.
-func lonLat(x, y float64) orb.Point {
-	return orb.Point{wrapLon(x), math.Asin(math.Max(-1, math.Min(1, y))) / degToRad}
 }
 
 // setOutline keeps the segments of g's rings, for placing the dots of a

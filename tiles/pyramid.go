@@ -145,6 +145,9 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 		return Stats{}, err
 	}
 	w.man, w.resuming = man, resuming
+	if err := man.dropOutside(ctx, opt); err != nil {
+		return Stats{}, err
+	}
 	passes := []*pass{{size: opt.TileSize, look: opt.Look}}
 	if opt.HiDPI {
 		look := opt.Look

@@ -204,3 +204,29 @@ func Resumable(dir, fp string) bool {
 	var old manifest
 	return json.Unmarshal(data, &old) == nil && old.Fingerprint == fp && fp != ""
 }
+
+// dropOutside removes the tiles of zooms an earlier run with the same
+// fingerprint wrote but this run's range (or @2x setting) leaves out, and
+// forgets them, so a folder holds only the zooms its metadata names.
+func (m *manifest) dropOutside(ctx context.Context, opt Options) error {
+	var kept []string
+	changed := false
+	for _, zk := range m.Zooms {
+		z, suffix, _ := strings.Cut(zk, "@")
+		n, err := strconv.Atoi(z)
+		if err != nil || (n >= opt.MinZoom && n <= opt.MaxZoom && (suffix == "" || opt.HiDPI)) {
+			kept = append(kept, zk)
+			continue
+		}
+		if err := removeZoom(ctx, opt.Out, zk, opt.Keep); err != nil {
+			return err
+		}
+		delete(m.Done, zk)
+		changed = true
+	}
+	if !changed {
+		return nil
+	}
+	m.Zooms = kept
+	return m.save(opt.Dir)
+}

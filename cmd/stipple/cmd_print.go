@@ -279,7 +279,7 @@ func selectIDs(layer *geo.Layer, list string) ([]int, error) {
 	return out, nil
 }
 
-// parseBBox reads west,south,east,north degrees.
+// parseBBox reads west,south,east,north degrees; west > east crosses 180°.
 func parseBBox(s string) (orb.Bound, error) {
 	parts := strings.Split(s, ",")
 	if len(parts) != 4 {
@@ -301,8 +301,10 @@ func parseBBox(s string) (orb.Bound, error) {
 		return orb.Bound{}, fmt.Errorf("%q: latitudes must be within -90 to 90", s)
 	case so >= n:
 		return orb.Bound{}, fmt.Errorf("%q: south %v must be below north %v", s, so, n)
-	case w >= e:
-		return orb.Bound{}, fmt.Errorf("%q: west %v must be less than east %v (boxes across the antimeridian are not supported)", s, w, e)
+	case w == e:
+		return orb.Bound{}, fmt.Errorf("%q: west and east are both %v; the box has no width", s, w)
 	}
+	// West above east is a box across the antimeridian (RFC 7946 §5.2):
+	// 170,-50,-170,-30 is 20° wide.
 	return orb.Bound{Min: orb.Point{w, so}, Max: orb.Point{e, n}}, nil
 }

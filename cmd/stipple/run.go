@@ -396,6 +396,10 @@ func printSummary(w io.Writer, s *mapjob.Summary) {
 	if s.RowsWithoutArea > 0 {
 		fmt.Fprintf(w, "  not drawn: %s people in table rows that match no area (listed above)\n", render.FormatCount(s.RowsWithoutArea))
 	}
+	if s.BeyondPeople > 0 {
+		fmt.Fprintf(w, "  not on the tiles: %s people (%d dots) beyond Web Mercator's latitude limit (85.05° north or south); print pages draw them\n",
+			render.FormatCount(s.BeyondPeople), sum(s.Beyond))
+	}
 	fmt.Fprintf(w, "  %d tiles, %.1f MB, zooms %d–%d, in %s\n", s.Tiles.Tiles, float64(s.Tiles.Bytes)/1e6, md.MinZoom, md.MaxZoom, s.Elapsed.Round(time.Millisecond))
 	fmt.Fprintf(w, "  open %s in a browser, or: stipple serve %s\n", filepath.Join(s.OutputDir, "index.html"), s.OutputDir)
 	fmt.Fprintf(w, "\nTo embed in a story, publish the folder and paste (with src set to embed.html's published address):\n%s\n", tiles.EmbedSnippet(md, "embed.html"))
@@ -497,4 +501,12 @@ func writeDemoSource(dir string) (*mapfile.Map, error) {
 		return nil, fmt.Errorf("demo: %w", err)
 	}
 	return mapfile.Read(path)
+}
+
+func sum(v []int) int {
+	n := 0
+	for _, x := range v {
+		n += x
+	}
+	return n
 }

@@ -19,7 +19,8 @@
 //     implementation, because the map squeezes them (h → 0): the poles of
 //     a cone whose pole is an arc, and the rim of an azimuthal map (within
 //     1° of the centre's antipode). There Inverse is exact to about 1 µm
-//     in map metres instead.
+//     in map metres instead. The pole lines of Equal Earth are a third:
+//     within 5° of a pole its Inverse gives latitude to 2e-6 degrees.
 //   - Longitudes are taken relative to the central meridian and wrapped
 //     into [-180, 180] before projecting, as PROJ does.
 //
@@ -27,7 +28,8 @@
 // (for example the US survey foot); CRS.ToLonLat and CRS.FromLonLat work
 // in the file's units and the Projection inside it stays in metres.
 //
-// The formulas follow J. P. Snyder, Map Projections — A Working Manual
+// EqualEarth, for world pages, follows Šavrič, Patterson and Jenny (2019).
+// The other formulas follow J. P. Snyder, Map Projections — A Working Manual
 // (USGS Professional Paper 1395, 1987) and IOGP Guidance Note 7-2; the
 // tests check them against the worked examples of both and against PROJ's
 // cs2cs.

@@ -18,6 +18,12 @@ import (
 // map keeps dot density honest: one dot per N people covers the same
 // paper area everywhere.
 //
+// World and hemisphere-wide extents (near both poles, or WorldSpan or more
+// of longitude without reaching a pole) get the Equal Earth projection
+// (Šavrič, Patterson & Jenny 2018) on WGS 84, centred on the extent's
+// central meridian: an azimuthal map of the whole world squeezes the far
+// side into a thin, sheared ring.
+//
 // Lambert Azimuthal Equal-Area on WGS 84, centred on the extent, is chosen
 // instead when a cone fits the extent badly:
 //   - the extent reaches within 10° of a pole (north > 80 or south < −80):
@@ -61,10 +67,10 @@ func ForExtent(b orb.Bound) Projection {
 
 	nearN, nearS := north > 80, south < -80
 	switch {
-	case nearN && nearS:
-		// Both poles (a world map): centred on the middle, so that neither
-		// pole becomes the singular antipode.
-		return mustLAEA(mid, lon0)
+	case nearN && nearS, span >= WorldSpan && !nearN && !nearS:
+		// A world map, or one a hemisphere wide: Equal Earth, centred on
+		// the extent's own central meridian.
+		return mustEqualEarth(lon0)
 	case nearN && (north >= 90 || span >= 180):
 		return mustLAEA(90, lon0)
 	case nearS && (south <= -90 || span >= 180):
@@ -85,6 +91,19 @@ func ForExtent(b orb.Bound) Projection {
 		// Not reached for the parameters above (all finite, in range,
 		// same hemisphere); fall back rather than fail a print page.
 		return mustLAEA(mid, lon0)
+	}
+	return p
+}
+
+// WorldSpan is the span of longitude (degrees) from which an extent is
+// printed as a world map (common practice: about a hemisphere and more).
+const WorldSpan = 150
+
+// mustEqualEarth builds Equal Earth on WGS 84 centred on lon0.
+func mustEqualEarth(lon0 float64) Projection {
+	p, err := NewEqualEarth(WGS84, lon0, 0, 0)
+	if err != nil {
+		return PlateCarree{} // not reached; a map beats a panic
 	}
 	return p
 }

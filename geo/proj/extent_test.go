@@ -14,7 +14,7 @@ func TestForExtent(t *testing.T) {
 	for _, c := range []struct {
 		name                   string
 		b                      orb.Bound
-		kind                   string // "aea" or "laea"
+		kind                   string // "aea", "laea" or "eqearth"
 		lat0, lon0, lat1, lat2 float64
 	}{
 		{"city", bound(-77.2, 38.8, -76.9, 39.0), "aea", 38.9, -77.05, 38.8 + 0.2/6, 39 - 0.2/6},
@@ -33,7 +33,9 @@ func TestForExtent(t *testing.T) {
 		{"straddles the equator widely", bound(-80, -20, -40, 10), "laea", -5, -60, 0, 0},
 		{"small, on the equator", bound(30, -0.3, 30.5, 0.3), "laea", 0, 30.25, 0, 0},
 		{"a point on the equator", bound(12, 0, 12, 0), "laea", 0, 12, 0, 0},
-		{"world", bound(-180, -90, 180, 90), "laea", 0, 0, 0, 0},
+		{"world", bound(-180, -90, 180, 90), "eqearth", 0, 0, 0, 0},
+		{"a hemisphere wide, no pole", bound(-170, -40, 0, 60), "eqearth", 0, -85, 0, 0},
+		{"the US with the Aleutians, across 180°", bound(172.4, 18.9, -66.9, 71.4), "laea", 45.15, -127.25, 0, 0},
 		{"NaN", bound(nan, 0, 10, 10), "laea", 0, 0, 0, 0},
 	} {
 		p := ForExtent(c.b)
@@ -49,6 +51,10 @@ func TestForExtent(t *testing.T) {
 		case *LAEA:
 			if c.kind != "laea" || q.ell != WGS84 || !approx(q.lat0, c.lat0) || !approx(q.lon0, c.lon0) {
 				t.Errorf("%s: got %v, want %s lat0 %v lon0 %v", c.name, p, c.kind, c.lat0, c.lon0)
+			}
+		case *EqualEarth:
+			if c.kind != "eqearth" || !approx(q.lon0, c.lon0) {
+				t.Errorf("%s: got %v, want %s lon0 %v", c.name, p, c.kind, c.lon0)
 			}
 		default:
 			t.Errorf("%s: got %T %v", c.name, p, p)

@@ -40,6 +40,12 @@ type Result struct {
 // Repairs counts geometry repairs.
 type Repairs struct {
 	ClosedRings, DroppedPoints, DroppedRings, SelfIntersecting, Antimeridian, EmptyFeatures int
+	// PolarRings counts rings that went round a pole and were closed along
+	// the pole line (see the note for the area moved).
+	PolarRings int
+	// FullBands counts rings with edges from −180° to 180° along a
+	// parallel, drawn as the full band round the globe.
+	FullBands int
 }
 
 // Formats lists the file extensions File reads.

@@ -11,17 +11,20 @@ import (
 )
 
 // ProjectionNames are the names Projection accepts.
-var ProjectionNames = []string{"auto", "albers", "laea", "mercator", "platecarree"}
+var ProjectionNames = []string{"auto", "albers", "laea", "equalearth", "mercator", "platecarree"}
 
 // Projection returns the projection called name for a page showing extent
 // (longitude/latitude degrees):
 //
-//   - "auto" or "": proj.ForExtent's choice (Albers with standard
-//     parallels by the one-sixth rule, or Lambert Azimuthal for extents
-//     near a pole, wider than 90° or straddling the equator);
+//   - "auto" or "": proj.ForExtent's choice (Equal Earth for world and
+//     hemisphere-wide extents, Albers with standard parallels by the
+//     one-sixth rule, or Lambert Azimuthal for extents near a pole, wider
+//     than 90° or straddling the equator);
 //   - "albers": Albers Equal-Area Conic on WGS 84, standard parallels by
 //     the one-sixth rule (common practice), origin at the extent's centre;
 //   - "laea": Lambert Azimuthal Equal-Area on WGS 84 centred on the extent;
+//   - "equalearth": Equal Earth (Šavrič, Patterson & Jenny 2018) on WGS 84,
+//     centred on the extent's central meridian, for world maps;
 //   - "mercator": Web Mercator (EPSG:3857) centred on the extent, the
 //     tiles' projection; not equal-area: dots thin out on paper towards
 //     the poles;
@@ -58,6 +61,8 @@ func Projection(name string, extent orb.Bound) (proj.Projection, error) {
 		return p, nil
 	case "laea":
 		return proj.NewLAEA(proj.WGS84, lat0, lon0, 0, 0)
+	case "equalearth", "eqearth":
+		return proj.NewEqualEarth(proj.WGS84, lon0, 0, 0)
 	case "mercator", "webmercator":
 		return proj.WebMercator{Lon0: lon0}, nil
 	case "platecarree", "plate-carree", "eqc":
@@ -102,6 +107,8 @@ func Describe(p proj.Projection) string {
 		return fmt.Sprintf("Albers equal-area conic, standard parallels %s and %s, %s", lat("lat_1"), lat("lat_2"), datum)
 	case "laea":
 		return fmt.Sprintf("Lambert azimuthal equal-area, centred at %s %s, %s", lat("lat_0"), lon("lon_0"), datum)
+	case "eqearth":
+		return fmt.Sprintf("Equal Earth, central meridian %s, %s", lon("lon_0"), datum)
 	case "webmerc", "merc":
 		return "Web Mercator (EPSG:3857), not equal-area: dots thin out towards the poles"
 	case "eqc":

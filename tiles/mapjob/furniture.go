@@ -34,7 +34,8 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 	if s.Tiles.Tiles2x > 0 {
 		md.Tiles2x = tiles.Tiles2xTemplate
 	}
-	md.Center = [3]float64{(b.Min[0] + b.Max[0]) / 2, (b.Min[1] + b.Max[1]) / 2, float64(FitZoom(b, 900, 600, m.Tiles.MinZoom, m.Tiles.MaxZoom))}
+	c := ExtentOfBound(b).Centre()
+	md.Center = [3]float64{c[0], c[1], float64(FitZoom(b, 900, 600, m.Tiles.MinZoom, m.Tiles.MaxZoom))}
 	for k, c := range m.Categories {
 		md.Categories = append(md.Categories, tiles.Category{
 			Key: c.Key, Label: c.Label, Color: strings.ToUpper(c.Color), People: s.People[k],
@@ -56,12 +57,17 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 	return md
 }
 
-// FitZoom is the deepest zoom at which bound b fits a w × h pixel view.
+// FitZoom is the deepest zoom at which bound b fits a w × h pixel view;
+// b's west may exceed its east (across the antimeridian).
 func FitZoom(b orb.Bound, w, h, minZ, maxZ int) int {
 	for z := maxZ; z > minZ; z-- {
 		nw := dotstoreWorld(b.Min[0], b.Max[1], z)
 		se := dotstoreWorld(b.Max[0], b.Min[1], z)
-		if se[0]-nw[0] <= float64(w) && se[1]-nw[1] <= float64(h) {
+		dx := se[0] - nw[0]
+		if b.Min[0] > b.Max[0] {
+			dx += 256 * math.Exp2(float64(z)) // across the antimeridian
+		}
+		if dx <= float64(w) && se[1]-nw[1] <= float64(h) {
 			return z
 		}
 	}

@@ -173,3 +173,54 @@ func TestAbsurdScaleStopsBeforeWork(t *testing.T) {
 		t.Fatalf("1e15 people at 5 a dot: %v; want max_dots named with the estimate", err)
 	}
 }
+
+// TestFullBandAndStrayHole: a box written from −180° to 180° along two
+// parallels is the whole band round the globe between them (not a
+// zero-width strip whose dots lie on its outline), and a hole lying wholly
+// outside its outer ring is dropped with a note, the area keeping its
+// people (testdata/edges/band-and-stray-hole.geojson, invented).
+func TestFullBandAndStrayHole(t *testing.T) {
+	dir := t.TempDir()
+	m := &mapfile.Map{Path: filepath.Join(dir, "m.toml"), PeoplePerDot: 10, Seed: 1, Out: filepath.Join(dir, "out"), Rounding: "random",
+		Input:      mapfile.Input{File: "../../testdata/edges/band-and-stray-hole.geojson", ID: "id"},
+		Categories: []mapfile.Category{{Key: "p", Label: "P", Color: "#0072B2", Fields: []string{"pop"}}}}
+	m.Input.File, _ = filepath.Abs(m.Input.File)
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	notes := strings.Join(in.Read.Notes, "\n")
+	for _, want := range []string{`feature 0 (id "band"): field "geometry": part 0 outer ring 0 runs along a parallel from −180° to 180°, all the way round: drawn as the full band of longitudes it encloses`,
+		`feature 1 (id "holey"): field "geometry": part 0 hole 1 lies wholly outside its outer ring; dropped (the area's people stay in the outer ring)`} {
+		if !strings.Contains(notes, want) {
+			t.Errorf("notes lack %q:\n%s", want, notes)
+		}
+	}
+	pl, err := Place(context.Background(), in, m, PlaceOptions{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tally := TallyAreas(in, m, pl.Outcomes, nil); tally.NotDrawn != 0 || len(tally.Notes) != 0 || tally.Dots[0] != 11000 {
+		t.Errorf("tally %+v; want all 11,000 dots drawn plainly", tally)
+	}
+	// The band's 10,000 dots: uniform in longitude (eight 45° sectors,
+	// chi-square df 7, NIST/SEMATECH table 1.3.6.7.4: 24.322 at α = 0.001),
+	// all within ±10° of latitude; the other area's dots within its square.
+	var sector [8]float64
+	for lon, lat := range cellCentres(pl) {
+		switch {
+		case lat >= -10 && lat <= 10:
+			sector[min(7, int((lon+180)/45))]++
+		case lon >= 0 && lon <= 10 && lat >= 40 && lat <= 50:
+		default:
+			t.Errorf("dot at %v, %v outside both areas", lon, lat)
+		}
+	}
+	x := 0.0
+	for _, n := range sector {
+		x += (n - 1250) * (n - 1250) / 1250
+	}
+	if x > 24.322 {
+		t.Errorf("band dots by 45° sector %v: chi-square %.1f > 24.322", sector, x)
+	}
+}

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // lockFile is the run lock in a state folder: "pid host start" of the run
@@ -60,6 +61,9 @@ func Claim(out string, force bool) (release func(), err error) {
 				os.Remove(path)
 				return nil, fmt.Errorf("output: %w", werr)
 			}
+			// With the lock held, half-written files a killed run left in
+			// the sink's temporary folder are nobody's.
+			os.RemoveAll(filepath.Join(out, filepath.FromSlash(sink.TempDir)))
 			return func() {
 				if b, err := os.ReadFile(path); err == nil && string(b) == me {
 					os.Remove(path)

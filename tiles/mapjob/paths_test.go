@@ -370,3 +370,30 @@ func TestPrintFrameCountsWhatItShows(t *testing.T) {
 		t.Errorf("frame holds %d dots; page %d, legend dots %v, people %v (want %v)", inside, p.Page.Len(), p.Dots, people, float64(inside)*m.PeoplePerDot)
 	}
 }
+
+// TestDroppedZoomsLeaveTheFolder: raising the lowest zoom on a rerun
+// removes the tiles and tile-index scripts of the zooms no longer in the
+// map; lowering it again draws them anew, the same bytes as at first.
+func TestDroppedZoomsLeaveTheFolder(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	if _, err := Run(ctx, m, Options{Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	first := published(t, m.Out)
+	m.Tiles.MinZoom = 13
+	if _, err := Run(ctx, m, Options{Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	for p := range published(t, m.Out) {
+		p = filepath.ToSlash(p)
+		if strings.HasPrefix(p, "11/") || strings.HasPrefix(p, "12/") || strings.HasSuffix(p, "-11.js") || strings.HasSuffix(p, "-12.js") {
+			t.Errorf("%s is left from a zoom the map no longer has", p)
+		}
+	}
+	m.Tiles.MinZoom = 11
+	if _, err := Run(ctx, m, Options{Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	sameFiles(t, first, published(t, m.Out))
+}

@@ -99,8 +99,8 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	switch {
 	case opt.Frame != nil:
 		extent = *opt.Frame
-		f := *opt.Frame
-		keep = func(lon, lat float64) bool { return f.Contains(orb.Point{lon, lat}) }
+		box := ExtentOfBound(*opt.Frame)
+		keep = box.Contains
 	case areas != nil:
 		extent = TallyAreas(in, m, pl.Outcomes, areas).Bounds
 		keep = InsideAny(in.Layer, areas)
@@ -110,7 +110,7 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	if opt.Extent != nil {
 		extent = *opt.Extent
 	}
-	if !(extent.Min[0] <= extent.Max[0]) {
+	if !(extent.Min[1] <= extent.Max[1]) {
 		return nil, fmt.Errorf("%s: nothing to print: no area of the extent has both geometry and people", m.Path)
 	}
 	pr, err := page.Projection(opt.Projection, extent)
@@ -132,29 +132,17 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	dots := printDots(ctx, in, m, pl, keep)
 	res := &PrintPage{People: make([]float64, nc), Dots: make([]int, nc)}
 	if opt.Frame != nil {
-		// The legend counts what the frame shows: its dots, and the people
-		// they stand for.
-		lay, err := page.NewLayout(spec)
-		if err != nil {
-			return nil, err
-		}
-		fb := lay.FrameBound()
-		if fb.Min[0] < extent.Min[0] || fb.Max[0] > extent.Max[0] || fb.Min[1] < extent.Min[1] || fb.Max[1] > extent.Max[1] {
-			// The frame shows more than the box (its shape differs):
-			// count and draw exactly the box.
-			fb = extent
-		}
-		for _, cat := range dotsIn(dots, fb) {
+		// The legend counts what the page shows: the dots inside the box,
+		// and the people they stand for.
+		dots(func(_, _ float64, cat int) bool {
 			res.Dots[cat]++
-		}
+			return true
+		})
 		for k := range res.People {
 			res.People[k] = float64(res.Dots[k]) * m.PeoplePerDot
 		}
-		spec.Footnotes = append(spec.Footnotes, fmt.Sprintf("People: the %s dots inside the frame × %s people per dot; areas cut by the frame count by their dots inside it.",
-			render.FormatCount(float64(sum(res.Dots))), render.FormatCount(m.PeoplePerDot)))
-		f := fb
-		keep = func(lon, lat float64) bool { return f.Contains(orb.Point{lon, lat}) }
-		dots = printDots(ctx, in, m, pl, keep)
+		spec.Footnotes = append(spec.Footnotes, fmt.Sprintf("People: the %s dots inside the box %s × %s people per dot; areas cut by the box count by their dots inside it.",
+			render.FormatCount(float64(sum(res.Dots))), ExtentOfBound(extent), render.FormatCount(m.PeoplePerDot)))
 	} else {
 		var t Tally
 		if areas == nil {
@@ -226,18 +214,6 @@ func sum(v []int) int {
 		n += x
 	}
 	return n
-}
-
-// dotsIn lists the categories of the dots of src inside b.
-func dotsIn(src page.DotSource, b orb.Bound) []int {
-	var cats []int
-	src(func(lon, lat float64, cat int) bool {
-		if b.Contains(orb.Point{lon, lat}) {
-			cats = append(cats, cat)
-		}
-		return true
-	})
-	return cats
 }
 
 // printDots yields the store's dots at their cells' centres in

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"github.com/paulmach/orb"
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
@@ -30,7 +31,11 @@ type Tally struct {
 	// area whose dots were all placed, but not plainly.
 	Problems []string
 	Notes    []string
-	// Bounds is the bound of the areas that have people and geometry.
+	// Bounds is the extent of the areas that have people and geometry, as
+	// RFC 7946 §5.2 gives a box: Min is (west, south), Max (east, north),
+	// and west > east when the areas cross the antimeridian (the shortest
+	// span of longitude that holds them all, geo.ExtentOf). Without such
+	// areas Min > Max in both coordinates.
 	Bounds orb.Bound
 }
 
@@ -41,7 +46,7 @@ type Tally struct {
 func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 	nc := len(m.Categories)
 	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}}
-	t.Bounds = orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	var parts []orb.Bound
 	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Streams: Streams(m)}
 	add := func(i int) {
 		f := &in.Layer.Features[i]
@@ -51,8 +56,12 @@ func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 			t.People[k] += in.Counts[i][k]
 			has = has || in.Counts[i][k] > 0
 		}
-		if has && len(f.Geometry) > 0 {
-			t.Bounds = t.Bounds.Union(f.Geometry.Bound())
+		if has {
+			for _, p := range f.Geometry {
+				if len(p) > 0 && len(p[0]) > 0 {
+					parts = append(parts, p.Bound())
+				}
+			}
 		}
 		o, ok := outcomes[i]
 		if !ok && len(f.Geometry) == 0 {
@@ -90,5 +99,22 @@ func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 			add(i)
 		}
 	}
+	t.Bounds = BoundOf(parts)
 	return t
+}
+
+// BoundOf is the extent of the bounds (geo.ExtentOf) as an orb.Bound whose
+// west may exceed its east (across the antimeridian); Min > Max in both
+// coordinates when there is none.
+func BoundOf(parts []orb.Bound) orb.Bound {
+	e, ok := geo.ExtentOf(parts...)
+	if !ok {
+		return orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
+	}
+	return orb.Bound{Min: orb.Point{e.West, e.South}, Max: orb.Point{e.East, e.North}}
+}
+
+// ExtentOfBound is the geo.Extent of a bound that BoundOf made.
+func ExtentOfBound(b orb.Bound) geo.Extent {
+	return geo.Extent{West: b.Min[0], South: b.Min[1], East: b.Max[0], North: b.Max[1]}
 }
