@@ -80,6 +80,14 @@ func altOne(m *Metadata) string {
 	if m.NotDrawn.BeyondTileLimit > 0 {
 		fmt.Fprintf(&b, " %s people are beyond the tile projection's latitude limit (85.05° north or south) and are not on the tiles.", render.FormatCount(m.NotDrawn.BeyondTileLimit))
 	}
+	if ms := m.Measures; ms != nil && ms.H != nil && ms.M != nil {
+		fmt.Fprintf(&b, " Theil's H, how unevenly the groups are spread over the areas (0 when every area has the whole map's mix, 1 when each area holds one group), is %.3f.", *ms.H)
+		fmt.Fprintf(&b, " The mutual information index M, H times the diversity of the whole map, is %.3f.", *ms.M)
+		if iv := ms.Intervals; iv != nil && iv.H[0] != nil && iv.H[1] != nil {
+			fmt.Fprintf(&b, " The counts are survey estimates: over %d seeded draws of the counts within their margins of error, %.0f%% of the values of H lie between %.3f and %.3f.",
+				iv.Draws, 100*iv.Level, *iv.H[0], *iv.H[1])
+		}
+	}
 	if where := boundsText(m.Bounds); where != "" {
 		fmt.Fprintf(&b, " The map covers %s.", where)
 	}

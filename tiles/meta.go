@@ -55,12 +55,58 @@ type Metadata struct {
 	Categories   []Category `json:"categories"`
 	// NotDrawn totals the people that have no dot, and says why.
 	NotDrawn NotDrawn `json:"not_drawn"`
+	// Methods is how the map was made, for a note under a story
+	// (methods.txt says the same in prose); nil in maps made before it.
+	Methods *Methods `json:"methods,omitempty"`
 	// Legend names the legend images written beside this file.
 	Legend []string `json:"legend"`
+	// Measures, when set, are the map's mixing measures.
+	Measures *Measures `json:"measures,omitempty"`
 	// Stats of the pyramid.
 	TileCount int64         `json:"tile_count"`
 	TileBytes int64         `json:"tile_bytes"`
 	PerZoom   map[int]int64 `json:"tiles_per_zoom"`
+}
+
+// Measures are a map's mixing measures (Theil & Finizza 1971; Reardon &
+// Firebaugh 2002; see package geo/measure): nil values are undefined (one
+// group only, or no people).
+type Measures struct {
+	// Entropy is the diversity of the whole map's groups, Σ π ln(1/π).
+	Entropy *float64 `json:"entropy"`
+	// H is Theil's information index: 0 when every area has the map's
+	// mix of groups, 1 when every area holds one group only.
+	H *float64 `json:"theil_h"`
+	// M is the mutual information index, H × Entropy.
+	M *float64 `json:"mutual_information_m"`
+	// MostDiverse are the areas of highest entropy, most diverse first.
+	MostDiverse []AreaDiversity `json:"most_diverse_areas"`
+	// AreaTable names the per-area CSV beside map.json.
+	AreaTable string `json:"area_table"`
+	// Intervals, when the counts are survey estimates with margins of
+	// error, are the measures' intervals from seeded draws of the counts.
+	Intervals *MeasureIntervals `json:"intervals,omitempty"`
+}
+
+// MeasureIntervals are percentile intervals of the measures over Draws
+// seeded draws of the counts within their margins of error (package
+// geo/measure, Simulate); nil bounds are undefined.
+type MeasureIntervals struct {
+	Level float64     `json:"level"`
+	Draws int         `json:"draws"`
+	Seed  uint64      `json:"seed"`
+	H     [2]*float64 `json:"theil_h"`
+	M     [2]*float64 `json:"mutual_information_m"`
+}
+
+// AreaDiversity is one area's composition in brief.
+type AreaDiversity struct {
+	ID           string  `json:"id"`
+	People       float64 `json:"people"`
+	Entropy      float64 `json:"entropy"`
+	Normalized   float64 `json:"entropy_normalised"`
+	Largest      string  `json:"largest_group"`
+	LargestShare float64 `json:"largest_share"`
 }
 
 // Category is one group as the map shows it.

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"cmp"
 	"context"
 	"flag"
@@ -11,7 +10,6 @@ import (
 	"os"
 	"slices"
 	"strconv"
-	"strings"
 
 	"github.com/stipple-maps/stipple/geo/measure"
 	"github.com/stipple-maps/stipple/render"
@@ -51,6 +49,7 @@ var measureDoc = register(cmdDoc{Name: "measure", Order: 100, Usage: "measure MA
 func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("measure", flag.ContinueOnError)
 	fs.SetOutput(stderr)
+	draws := fs.Int("draws", 1000, "with fields_moe: seeded draws of the counts for the measures' intervals")
 	csvPath := fs.String("csv", "", "also write the per-area table (id, people, shares, entropy, largest group) to this CSV file (default: none)")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -79,11 +78,29 @@ func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return err
 	}
 	if *csvPath != "" {
-		if err := writeAreaCSV(*csvPath, m, in, areas); err != nil {
+		table, err := mapjob.AreaTable(in, m, nil)
+		if err != nil {
+			return err
+		}
+		if err := os.WriteFile(*csvPath, table, 0o644); err != nil {
 			return err
 		}
 	}
 	printMeasures(stdout, m, in, areas, x)
+	if in.Margins != nil {
+		iv, err := measure.Simulate(ctx, in.Counts, in.Margins, measure.Options{Draws: *draws, Seed: m.Seed})
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\nThe counts are survey estimates (fields_moe: published 90%% margins, standard error = margin / %.3f).\n", measure.Z90)
+		fmt.Fprintf(stdout, "Intervals holding %.0f%% of the values over %d seeded draws of the counts (seed %d):\n", 100*iv.Level, iv.Draws, iv.Seed)
+		fmt.Fprintf(stdout, "  H from %s to %s\n  M from %s to %s\n", measureValue(iv.H.Lo), measureValue(iv.H.Hi), measureValue(iv.M.Lo), measureValue(iv.M.Hi))
+		for a := range iv.D {
+			for b := a + 1; b < len(iv.D); b++ {
+				fmt.Fprintf(stdout, "  D %s / %s from %s to %s\n", m.Categories[a].Label, m.Categories[b].Label, measureValue(iv.D[a][b].Lo), measureValue(iv.D[a][b].Hi))
+			}
+		}
+	}
 	if *csvPath != "" {
 		fmt.Fprintf(stdout, "\nper-area table: %s\n", *csvPath)
 	}
@@ -153,54 +170,4 @@ func printMeasures(w io.Writer, m *mapfile.Map, in *mapjob.Input, areas []measur
 
 	fmt.Fprintln(w, "\nEvenness and exposure are two of the five dimensions of segregation Massey & Denton (1988) name;")
 	fmt.Fprintln(w, "concentration, centralization and clustering are not measured.")
-}
-
-// writeAreaCSV writes one row per area: id, people, each group's share,
-// entropy, normalised entropy, the largest group's key and its share.
-func writeAreaCSV(path string, m *mapfile.Map, in *mapjob.Input, areas []measure.Area) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := bufio.NewWriter(f)
-	head := []string{csvText("id"), csvText("people")}
-	for _, c := range m.Categories {
-		head = append(head, csvText("share_"+c.Key))
-	}
-	head = append(head, csvText("entropy"), csvText("entropy_normalised"), csvText("largest_group"), csvText("largest_share"))
-	fmt.Fprintf(w, "%s\r\n", strings.Join(head, ","))
-	row := make([]string, 0, len(head))
-	for i, a := range areas {
-		row = append(row[:0], csvText(in.Layer.Features[i].ID), csvNumber(a.People))
-		for _, s := range a.Shares {
-			row = append(row, csvNumber(s))
-		}
-		row = append(row, csvNumber(a.Entropy), csvNumber(a.Normalized))
-		if a.Largest >= 0 {
-			row = append(row, csvText(m.Categories[a.Largest].Key), csvNumber(a.LargestShare))
-		} else {
-			row = append(row, "", "") // no people, no largest group
-		}
-		fmt.Fprintf(w, "%s\r\n", strings.Join(row, ","))
-	}
-	if err := w.Flush(); err != nil {
-		f.Close()
-		return fmt.Errorf("%s: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		return fmt.Errorf("%s: %w", path, err)
-	}
-	return nil
-}
-
-func csvNumber(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
-
-// csvText quotes a text cell (RFC 4180) and, when it begins with =, +, -,
-// @, tab or carriage return, prefixes a single quote so a spreadsheet does
-// not read it as a formula (OWASP, "CSV Injection").
-func csvText(s string) string {
-	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		s = "'" + s
-	}
-	return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
 }

@@ -39,7 +39,7 @@ var (
 			"stipple render map.toml --max-zoom 10 --out preview   # a quick, shallower look",
 		}})
 	demoDoc = register(cmdDoc{Name: "demo", Order: 20, Usage: "demo [DIR] [flags]",
-		Short: "render the built-in invented city into DIR (default stipple-demo)",
+		Short: "render the built-in invented city into DIR (default stipple-demo), and two counts of it in DIR/compare",
 		About: "Writes the invented city Quillmere (its areas, groups and counts are all made up) and its map file " +
 			"into DIR/source, then renders it into DIR, as render would. The flags replace the demo's own settings.",
 		Examples: []string{
@@ -120,6 +120,10 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdBatch(ctx, args[1:], stdout, stderr)
 	case "measure":
 		return cmdMeasure(ctx, args[1:], stdout, stderr)
+	case "publish":
+		return cmdPublish(ctx, args[1:], stdout, stderr)
+	case "still":
+		return cmdStill(ctx, args[1:], stdout, stderr)
 	case "version", "--version", "-version":
 		return cmdVersion(ctx, args[1:], stdout, stderr)
 	case "help", "-h", "--help", "-help":
@@ -331,6 +335,9 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 }
 
 func renderMap(ctx context.Context, m *mapfile.Map, opt mapjob.Options, stdout io.Writer) error {
+	if len(m.Layers) > 0 {
+		return renderLayers(ctx, m, opt, stdout)
+	}
 	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
@@ -447,7 +454,21 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err != nil {
 		return err
 	}
-	return renderMap(ctx, m, opt, stdout)
+	if err := renderMap(ctx, m, opt, stdout); err != nil {
+		return err
+	}
+	// The two invented counts, compared on the newer areas, in DIR/compare.
+	cm, err := writeDemoCompare(dir)
+	if err != nil {
+		return err
+	}
+	oc := o
+	oc.out = filepath.Join(dir, "compare")
+	if err := oc.apply(cm); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\ndemo: an invented older count on older boundaries, carried onto the newer areas, compared with the newer count in %s\n", oc.out)
+	return renderMap(ctx, cm, opt, stdout)
 }
 
 // demoMapFile is the built-in demo's map file.

@@ -247,7 +247,9 @@ func TestCategoryOrderDoesNotChangePixels(t *testing.T) {
 	}
 	n := 0
 	for k, v := range trees[0] {
-		if !strings.HasSuffix(k, ".png") || strings.HasPrefix(k, "legend") || strings.Contains(k, ".stipple") {
+		// The legends and the still (which holds the legend) list the
+		// categories in the map file's order.
+		if !strings.HasSuffix(k, ".png") || strings.HasPrefix(k, "legend") || k == "still.png" || strings.Contains(k, ".stipple") {
 			continue
 		}
 		n++

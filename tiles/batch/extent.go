@@ -88,6 +88,9 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *ma
 	// tiles the folder holds.
 	sum.Bounds = j.picked.Bound
 	md := mapjob.Metadata(&me, sum)
+	if err := mapjob.PutMeasures(ctx, sink.NewDir(dir), in, m, j.picked.Features, md); err != nil {
+		return err
+	}
 	if err := mapjob.PutFurniture(ctx, sink.NewDir(dir), md, colors); err != nil {
 		return err
 	}
@@ -131,6 +134,9 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *ma
 		r.Dots[c] = tot.Dots[k]
 	}
 	r.NotDrawn = tot.NotDrawn
+	if md.Measures != nil {
+		r.H, r.M = md.Measures.H, md.Measures.M
+	}
 	r.Tiles, r.Tiles2x, r.Bytes = st.Tiles, st.Tiles2x, st.Bytes
 	r.Print = prints
 	r.Seconds = (time.Since(start) + j.share).Seconds()

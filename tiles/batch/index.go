@@ -33,6 +33,8 @@ type Summary struct {
 	Seed       uint64           `json:"seed"`
 	Categories []tiles.Category `json:"categories"` // key, label and colour; no totals
 	Extents    []Result         `json:"extents"`
+	// Mixing splits the extents' segregation into between and within.
+	Mixing *Mixing `json:"mixing,omitempty"`
 }
 
 // WriteIndex writes the batch's index page (index.html, index.css) and its
@@ -40,7 +42,7 @@ type Summary struct {
 // extent in batch-file order, failed ones with their reason.
 func WriteIndex(dir string, f *File, rep *Report) error {
 	m := f.Map
-	sum := Summary{Format: "stipple-batch/1", Title: m.Title, Map: f.MapPath, Seed: m.Seed, Extents: rep.Results}
+	sum := Summary{Format: "stipple-batch/1", Title: m.Title, Map: f.MapPath, Seed: m.Seed, Extents: rep.Results, Mixing: rep.Mixing}
 	for _, c := range m.Categories {
 		sum.Categories = append(sum.Categories, tiles.Category{Key: c.Key, Label: c.Label, Color: strings.ToUpper(c.Color)})
 	}
@@ -81,7 +83,10 @@ func WriteIndex(dir string, f *File, rep *Report) error {
 	if err != nil {
 		return fmt.Errorf("batch: index template: %w", err)
 	}
-	data := indexData{Title: m.Title, Note: render.DotNote(m.PeoplePerDot), Seed: m.Seed, Caution: render.Caution, Credit: m.Credit, Count: len(rep.Results)}
+	data := indexData{Title: m.Title, Note: render.DotNote(m.PeoplePerDot), Seed: m.Seed, Caution: render.Caution, Credit: render.CreditLine(m.Credit), Count: len(rep.Results)}
+	if rep.Mixing != nil {
+		data.Mixing = rep.Mixing.Identity()
+	}
 	for k, c := range m.Categories {
 		data.Categories = append(data.Categories, indexCategory{Class: "sb-c" + strconv.Itoa(k), Label: c.Label})
 	}
@@ -92,6 +97,9 @@ func WriteIndex(dir string, f *File, rep *Report) error {
 			People: render.FormatCount(sumPeople(r.People)), Areas: r.Features, Note: render.DotNote(r.PerDot),
 			Zooms: fmt.Sprintf("%d–%d", r.MinZoom, r.MaxZoom), Tiles: r.Tiles + r.Tiles2x,
 			MB: fmt.Sprintf("%.1f", float64(r.Bytes)/1e6), Seconds: fmt.Sprintf("%.2f", r.Seconds)}
+		if r.H != nil && r.M != nil {
+			cd.H, cd.M = fmt.Sprintf("%.3f", *r.H), fmt.Sprintf("%.3f", *r.M)
+		}
 		if cd.Failed {
 			data.Failed++
 		}
@@ -113,6 +121,7 @@ func WriteIndex(dir string, f *File, rep *Report) error {
 
 type indexData struct {
 	Title, Note, Caution, Credit string
+	Mixing                       string
 	Seed                         uint64
 	Count, Failed                int
 	Categories                   []indexCategory
@@ -126,6 +135,7 @@ type indexCard struct {
 	Failed                           bool
 	Viewer, Thumb, Legend, Meta, Def string
 	People, Note, Zooms, MB, Seconds string
+	H, M                             string
 	Areas                            int
 	Tiles                            int64
 	Rows                             []indexRow
@@ -144,25 +154,25 @@ type indexLink struct{ Name, Href string }
 // and a quote in front of a negative number would turn it into text.
 func summaryCSV(f *File, results []Result) ([]byte, error) {
 	var b bytes.Buffer
-	var head []csvCell
+	var head []tiles.CSVCell
 	for _, h := range []string{"slug", "title", "status", "areas", "people_per_dot", "people_total"} {
-		head = append(head, textCell(h))
+		head = append(head, tiles.CSVText(h))
 	}
 	for _, c := range f.Map.Categories {
-		head = append(head, textCell("people_"+c.Key))
+		head = append(head, tiles.CSVText("people_"+c.Key))
 	}
-	head = append(head, textCell("dots_total"))
+	head = append(head, tiles.CSVText("dots_total"))
 	for _, c := range f.Map.Categories {
-		head = append(head, textCell("dots_"+c.Key))
+		head = append(head, tiles.CSVText("dots_"+c.Key))
 	}
-	for _, h := range []string{"not_drawn_people", "tiles", "tiles_2x", "bytes", "seconds", "error"} {
-		head = append(head, textCell(h))
+	for _, h := range []string{"not_drawn_people", "theil_h", "mutual_information_m", "tiles", "tiles_2x", "bytes", "seconds", "error"} {
+		head = append(head, tiles.CSVText(h))
 	}
-	writeCSVRow(&b, head)
-	num := func(v float64) csvCell { return csvCell{v: strconv.FormatFloat(v, 'f', -1, 64)} }
-	integer := func(v int64) csvCell { return csvCell{v: strconv.FormatInt(v, 10)} }
+	tiles.WriteCSVRow(&b, head)
+	num := func(v float64) tiles.CSVCell { return tiles.CSVCell{V: strconv.FormatFloat(v, 'f', -1, 64)} }
+	integer := func(v int64) tiles.CSVCell { return tiles.CSVCell{V: strconv.FormatInt(v, 10)} }
 	for _, r := range results {
-		row := []csvCell{textCell(r.Slug), textCell(r.Title), textCell(string(r.Status)), integer(int64(r.Features)), num(r.PerDot), num(sumPeople(r.People))}
+		row := []tiles.CSVCell{tiles.CSVText(r.Slug), tiles.CSVText(r.Title), tiles.CSVText(string(r.Status)), integer(int64(r.Features)), num(r.PerDot), num(sumPeople(r.People))}
 		dots := 0
 		for _, c := range f.Map.Categories {
 			row = append(row, num(r.People[c.Key]))
@@ -172,43 +182,15 @@ func summaryCSV(f *File, results []Result) ([]byte, error) {
 		for _, c := range f.Map.Categories {
 			row = append(row, integer(int64(r.Dots[c.Key])))
 		}
-		row = append(row, num(r.NotDrawn), integer(r.Tiles), integer(r.Tiles2x),
-			integer(r.Bytes), csvCell{v: strconv.FormatFloat(r.Seconds, 'f', 3, 64)}, textCell(r.Error))
-		writeCSVRow(&b, row)
+		opt := func(v *float64) tiles.CSVCell {
+			if v == nil {
+				return tiles.CSVText("")
+			}
+			return num(*v)
+		}
+		row = append(row, num(r.NotDrawn), opt(r.H), opt(r.M), integer(r.Tiles), integer(r.Tiles2x),
+			integer(r.Bytes), tiles.CSVCell{V: strconv.FormatFloat(r.Seconds, 'f', 3, 64)}, tiles.CSVText(r.Error))
+		tiles.WriteCSVRow(&b, row)
 	}
 	return b.Bytes(), nil
-}
-
-// csvCell is one cell of a CSV row; text cells may hold user text.
-type csvCell struct {
-	v    string
-	text bool
-}
-
-func textCell(v string) csvCell { return csvCell{v: v, text: true} }
-
-// writeCSVRow writes one RFC 4180 record ending in \n. A cell is quoted
-// when it holds a comma, a double quote, CR or LF, or starts with a space
-// or tab (as encoding/csv does). A text cell that a spreadsheet would read
-// as a formula, one starting with =, +, -, @, tab or CR, gets a single
-// quote in front and is always quoted (OWASP, "CSV Injection": prepend a
-// single quote, wrap the cell in double quotes, double any double quote).
-func writeCSVRow(b *bytes.Buffer, cells []csvCell) {
-	for i, c := range cells {
-		if i > 0 {
-			b.WriteByte(',')
-		}
-		v, quote := c.v, false
-		if c.text && v != "" && strings.IndexByte("=+-@\t\r", v[0]) >= 0 {
-			v, quote = "'"+v, true
-		}
-		if quote || strings.ContainsAny(v, ",\"\r\n") || strings.HasPrefix(v, " ") || strings.HasPrefix(v, "\t") {
-			b.WriteByte('"')
-			b.WriteString(strings.ReplaceAll(v, `"`, `""`))
-			b.WriteByte('"')
-			continue
-		}
-		b.WriteString(v)
-	}
-	b.WriteByte('\n')
 }

@@ -86,6 +86,10 @@ type Result struct {
 	MaxZoom int      `json:"max_zoom"`
 	// Bounds is [west, south, east, north] of the extent.
 	Bounds [4]float64 `json:"bounds"`
+	// H and M are the extent's Theil index and mutual information index
+	// (tiles.Measures); nil when undefined.
+	H *float64 `json:"theil_h"`
+	M *float64 `json:"mutual_information_m"`
 }
 
 // Report is what a batch run did.
@@ -98,6 +102,9 @@ type Report struct {
 	TileTime       time.Duration
 	TilesDrawn     int // tiles rendered into the cache by this run
 	Elapsed        time.Duration
+	// Mixing splits the extents' segregation into the parts between and
+	// within them (nil when an extent failed).
+	Mixing *Mixing
 }
 
 // Failed returns the results that failed.
@@ -198,6 +205,11 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	for _, j := range jobs {
 		rep.Results = append(rep.Results, j.res)
 	}
+	for _, in := range inputs {
+		// Counts do not depend on the dot value: any input serves.
+		rep.Mixing = mixingOf(f, in, rep.Results)
+		break
+	}
 	if err := WriteIndex(f.Out, f, rep); err != nil {
 		return nil, err
 	}
@@ -212,6 +224,9 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 		case Failed:
 			failed++
 		}
+	}
+	if rep.Mixing != nil {
+		log.printf("batch: mixing: %s", rep.Mixing.Identity())
 	}
 	log.printf("batch: %d drawn, %d kept, %d failed in %s; index: %s", done, skipped, failed,
 		rep.Elapsed.Round(time.Millisecond), filepath.Join(f.Out, IndexPage))

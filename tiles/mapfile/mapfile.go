@@ -54,6 +54,9 @@ type Map struct {
 	Dots Dots `toml:"dots"`
 	// Categories are the groups of people, one colour each (1 to 63).
 	Categories []Category `toml:"category"`
+	// Layers, when set, are two or more maps rendered into one folder with
+	// a layer switch and a compare divider (see Layer).
+	Layers []Layer `toml:"layer"`
 }
 
 // Input names the polygons and where their counts come from.
@@ -159,6 +162,11 @@ type Category struct {
 	Color string `toml:"color"`
 	// Fields are the count fields (or table columns) summed for it.
 	Fields []string `toml:"fields"`
+	// FieldsMOE, for survey tables, names the fields holding each count
+	// field's published 90% margin of error, one for each of Fields in the
+	// same order; the measures then get intervals and the map says its
+	// counts are estimates.
+	FieldsMOE []string `toml:"fields_moe"`
 }
 
 // Defaults fill keys a map file may leave out.
@@ -326,24 +334,36 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 	if !(m.Dots.Opacity > 0 && m.Dots.Opacity <= 1) {
 		return errAt("wants an opacity above 0 and at most 1", "dots", "opacity")
 	}
+	if err := m.checkCategories(lines, ""); err != nil {
+		return err
+	}
+	if m.Layers != nil {
+		return m.checkLayers(lines)
+	}
+	return nil
+}
+
+// checkCategories checks the categories; prefix is "" for the map's own
+// and "layer[N]." for a layer's.
+func (m *Map) checkCategories(lines *Lines, prefix string) error {
 	if len(m.Categories) == 0 {
-		return &Error{Path: m.Path, Key: "category", Msg: "missing: add at least one [[category]] with key, label, color and fields"}
+		return &Error{Path: m.Path, Key: prefix + "category", Msg: "missing: add at least one [[category]] with key, label, color and fields"}
 	}
 	if len(m.Categories) > 63 {
-		return &Error{Path: m.Path, Key: "category", Msg: fmt.Sprintf("%d categories; at most 63", len(m.Categories))}
+		return &Error{Path: m.Path, Key: prefix + "category", Msg: fmt.Sprintf("%d categories; at most 63", len(m.Categories))}
 	}
 	seen := map[string]int{}
 	fieldOf := map[string]int{} // field → category that sums it
 	for i, c := range m.Categories {
 		at := func(field, msg string) error {
-			name := fmt.Sprintf("category[%d].%s", i+1, field)
+			name := fmt.Sprintf("%scategory[%d].%s", prefix, i+1, field)
 			return &Error{Path: m.Path, Line: lines.Near(name), Key: name, Msg: msg}
 		}
 		for _, f := range []struct {
 			name  string
 			unset bool
 		}{{"key", c.Key == ""}, {"label", c.Label == ""}, {"color", c.Color == ""}, {"fields", c.Fields == nil}} {
-			if f.unset && !lines.Has(fmt.Sprintf("category[%d].%s", i+1, f.name)) {
+			if f.unset && !lines.Has(fmt.Sprintf("%scategory[%d].%s", prefix, i+1, f.name)) {
 				return at(f.name, "missing")
 			}
 		}
@@ -371,6 +391,9 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 				return at("fields", fmt.Sprintf("%q is also a field of category %d; its people would be drawn twice", f, j+1))
 			}
 			fieldOf[f] = i
+		}
+		if c.FieldsMOE != nil && len(c.FieldsMOE) != len(c.Fields) {
+			return at("fields_moe", fmt.Sprintf("lists %d fields; want one margin field for each of the %d fields, in the same order", len(c.FieldsMOE), len(c.Fields)))
 		}
 	}
 	return nil

@@ -134,8 +134,13 @@ func StateDir(out, work string) string {
 // (LookFingerprint): a rerun after an interruption keeps the finished tiles
 // and writes the rest, and the result is byte for byte that of an
 // uninterrupted run.
+//
+// A map with [[layer]] entries is rendered by RunLayers, not Run.
 func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	start := time.Now()
+	if len(m.Layers) > 0 {
+		return nil, fmt.Errorf("%s: the map has [[layer]] entries: each renders into its own subfolder (mapjob.RunLayers, as stipple render does)", m.Path)
+	}
 	logf := func(format string, a ...any) {
 		if opt.Log != nil {
 			fmt.Fprintf(opt.Log, format+"\n", a...)
@@ -228,6 +233,9 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	logf("wrote %d tiles (%.1f MB) in %s%s", st.Tiles+st.Tiles2x, float64(st.Bytes)/1e6, sum.TileTime.Round(time.Millisecond), kept)
 
 	sum.Metadata = Metadata(m, sum)
+	if err := PutMeasures(ctx, out, in, m, nil, sum.Metadata); err != nil {
+		return nil, err
+	}
 	if err := PutFurniture(ctx, out, sum.Metadata, m.RGBA()); err != nil {
 		return nil, err
 	}

@@ -28,7 +28,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 		Tiles: tiles.TilesTemplate, PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Note: render.DotNote(m.PeoplePerDot), Caution: render.Caution,
+		Note: render.DotNote(m.PeoplePerDot), Caution: cautionOf(s),
 		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
 	}
 	if s.Tiles.Tiles2x > 0 {
@@ -54,6 +54,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		md.NotDrawn.Features = []string{}
 	}
 	sort.Strings(md.NotDrawn.Features)
+	md.Methods = MethodsOf(m, s)
 	return md
 }
 
@@ -92,8 +93,10 @@ func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
 // PutFurniture writes a map's furniture into out, after its tiles: the
 // legend as legend.png (300 px wide), legend@2x.png (the same at twice the
 // pixels) and legend.svg (text kept as text, for print and CMS work), then
-// map.json, then the viewer (index.html, embed.html, alt.txt, its scripts
-// and the tile index listed from out). md.Legend is set to the legends'
+// map.json with its TileJSON 3.0.0 descriptor (tilejson.json) and the
+// methods note (methods.txt), a still of the whole map (still.png, the
+// no-script fallback of embed.html), then the viewer (index.html, embed.html,
+// alt.txt, its scripts and the tile index listed from out). md.Legend is set to the legends'
 // names. Every command that makes a map writes its furniture here, so a
 // folder, a bucket, a shard's final step and a batch extent get the same
 // files.
@@ -120,5 +123,27 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 	if err := tiles.PutMetadata(ctx, out, md); err != nil {
 		return err
 	}
+	if err := tiles.PutTileJSON(ctx, out, md); err != nil {
+		return err
+	}
+	if err := sink.PutFile(ctx, out, tiles.MethodsFile, []byte(tiles.MethodsText(md))); err != nil {
+		return err
+	}
+	if err := putStill(ctx, out, md, leg); err != nil {
+		return err
+	}
 	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})
+}
+
+// EstimatesCaution is added to the caution of a map whose counts are
+// survey estimates with published margins of error.
+const EstimatesCaution = " These counts are survey estimates with margins of error: small differences between areas may not be real."
+
+// cautionOf is the map's caution: the standard one, and a word on
+// estimates when the counts carry margins of error.
+func cautionOf(s *Summary) string {
+	if s.Estimates {
+		return render.Caution + EstimatesCaution
+	}
+	return render.Caution
 }

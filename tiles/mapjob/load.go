@@ -38,6 +38,14 @@ type Input struct {
 	// Dots[i][k] is the number of dots feature i gets in category k, by the
 	// map's rounding rule (sample.Allocate).
 	Dots [][]int
+	// Margins[i][k], when the map names fields_moe, is the published 90%
+	// margin of error of Counts[i][k]: for a category summing several
+	// fields, the square root of the sum of their margins squared (the
+	// usual approximation for the margin of a sum, assuming independent
+	// estimates; US Census Bureau, "Understanding and Using American
+	// Community Survey Data", chapter 8, from memory). nil without
+	// margins.
+	Margins [][]float64
 	// Fingerprint identifies everything the placed dots depend on (see
 	// samplingFingerprint): two inputs with the same one place the same
 	// dots.
@@ -70,7 +78,7 @@ func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 		var cols []string
 		seen := map[string]bool{}
 		for _, c := range m.Categories {
-			for _, f := range c.Fields {
+			for _, f := range append(slices.Clone(c.Fields), c.FieldsMOE...) {
 				if header[f] && !seen[f] {
 					cols = append(cols, f)
 					seen[f] = true
@@ -118,6 +126,9 @@ func Load(m *mapfile.Map, layer *geo.Layer) (*Input, error) {
 			}
 			in.Counts[i][k] = n
 		}
+	}
+	if err := loadMargins(in, m); err != nil {
+		return nil, err
 	}
 	if err := checkScale(m, layer, in.Counts); err != nil {
 		return nil, err
@@ -260,6 +271,38 @@ func checkScale(m *mapfile.Map, layer *geo.Layer, counts [][]float64) error {
 	if dots := people / m.PeoplePerDot; dots > float64(limit) {
 		return fmt.Errorf("%s: key max_dots: this map would place about %s dots (%s people at %s), more than max_dots = %s; check people_per_dot and the counts, or raise max_dots",
 			m.Path, render.FormatCount(math.Round(dots)), render.FormatCount(math.Round(people)), render.DotNote(m.PeoplePerDot), render.FormatCount(float64(limit)))
+	}
+	return nil
+}
+
+// loadMargins reads the categories' fields_moe into in.Margins.
+func loadMargins(in *Input, m *mapfile.Map) error {
+	any := false
+	for _, c := range m.Categories {
+		any = any || len(c.FieldsMOE) > 0
+	}
+	if !any {
+		return nil
+	}
+	layer := in.Layer
+	in.Margins = make([][]float64, len(layer.Features))
+	for i := range layer.Features {
+		f := &layer.Features[i]
+		in.Margins[i] = make([]float64, len(m.Categories))
+		if in.Unjoined[i] {
+			continue
+		}
+		for k, c := range m.Categories {
+			ss := 0.0
+			for _, field := range c.FieldsMOE {
+				v, err := geo.Count(layer.Path, f, []string{field})
+				if err != nil {
+					return err
+				}
+				ss += v * v
+			}
+			in.Margins[i][k] = math.Sqrt(ss)
+		}
 	}
 	return nil
 }

@@ -3,7 +3,9 @@ package mapjob
 import (
 	"bytes"
 	"context"
+	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"image/png"
 	"math"
 	"os"
@@ -14,6 +16,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/measure"
 	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/tiles"
@@ -396,4 +399,89 @@ func TestDroppedZoomsLeaveTheFolder(t *testing.T) {
 		t.Fatal(err)
 	}
 	sameFiles(t, first, published(t, m.Out))
+}
+
+// TestMeasuresBesideTheMap: a render writes the per-area table and the
+// map's mixing measures into map.json and alt.txt, the values of package
+// geo/measure on the same counts (its own tests check the formulas against
+// Reardon & Firebaugh 2002).
+func TestMeasuresBesideTheMap(t *testing.T) {
+	m := smallWithMask(t)
+	s, err := Run(context.Background(), m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	x, err := measure.Measure(in.Counts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ms := s.Metadata.Measures
+	if ms == nil || ms.H == nil || *ms.H != x.H || *ms.M != x.M || *ms.Entropy != x.Entropy {
+		t.Fatalf("map.json measures %+v; want H %v M %v E %v", ms, x.H, x.M, x.Entropy)
+	}
+	table, err := os.ReadFile(filepath.Join(m.Out, AreaTableFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(table)).ReadAll()
+	if err != nil || len(rows) != 1+len(in.Layer.Features) || rows[0][0] != "id" || rows[1][0] != in.Layer.Features[0].ID {
+		t.Fatalf("areas.csv: %v rows (%v); want a header and %d areas", len(rows), err, len(in.Layer.Features))
+	}
+	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
+	if !strings.Contains(string(alt), fmt.Sprintf("Theil's H, how unevenly the groups are spread over the areas (0 when every area has the whole map's mix, 1 when each area holds one group), is %.3f.", x.H)) {
+		t.Errorf("alt.txt does not state H: %s", alt)
+	}
+}
+
+// TestEstimatesCarryIntervals: with fields_moe (testdata/estimates,
+// invented), the map says its counts are estimates (caution, legend,
+// alt.txt) and map.json gives the measures' intervals with the draw count
+// and seed; the two-area table of ../shared/CHECKS.md (Reardon & Firebaugh
+// 2002) has H = 0.531004, which its interval holds. With all margins zero
+// the interval has no width.
+func TestEstimatesCarryIntervals(t *testing.T) {
+	m, err := mapfile.Read("../../testdata/estimates/map.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Out = filepath.Join(t.TempDir(), "out")
+	s, err := Run(context.Background(), m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ms := s.Metadata.Measures
+	if ms == nil || ms.Intervals == nil || ms.Intervals.Draws != RenderDraws || ms.Intervals.Seed != 4 {
+		t.Fatalf("map.json measures %+v; want intervals from %d draws, seed 4", ms, RenderDraws)
+	}
+	lo, hi := *ms.Intervals.H[0], *ms.Intervals.H[1]
+	if math.Abs(*ms.H-0.531004) > 1e-6 || !(lo < 0.531004 && 0.531004 < hi) {
+		t.Errorf("H %v in [%v, %v]; want 0.531004 inside", *ms.H, lo, hi)
+	}
+	if !strings.HasSuffix(s.Metadata.Caution, EstimatesCaution) {
+		t.Errorf("caution %q does not say the counts are estimates", s.Metadata.Caution)
+	}
+	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
+	if !strings.Contains(string(alt), "The counts are survey estimates: over 200 seeded draws") {
+		t.Errorf("alt.txt: %s", alt)
+	}
+	in, err := Load(m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range in.Margins {
+		for k := range in.Margins[i] {
+			in.Margins[i][k] = 0
+		}
+	}
+	zero, err := Measures(context.Background(), in, m, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if *zero.Intervals.H[0] != *zero.H || *zero.Intervals.H[1] != *zero.H {
+		t.Errorf("zero margins: H interval [%v, %v]; want both %v", *zero.Intervals.H[0], *zero.Intervals.H[1], *zero.H)
+	}
 }

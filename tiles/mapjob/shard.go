@@ -319,6 +319,9 @@ func RunFinal(ctx context.Context, in *Input, m *mapfile.Map, plan *ShardPlan, o
 	}
 	sum.Tiles = st
 	sum.Metadata = Metadata(m, sum)
+	if err := PutMeasures(ctx, out, in, m, nil, sum.Metadata); err != nil {
+		return nil, err
+	}
 	if err := PutFurniture(ctx, out, sum.Metadata, colors); err != nil {
 		return nil, err
 	}

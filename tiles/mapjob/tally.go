@@ -3,9 +3,12 @@ package mapjob
 import (
 	"fmt"
 	"math"
+	"slices"
+	"sort"
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/sample"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
@@ -31,12 +34,30 @@ type Tally struct {
 	// area whose dots were all placed, but not plainly.
 	Problems []string
 	Notes    []string
+	// Estimates is set when the counts are survey estimates: the map file
+	// names their margins of error (fields_moe).
+	Estimates bool
 	// Bounds is the extent of the areas that have people and geometry, as
 	// RFC 7946 §5.2 gives a box: Min is (west, south), Max (east, north),
 	// and west > east when the areas cross the antimeridian (the shortest
 	// span of longitude that holds them all, geo.ExtentOf). Without such
 	// areas Min > Max in both coordinates.
 	Bounds orb.Bound
+	// Lost totals the people with no dot by reason (the sampler's problem
+	// text), sorted by reason: the methods note says why.
+	Lost []LostReason
+	// GeometryNotes is the number of repair and warning notes made while
+	// reading the input file (all of it, also for a subset of areas), and
+	// Repairs their counts by kind; both zero for a layer made in code.
+	GeometryNotes int
+	Repairs       read.Repairs
+}
+
+// LostReason is the people of the areas whose dots were lost for one reason.
+type LostReason struct {
+	Reason string  `json:"reason"`
+	Areas  int     `json:"areas"`
+	People float64 `json:"people"`
 }
 
 // TallyAreas tallies the areas idx of the input (all when idx is nil) from
@@ -45,7 +66,7 @@ type Tally struct {
 // taken from the sampler here, so every path counts it alike.
 func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 	nc := len(m.Categories)
-	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}}
+	t := Tally{People: make([]float64, nc), Dots: make([]int, nc), Beyond: make([]int, nc), Problems: []string{}, Estimates: in.Margins != nil}
 	var parts []orb.Bound
 	sopt := sample.Options{PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Streams: Streams(m)}
 	add := func(i int) {
@@ -86,9 +107,13 @@ func TallyAreas(in *Input, m *mapfile.Map, outcomes Outcomes, idx []int) Tally {
 		case lost > 0:
 			t.NotDrawn += float64(lost) * m.PeoplePerDot
 			t.Problems = append(t.Problems, fmt.Sprintf("feature %d (id %q): %d dots not drawn: %s", f.Index, f.ID, lost, o.Problem))
+			t.addLost(o.Problem, float64(lost)*m.PeoplePerDot)
 		case ok && o.Problem != "":
 			t.Notes = append(t.Notes, fmt.Sprintf("feature %d (id %q): %s", f.Index, f.ID, o.Problem))
 		}
+	}
+	if in.Read != nil {
+		t.GeometryNotes, t.Repairs = len(in.Read.Notes), in.Read.Repairs
 	}
 	if idx == nil {
 		for i := range in.Layer.Features {
@@ -117,4 +142,14 @@ func BoundOf(parts []orb.Bound) orb.Bound {
 // ExtentOfBound is the geo.Extent of a bound that BoundOf made.
 func ExtentOfBound(b orb.Bound) geo.Extent {
 	return geo.Extent{West: b.Min[0], South: b.Min[1], East: b.Max[0], North: b.Max[1]}
+}
+
+// addLost adds people lost for reason to t.Lost, kept sorted by reason.
+func (t *Tally) addLost(reason string, people float64) {
+	i := sort.Search(len(t.Lost), func(i int) bool { return t.Lost[i].Reason >= reason })
+	if i == len(t.Lost) || t.Lost[i].Reason != reason {
+		t.Lost = slices.Insert(t.Lost, i, LostReason{Reason: reason})
+	}
+	t.Lost[i].Areas++
+	t.Lost[i].People += people
 }
