@@ -1,6 +1,6 @@
 module github.com/stipple-maps/stipple
 
-go 1.26.8
+go 1.26.3
 
 require (
 	github.com/BurntSushi/toml v1.6.0

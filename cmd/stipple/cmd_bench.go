@@ -21,26 +21,36 @@ import (
 // benchColors are the Okabe & Ito (2008) "Color Universal Design" hues.
 var benchColors = []string{"#E69F00", "#56B4E9", "#009E73", "#F0E442", "#CC79A7"}
 
+var benchDoc = register(cmdDoc{Name: "bench", Order: 90, Usage: "bench [flags]",
+	Short: "time the whole pipeline on an invented country (or on --input)",
+	About: "Makes an invented country of --areas areas and --people people (or reads --input), renders it " +
+		"into a temporary folder (or --out), and prints dots placed per second, tiles written per second, the " +
+		"bytes written and the peak memory. Counts are invented; the figures in BENCHMARKS.md come from it.",
+	Examples: []string{
+		"stipple bench                                   # 30 million people, zooms 0–12",
+		"stipple bench --people 1000000 --max-zoom 10 --workers 1",
+	}})
+
 // cmdBench runs the whole pipeline on a synthetic national-scale country (or
 // on --input) and prints dots/s, tiles/s and peak memory.
 func cmdBench(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	input := fs.String("input", "", "GeoJSON (or any format stipple reads) with count fields grp_a … grp_e instead of the invented country")
+	input := fs.String("input", "", "a polygon file (any format stipple reads) with count fields grp_a … grp_e (default: the invented country)")
 	id := fs.String("id", "geoid", "id field of --input")
 	people := fs.Int64("people", 30_000_000, "people in the invented country")
 	areas := fs.Int("areas", 3072, "areas in the invented country (a grid of about 4:3)")
 	perDot := fs.Float64("per-dot", 1, "people per dot")
-	minZoom := fs.Int("min-zoom", 0, "lowest zoom")
-	maxZoom := fs.Int("max-zoom", 12, "deepest zoom")
-	workers := fs.Int("workers", 0, "parallel workers (default: all cores)")
+	minZoom := fs.Int("min-zoom", 0, "lowest zoom, 0 to 22 (default 0)")
+	maxZoom := fs.Int("max-zoom", 12, "deepest zoom, 0 to 22")
+	workers := fs.Int("workers", 0, "parallel workers, at most 4 per core (default: one per core)")
 	memory := fs.String("memory", "", "dot store memory budget, e.g. 2GiB (default 2GiB)")
 	out := fs.String("out", "", "output folder (default: a temporary folder, removed afterwards)")
 	hidpi := fs.Bool("hidpi", false, "also write @2x tiles")
-	diameter := fs.Float64("diameter", 0, "dot diameter at the deepest zoom (default: the map default)")
-	opacity := fs.Float64("opacity", 0, "dot opacity (default: the map default)")
+	diameter := fs.Float64("diameter", 0, "dot diameter in pixels at the deepest zoom, above 0 and at most 64 (default 3, the map file default)")
+	opacity := fs.Float64("opacity", 0, "dot opacity, above 0 and at most 1 (default 0.9, the map file default)")
 	seed := fs.Uint64("seed", 1, "seed of the dots (and of the invented country)")
-	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) to this file")
+	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile (go tool pprof) to this file (default: none)")
 	if _, err := parse(fs, args); err != nil {
 		return err
 	}

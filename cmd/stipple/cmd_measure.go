@@ -36,11 +36,21 @@ const (
 		"(1 = all groups in equal shares, 0 = one group)."
 )
 
+var measureDoc = register(cmdDoc{Name: "measure", Order: 100, Usage: "measure MAP.toml [--csv FILE]",
+	Short: "print how mixed or separated the map's groups are (entropy, H, M, D, exposure)",
+	About: "Reads the map's areas and counts, draws nothing, and prints evenness (entropy E, Theil's H, mutual " +
+		"information M, dissimilarity D for each pair of groups), exposure and isolation, and the most diverse " +
+		"areas, each number with a one-sentence definition. All of them depend on the areas the people were counted in.",
+	Examples: []string{
+		"stipple measure map.toml",
+		"stipple measure map.toml --csv areas.csv     # also the per-area table",
+	}})
+
 func cmdMeasure(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("measure", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	draws := fs.Int("draws", 1000, "with fields_moe: seeded draws of the counts for the measures' intervals")
-	csvPath := fs.String("csv", "", "also write the per-area table (id, people, shares, entropy, largest group) to this CSV file")
+	csvPath := fs.String("csv", "", "also write the per-area table (id, people, shares, entropy, largest group) to this CSV file (default: none)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err

@@ -15,6 +15,16 @@ import (
 	"github.com/stipple-maps/stipple/tiles/shard"
 )
 
+var planDoc = register(cmdDoc{Name: "plan", Order: 80, Usage: "plan MAP.toml --shards N [flags]",
+	Short: "size a render cut into N parts: work per part, tiles, bytes, core-hours",
+	About: "Reads the map's areas and counts, places no dot, and prints how render --shard would cut the map " +
+		"into N parts balanced by work: each part's dots, areas, tiles, megabytes and core-hours, the final " +
+		"step's share, and the expected tiles per zoom. The override flags change the map as they would for render.",
+	Examples: []string{
+		"stipple plan map.toml --shards 8",
+		"stipple plan map.toml --shards 32 --max-zoom 14 --json",
+	}})
+
 // cmdPlan is "stipple plan MAP.toml --shards N": how a render of the map
 // would be cut into N parts, the work of each, and the expected tiles,
 // bytes and core-hours, without placing a dot.

@@ -20,6 +20,16 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
+var printDoc = register(cmdDoc{Name: "print", Order: 70, Usage: "print MAP.toml [flags]",
+	Short: "print the map on a page (PNG and PDF, equal-area projection)",
+	About: "Draws the same dots as the tiles (the render's dot store is reused when it holds this map's dots) " +
+		"on one page in an equal-area projection, with title, legend, counts, the dot note, the caution, a scale " +
+		"bar and the credit, and writes a PNG that records its resolution and a PDF with vector text.",
+	Examples: []string{
+		"stipple print map.toml --page A3 --dpi 300",
+		"stipple print map.toml --ids 01001,01003 --format pdf --out county-pair",
+	}})
+
 // printOptions are the flags of "stipple print".
 type printOptions struct {
 	size        string
@@ -48,7 +58,7 @@ func (o *printOptions) register(fs *flag.FlagSet) {
 	fs.Float64Var(&o.dpi, "dpi", 300, "raster resolution, dots per inch")
 	fs.StringVar(&o.margin, "margin", "12mm", "blank border on every side (mm, cm, in or pt)")
 	fs.StringVar(&o.bbox, "bbox", "", "extent as west,south,east,north degrees (default: the map's areas)")
-	fs.StringVar(&o.ids, "ids", "", "print only the areas with these ids, comma-separated")
+	fs.StringVar(&o.ids, "ids", "", "print only the areas with these ids, comma-separated (default: every area)")
 	fs.StringVar(&o.projection, "projection", "auto", "projection: "+strings.Join(page.ProjectionNames, ", "))
 	fs.Float64Var(&o.dotMM, "dot-mm", 0.35, "dot diameter on paper, mm")
 	fs.BoolVar(&o.outlines, "outlines", false, "draw the areas' boundaries")
@@ -57,9 +67,9 @@ func (o *printOptions) register(fs *flag.FlagSet) {
 	fs.StringVar(&o.out, "out", "", "output path without extension (default: OUT/print, OUT being the map's output folder)")
 	fs.StringVar(&o.formats, "format", "png,pdf", "files to write: png, pdf or both")
 	fs.StringVar(&o.pdfDots, "pdf-dots", "auto", fmt.Sprintf("dots in the PDF: raster, vector, or auto (vector up to %d dots)", page.VectorLimit))
-	fs.Int64Var(&o.seed, "seed", -1, "random seed (overrides seed; keep it to match the tiles)")
-	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot (overrides people_per_dot)")
-	fs.IntVar(&o.workers, "workers", 0, "parallel workers for placing dots (default: all cores)")
+	fs.Int64Var(&o.seed, "seed", -1, "random seed, a whole number from 0 up; keep it to match the tiles (default: the map file's seed)")
+	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot, at least 0.01 (default: the map file's people_per_dot)")
+	fs.IntVar(&o.workers, "workers", 0, "parallel workers for placing dots, at most 4 per core (default: one per core)")
 	fs.StringVar(&o.memory, "memory", "", "memory budget when the dots must be placed again, e.g. 2GiB (default 2GiB)")
 }
 

@@ -10,12 +10,22 @@ import (
 	"github.com/stipple-maps/stipple/tiles"
 )
 
+var publishDoc = register(cmdDoc{Name: "publish", Order: 55, Usage: "publish OUT DEST [--url ADDRESS] [--resume]",
+	Short: "copy what a web host needs of a rendered folder OUT into DEST (a folder or bucket URL)",
+	About: "Copies the tiles, viewer, legend, metadata and the other files a web page loads from the rendered " +
+		"folder OUT into DEST, a folder or a bucket URL, and leaves out stipple's own state (.stipple/) and " +
+		"dot-files. With --url, tilejson.json names the tiles by absolute address.",
+	Examples: []string{
+		"stipple publish map-out site/",
+		"stipple publish map-out s3://bucket/maps/langs/ --url https://maps.example.org/langs/",
+	}})
+
 // cmdPublish is "stipple publish OUT DEST" (tiles.Publish): copy what a
 // web host needs of a rendered folder into DEST, a folder or a bucket URL.
 func cmdPublish(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("publish", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	base := fs.String("url", "", "the address DEST is served from (https://host/path/): tilejson.json then names the tiles by absolute URL")
+	base := fs.String("url", "", "the `address` DEST is served from (https://host/path/): tilejson.json then names the tiles by absolute URL (default: none, relative URLs)")
 	resume := fs.Bool("resume", false, "keep files DEST already holds with the same size (to finish an interrupted publish of the same render)")
 	pos, err := parse(fs, args)
 	if err != nil {

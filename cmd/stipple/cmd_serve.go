@@ -15,10 +15,20 @@ import (
 	"time"
 )
 
+var serveDoc = register(cmdDoc{Name: "serve", Order: 50, Usage: "serve DIR [--port 8080] [--host 127.0.0.1]",
+	Short: "serve a rendered folder DIR on 127.0.0.1 for a quick look",
+	About: "Serves the files in the folder DIR (the out folder of a render, demo or batch) over HTTP on this " +
+		"machine only, unless --host says otherwise, until Ctrl-C. Only regular files inside DIR are served: no " +
+		"dot-files (so not .stipple/), no symlinks out of it, no folder listings; a folder serves its index.html.",
+	Examples: []string{
+		"stipple serve map-out                 # then open http://127.0.0.1:8080/",
+		"stipple serve map-out --port 9000",
+	}})
+
 func cmdServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	port := fs.Int("port", 8080, "port on 127.0.0.1")
+	port := fs.Int("port", 8080, "TCP port to listen on; 0 picks a free one")
 	host := fs.String("host", "127.0.0.1", "address to bind; the default keeps the map on this machine")
 	pos, err := parse(fs, args)
 	if err != nil {

@@ -48,7 +48,7 @@ var countVars = []string{"STIPPLE_SHARDS", "SLURM_ARRAY_TASK_COUNT"}
 
 const shardUsage = "render one part of the map: I/N (part I of N, 0 ≤ I < N), auto/N or auto (I from the scheduler's environment: " +
 	"JOB_COMPLETION_INDEX, SLURM_ARRAY_TASK_ID, AWS_BATCH_JOB_ARRAY_INDEX or STIPPLE_SHARD_INDEX), or final/N (after all N parts: " +
-	"the zooms above the split, metadata, legend and viewer)"
+	"the zooms above the split, metadata, legend and viewer) (default: the whole map on this machine)"
 
 // parseShard reads a --shard value; getenv supplies the environment.
 func parseShard(v string, getenv func(string) string) (shardSpec, error) {

@@ -15,6 +15,16 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
+var stillDoc = register(cmdDoc{Name: "still", Order: 57, Usage: "still MAP [--view Z/LAT/LON] [--size 1200x675] [--out FILE]",
+	Short: "write a PNG of one view of a rendered map, with legend, note and credit",
+	About: "Composes a PNG of one view of a rendered map from the tiles the render wrote, with the legend, " +
+		"the dot note and the credit, for social posts and CMS fallbacks. MAP is the map file (its output " +
+		"folder is read) or the rendered folder or bucket URL; without --view the still shows the whole map.",
+	Examples: []string{
+		"stipple still map.toml --view 12/-30.02/-140.0 --out card.png",
+		"stipple still map-out --size square",
+	}})
+
 // cmdStill is "stipple still MAP --view z/lat/lon --size 1200x675": a PNG
 // of one view of a rendered map, legend, note and credit composed in
 // (tiles.Still), for social posts and CMS fallbacks. MAP is the map file
@@ -22,9 +32,10 @@ import (
 func cmdStill(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("still", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	viewFlag := fs.String("view", "", "zoom/latitude/longitude of the centre (default: the whole map)")
-	sizeFlag := fs.String("size", "1200x675", "WIDTHxHEIGHT in pixels, or wide (1200x675), portrait (1080x1350), square (1080x1080)")
-	outFlag := fs.String("o", "", "PNG file to write (default still-WIDTHxHEIGHT.png in the current folder)")
+	viewFlag := fs.String("view", "", "`zoom/lat/lon` of the centre (default: the whole map)")
+	sizeFlag := fs.String("size", "1200x675", "`size`: WIDTHxHEIGHT in pixels, or wide (1200x675), portrait (1080x1350), square (1080x1080)")
+	outFlag := fs.String("out", "", "PNG `file` to write (default still-WIDTHxHEIGHT.png in the current folder)")
+	fs.StringVar(outFlag, "o", "", "") // -o, as before: an alias without help
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err

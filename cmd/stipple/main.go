@@ -3,10 +3,16 @@
 //
 // Usage:
 //
+//	stipple help                      list the commands
+//	stipple help COMMAND              a command's synopsis, flags and examples (= stipple COMMAND -h)
 //	stipple render MAP.toml [flags]   render a map file
 //	stipple demo [DIR]                render the built-in invented city
 //	stipple serve DIR [--port N]      serve a rendered folder on 127.0.0.1
-//	stipple version
+//	stipple version                   (or stipple --version)
+//
+// Each command registers its help (a cmdDoc) next to its flags; parse
+// finds it by the flag set's name and applies the ranges every command
+// shares (flagRules).
 //
 // Exit codes: 0 done; 1 the map could not be made (bad map file, bad input,
 // output not writable; the message names the file, feature and field);

@@ -383,9 +383,9 @@ func TestPrintCommand(t *testing.T) {
 		{[]string{"--projection", "robinson"}, 2, `unknown projection "robinson"`},
 		{[]string{"--format", "tiff"}, 2, `--format "tiff"`},
 		{[]string{"--pdf-dots", "svg"}, 2, "--pdf-dots"},
-		{[]string{"--dpi", "5"}, 1, "page: 5 dpi; want 36 to 1200"},
+		{[]string{"--dpi", "5"}, 2, "--dpi 5: want 36 to 1200 dots per inch"},
 		{[]string{"--margin", "wide"}, 2, "--margin: page: length"},
-		{[]string{"--dot-mm", "0"}, 1, "dot diameter 0 mm"},
+		{[]string{"--dot-mm", "0"}, 2, "--dot-mm 0: want a dot diameter above 0"},
 	} {
 		var out, errOut bytes.Buffer
 		args := append([]string{"print", m.Path, "--out", filepath.Join(dir, "bad")}, c.args...)

@@ -20,25 +20,42 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
-// usageError marks a wrong command line (exit code 2).
+// usageError marks a wrong command line (exit code 2); run prints the
+// command's short usage after it.
 type usageError struct{ msg string }
 
 func (e usageError) Error() string { return e.msg }
 
-const usage = `stipple turns people counted per area into dot-density maps.
-
-  stipple render MAP.toml [flags]   render the map a map file describes
-  stipple demo [DIR]                render the built-in invented city into DIR (default stipple-demo), and two counts of it in DIR/compare
-  stipple inspect FILE [--map MAP.toml]   describe a polygon file; with a map, what a render would make
-  stipple init FILE [-o MAP.toml]   write a starter map file for a polygon file
-  stipple serve DIR [--port 8080]   serve a rendered folder on 127.0.0.1 for a quick look
-  stipple print MAP.toml [flags]    print the map on a page (PNG and PDF, equal-area projection)
-  stipple batch FILE [flags]        render many extents (boxes, id lists, field values) from one sampling
-  stipple plan MAP.toml --shards N  size a render cut into N parts: work per part, tiles, bytes, core-hours
-  stipple version                   print the version
-
-Run "stipple render -h" for the flags that override a map file.
-`
+var (
+	renderDoc = register(cmdDoc{Name: "render", Order: 10, Usage: "render MAP.toml [flags]",
+		Short: "render the map a map file describes: tiles, viewer, legend, metadata",
+		About: "Reads the areas and counts the map file names, places one dot per people_per_dot people " +
+			"at random inside each area (seeded, so the same file gives the same bytes), and writes the XYZ tile " +
+			"pyramid, the web viewer, the legend, embed.html, alt.txt and map.json into the map's out folder. " +
+			"Flags replace the map file's keys for this run: a flag given on the command line always wins, and a " +
+			"value outside the key's range is refused. A render stopped by Ctrl-C resumes when rerun.",
+		Examples: []string{
+			"stipple render map.toml                               # as the map file says",
+			"stipple render map.toml --max-zoom 10 --out preview   # a quick, shallower look",
+		}})
+	demoDoc = register(cmdDoc{Name: "demo", Order: 20, Usage: "demo [DIR] [flags]",
+		Short: "render the built-in invented city into DIR (default stipple-demo), and two counts of it in DIR/compare",
+		About: "Writes the invented city Quillmere (its areas, groups and counts are all made up) and its map file " +
+			"into DIR/source, then renders it into DIR, as render would. The flags replace the demo's own settings.",
+		Examples: []string{
+			"stipple demo /tmp/demo          # then open /tmp/demo/index.html",
+			"stipple demo --max-zoom 12      # into ./stipple-demo, fewer zooms",
+		}})
+	versionDoc = register(cmdDoc{Name: "version", Order: 200, Usage: "version",
+		Short:    "print the version (also: stipple --version)",
+		About:    "Prints stipple's version, the one map.json records.",
+		Examples: []string{"stipple version"}})
+	helpDoc = register(cmdDoc{Name: "help", Order: 210, Usage: "help [COMMAND]",
+		Short: "list the commands, or show one command's flags and examples",
+		About: "Without a command, lists the commands. With one, prints the same help as \"stipple COMMAND --help\": " +
+			"the synopsis, what it does, its flags with their defaults, and examples.",
+		Examples: []string{"stipple help", "stipple help render"}})
+)
 
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	err := dispatch(ctx, args, stdout, stderr)
@@ -46,12 +63,18 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return 0
 	}
 	var ue usageError
+	var hr helpRequest
 	switch {
-	case errors.Is(err, flag.ErrHelp):
+	case errors.As(err, &hr):
+		fmt.Fprint(stdout, commandHelp(hr.fs))
 		return 0
 	case errors.As(err, &ue):
-		fmt.Fprintln(stderr, "stipple: "+ue.msg)
-		fmt.Fprint(stderr, "\n"+usage)
+		fmt.Fprintln(stderr, "stipple: "+oneLine(ue.msg))
+		if d, ok := docs[first(args)]; ok && first(args) != "help" {
+			fmt.Fprint(stderr, shortUsage(d))
+		} else {
+			fmt.Fprintln(stderr, `Run "stipple help" for the commands.`)
+		}
 		return 2
 	case errors.Is(err, context.Canceled):
 		fmt.Fprintln(stderr, "stipple: interrupted; rerun the same command to finish")
@@ -60,6 +83,14 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "stipple: "+oneLine(err.Error()))
 		return 1
 	}
+}
+
+// first is args[0], or "" for no arguments.
+func first(args []string) string {
+	if len(args) == 0 {
+		return ""
+	}
+	return args[0]
 }
 
 func oneLine(s string) string { return strings.ReplaceAll(s, "\n", " ") }
@@ -93,19 +124,85 @@ func dispatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return cmdPublish(ctx, args[1:], stdout, stderr)
 	case "still":
 		return cmdStill(ctx, args[1:], stdout, stderr)
-	case "version":
-		fmt.Fprintln(stdout, "stipple", mapjob.Version)
-		return nil
-	case "help", "-h", "--help":
-		fmt.Fprint(stdout, usage)
-		return nil
+	case "version", "--version", "-version":
+		return cmdVersion(ctx, args[1:], stdout, stderr)
+	case "help", "-h", "--help", "-help":
+		return cmdHelp(ctx, args[1:], stdout, stderr)
 	default:
-		return usageError{fmt.Sprintf("unknown command %q", args[0])}
+		msg := fmt.Sprintf("unknown command %q", args[0])
+		if strings.HasPrefix(args[0], "-") {
+			msg = fmt.Sprintf("unknown flag %s before a command", args[0])
+		}
+		if near := nearestCommand(args[0]); near != "" {
+			msg += fmt.Sprintf("; did you mean %q?", near)
+		}
+		return usageError{msg}
 	}
 }
 
-// overrides are the flags that replace map-file values.
+// nearestCommand is the registered command closest to name, when close
+// enough to be a typo.
+func nearestCommand(name string) string {
+	best, bestD := "", 1<<30
+	for _, d := range sortedDocs() {
+		if n := editDistance(name, d.Name); n < bestD {
+			best, bestD = d.Name, n
+		}
+	}
+	if bestD <= min(3, max(1, len(name)/3)) {
+		return best
+	}
+	return ""
+}
+
+func cmdVersion(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("version", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return usageErr("version takes no arguments")
+	}
+	fmt.Fprintln(stdout, "stipple", mapjob.Version)
+	return nil
+}
+
+func cmdHelp(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("help", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	pos, err := parse(fs, args)
+	if err != nil {
+		return err
+	}
+	switch len(pos) {
+	case 0:
+		fmt.Fprint(stdout, generalHelp())
+		return nil
+	case 1:
+		if pos[0] == "help" {
+			return helpRequest{fs}
+		}
+		if _, ok := docs[pos[0]]; !ok {
+			msg := fmt.Sprintf("help: unknown command %q", pos[0])
+			if near := nearestCommand(pos[0]); near != "" {
+				msg += fmt.Sprintf("; did you mean %q?", near)
+			}
+			return usageError{msg}
+		}
+		return dispatch(ctx, []string{pos[0], "-h"}, stdout, stderr)
+	default:
+		return usageErr("help takes at most one command")
+	}
+}
+
+// overrides are the flags that replace map-file values. A flag the command
+// line sets always replaces the key, whatever its value; a value outside
+// the key's range is refused (flagRules and the map file's own checks),
+// never silently ignored.
 type overrides struct {
+	fs                         *flag.FlagSet
 	out                        string
 	seed                       int64
 	perDot                     float64
@@ -116,17 +213,38 @@ type overrides struct {
 	force                      bool
 }
 
-func (o *overrides) register(fs *flag.FlagSet) {
-	fs.StringVar(&o.out, "out", "", "output folder (overrides out)")
-	fs.Int64Var(&o.seed, "seed", -1, "random seed (overrides seed)")
-	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot (overrides people_per_dot)")
-	fs.IntVar(&o.minZoom, "min-zoom", -1, "lowest zoom (overrides tiles.min_zoom)")
-	fs.IntVar(&o.maxZoom, "max-zoom", -1, "deepest zoom (overrides tiles.max_zoom)")
-	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 (overrides tiles.size)")
-	fs.IntVar(&o.workers, "workers", 0, "parallel workers (default: all cores)")
-	fs.StringVar(&o.memory, "memory", "", "memory budget, e.g. 2GiB (default 2GiB): dots beyond it are spilled to disk, sorted, and merged")
+// register defines the override flags on fs, for a command that reads a
+// map file.
+func (o *overrides) register(fs *flag.FlagSet) { o.registerFrom(fs, nil) }
+
+// registerFrom defines the override flags on fs. demo, when set, is the
+// built-in demo's map: its values are the defaults shown, and there is no
+// --out (the demo's folder is its argument).
+func (o *overrides) registerFrom(fs *flag.FlagSet, demo *mapfile.Map) {
+	o.fs = fs
+	from := func(key string, _ any) string { return "(default: the map file's " + key + ")" }
+	if demo != nil {
+		from = func(_ string, v any) string { return fmt.Sprintf("(default %v, the demo's)", v) }
+	} else {
+		fs.StringVar(&o.out, "out", "", "output `folder` or bucket URL "+from("out", nil))
+	}
+	var d mapfile.Map
+	if demo != nil {
+		d = *demo
+	}
+	fs.Int64Var(&o.seed, "seed", 0, "random seed, a whole number from 0 up "+from("seed", d.Seed))
+	fs.Float64Var(&o.perDot, "per-dot", 0, "people per dot, at least 0.01 "+from("people_per_dot", d.PeoplePerDot))
+	fs.IntVar(&o.minZoom, "min-zoom", 0, "lowest zoom, 0 to 22 "+from("tiles.min_zoom", d.Tiles.MinZoom))
+	fs.IntVar(&o.maxZoom, "max-zoom", 0, "deepest zoom, 0 to 22 "+from("tiles.max_zoom", d.Tiles.MaxZoom))
+	fs.IntVar(&o.tileSize, "tile-size", 0, "tile size in pixels, 256 or 512 "+from("tiles.size", d.Tiles.Size))
+	fs.IntVar(&o.workers, "workers", 0, "parallel workers, at most 4 per core (default: one per core)")
+	fs.StringVar(&o.memory, "memory", "", "memory budget, a `size` such as 512MiB or 2GiB: dots beyond it are spilled to disk, sorted, and merged (default 2GiB)")
 	fs.BoolVar(&o.force, "force", false, "write into a folder that holds files stipple did not write")
-	fs.BoolVar(&o.hidpi, "hidpi", false, "also write {z}/{x}/{y}@2x.png tiles for high-density screens (overrides tiles.hidpi)")
+	hd := "(default: the map file's tiles.hidpi)"
+	if demo != nil {
+		hd = ""
+	}
+	fs.BoolVar(&o.hidpi, "hidpi", false, strings.TrimSpace("also write {z}/{x}/{y}@2x.png tiles for high-density screens "+hd))
 }
 
 // runOptions are the build options the flags and the map file give.
@@ -135,7 +253,7 @@ func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (mapjob.Options
 	if o.memory != "" {
 		n, err := mapfile.ParseSize(o.memory)
 		if err != nil || n <= 0 {
-			return opt, usageError{fmt.Sprintf("--memory %q: want a size such as 2GiB or 512MiB", o.memory)}
+			return opt, usageErr("--memory %q: want a size such as 2GiB or 512MiB", o.memory)
 		}
 		opt.Memory = n
 	}
@@ -143,58 +261,43 @@ func (o *overrides) runOptions(m *mapfile.Map, stdout io.Writer) (mapjob.Options
 }
 
 func (o *overrides) apply(m *mapfile.Map) error {
-	if o.out != "" {
+	set := func(name string) bool { return o.fs != nil && isSet(o.fs, name) }
+	if set("out") {
+		if o.out == "" {
+			return usageErr("--out: want a folder or bucket URL")
+		}
 		m.Out = o.out
+	} else if o.out != "" {
+		m.Out = o.out // the demo's folder
 	} else if !sink.IsBucketURL(m.Out) {
 		m.Out = m.Resolve(m.Out)
 	}
-	if o.seed >= 0 {
-		m.Seed = uint64(o.seed)
+	if set("seed") {
+		m.Seed = uint64(o.seed) // flagRules refused negative seeds
 	}
-	if o.perDot < 0 {
-		return usageError{"--per-dot must be positive"}
-	}
-	if o.perDot > 0 {
+	if set("per-dot") {
 		m.PeoplePerDot = o.perDot
 		if err := m.CheckPerDot(); err != nil {
-			return usageError{"--per-dot " + err.Error()}
+			return usageErr("--per-dot %s", err)
 		}
 	}
-	if o.minZoom >= 0 {
+	if set("min-zoom") {
 		m.Tiles.MinZoom = o.minZoom
 	}
-	if o.maxZoom >= 0 {
+	if set("max-zoom") {
 		m.Tiles.MaxZoom = o.maxZoom
 	}
-	if o.tileSize != 0 {
+	if set("tile-size") {
 		m.Tiles.Size = o.tileSize
 	}
 	if err := m.CheckZooms(); err != nil {
-		return usageError{err.Error()}
+		// The file's own values passed mapfile.Read: a flag broke them.
+		return usageErr("%s (after --min-zoom, --max-zoom, --tile-size)", err)
 	}
 	if o.hidpi && m.Dots.Diameter > mapfile.MaxHiDPIDiameter {
 		return &mapfile.Error{Path: m.Path, Key: "dots.diameter", Msg: fmt.Sprintf("is %v; --hidpi draws dots at twice the pixels, at most 64, so want at most %v", m.Dots.Diameter, mapfile.MaxHiDPIDiameter)}
 	}
 	return nil
-}
-
-// parse parses flags that may come before or after the positional arguments.
-func parse(fs *flag.FlagSet, args []string) ([]string, error) {
-	var pos []string
-	for {
-		if err := fs.Parse(args); err != nil {
-			if errors.Is(err, flag.ErrHelp) {
-				return nil, err
-			}
-			return nil, usageError{err.Error()}
-		}
-		args = fs.Args()
-		if len(args) == 0 {
-			return pos, nil
-		}
-		pos = append(pos, args[0])
-		args = args[1:]
-	}
 }
 
 func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) error {
@@ -313,7 +416,11 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	fs := flag.NewFlagSet("demo", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	var o overrides
-	o.register(fs)
+	demoDefaults, err := mapfile.Parse("demo.toml", []byte(demoText()))
+	if err != nil {
+		return err
+	}
+	o.registerFrom(fs, demoDefaults)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -390,6 +497,16 @@ opacity = 0.9
 # Colours: Okabe & Ito (2008), "Color Universal Design", colour-blind safe.
 `
 
+// demoText is the demo's whole map file, categories included.
+func demoText() string {
+	var b strings.Builder
+	b.WriteString(demoMapFile)
+	for _, g := range demo.Groups {
+		fmt.Fprintf(&b, "\n[[category]]\nkey = %q\nlabel = %q\ncolor = %q\nfields = [%q]\n", g.Field, g.Label, g.Color, g.Field)
+	}
+	return b.String()
+}
+
 // writeDemoSource writes the demo's GeoJSON and map file under dir/source
 // and returns the parsed map.
 func writeDemoSource(dir string) (*mapfile.Map, error) {
@@ -400,13 +517,8 @@ func writeDemoSource(dir string) (*mapfile.Map, error) {
 	if err := geojson.Write(filepath.Join(src, "quillmere.geojson"), demo.City(1)); err != nil {
 		return nil, err
 	}
-	var b strings.Builder
-	b.WriteString(demoMapFile)
-	for _, g := range demo.Groups {
-		fmt.Fprintf(&b, "\n[[category]]\nkey = %q\nlabel = %q\ncolor = %q\nfields = [%q]\n", g.Field, g.Label, g.Color, g.Field)
-	}
 	path := filepath.Join(src, "quillmere.toml")
-	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+	if err := os.WriteFile(path, []byte(demoText()), 0o644); err != nil {
 		return nil, fmt.Errorf("demo: %w", err)
 	}
 	return mapfile.Read(path)

@@ -156,6 +156,7 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 	}
 	defer debug.SetMemoryLimit(debug.SetMemoryLimit(memory + 512<<20))
 	log := newProgress(opt.Log, opt.ProgressEvery)
+	defer log.stop()
 	rep := &Report{Out: f.Out}
 	if err := os.MkdirAll(filepath.Join(f.Out, tiles.StateDir), 0o755); err != nil {
 		return nil, fmt.Errorf("batch: output: %w", err)
@@ -195,7 +196,7 @@ func Run(ctx context.Context, f *File, opt Options) (*Report, error) {
 		}
 		todo = append(todo, j)
 	}
-	log.printf("batch: %d extents in %s; %d complete from an earlier run, %d to draw", len(jobs), f.Path, len(jobs)-len(todo), len(todo))
+	log.printf("batch: %s in %s; %d complete from an earlier run, %d to draw", plural(len(jobs), "extent", "extents"), f.Path, len(jobs)-len(todo), len(todo))
 
 	if len(todo) > 0 {
 		if err := runJobs(ctx, f, todo, inputs, rep, workers, memory, log, cats); err != nil {
@@ -253,6 +254,11 @@ func runJobs(ctx context.Context, f *File, todo []*job, inputs map[float64]*mapj
 		}
 		groups[j.e.PeoplePerDot] = append(groups[j.e.PeoplePerDot], j)
 	}
+	picked := 0
+	for _, g := range groups {
+		picked += len(g)
+	}
+	log.setTotal(picked)
 	colors := m.RGBA()
 	look := mapjob.Look(m)
 	for _, pd := range perDots {
@@ -263,7 +269,18 @@ func runJobs(ctx context.Context, f *File, todo []*job, inputs map[float64]*mapj
 		if f.Sample == "near" {
 			areas = nearAreas(f, pd, in.Layer)
 		}
-		s, err := place(ctx, storeDir(f.Out, pd), in, &mg, areas, f.HiDPI, workers, memory)
+		expected := int64(in.TotalDots())
+		if areas != nil {
+			expected = 0
+			for _, i := range areas {
+				for _, d := range in.Dots[i] {
+					expected += int64(d)
+				}
+			}
+		}
+		log.startPlace(expected)
+		s, err := place(ctx, storeDir(f.Out, pd), in, &mg, areas, f.HiDPI, workers, memory, &log.placed)
+		log.endPhase()
 		if err != nil {
 			return err
 		}
@@ -342,7 +359,7 @@ func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, s *
 					fresh[z][t] = true
 				}
 			}
-			log.printf("batch: zoom %d: %d tiles drawn (%d with ink) in %s", z, st.Rendered, st.Inked, st.Elapsed.Round(time.Millisecond))
+			log.printf("batch: zoom %d: %s drawn (%d with ink) in %s", z, plural(st.Rendered, "tile", "tiles"), st.Inked, st.Elapsed.Round(time.Millisecond))
 		}
 	}
 	rep.TileTime += time.Since(tileStart)
@@ -360,8 +377,6 @@ func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, s *
 	printSlots := make(chan struct{}, max(1, min(workers, int(memory/printBytes(f, m)))))
 	next := make(chan int)
 	var wg sync.WaitGroup
-	var mu sync.Mutex
-	doneCount := 0
 	for w := 0; w < min(workers, len(group)); w++ {
 		wg.Add(1)
 		go func() {
@@ -373,17 +388,14 @@ func drawGroup(ctx context.Context, f *File, group []*job, in *mapjob.Input, s *
 					continue
 				}
 				err := finish(ctx, f, j, covers[i], in, s, m, cache, colors, look, printSlots, cats)
-				mu.Lock()
-				doneCount++
-				n := doneCount
-				mu.Unlock()
+				n := log.extentDone()
 				if err != nil {
 					j.fail(fmt.Errorf("extent %q (%s:%d): %w", j.e.Slug, f.Path, j.e.Line, err), nil)
-					log.printf("[%d/%d] %s: FAILED: %s", n, len(group), j.e.Slug, j.res.Error)
+					log.printf("%s %s: FAILED: %s", n, j.e.Slug, j.res.Error)
 					continue
 				}
-				log.printf("[%d/%d] %s: %d tiles, %.1f MB, %s people in %d areas, %.2f s", n, len(group), j.e.Slug,
-					j.res.Tiles+j.res.Tiles2x, float64(j.res.Bytes)/1e6, render.FormatCount(sumPeople(j.res.People)), j.res.Features, j.res.Seconds)
+				log.printf("%s %s: %s, %.1f MB, %s people in %s, %.2f s", n, j.e.Slug,
+					plural(j.res.Tiles+j.res.Tiles2x, "tile", "tiles"), float64(j.res.Bytes)/1e6, render.FormatCount(sumPeople(j.res.People)), plural(j.res.Features, "area", "areas"), j.res.Seconds)
 			}
 		}()
 	}

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"path/filepath"
 	"strings"
+	"sync/atomic"
 	"time"
 
 	"github.com/stipple-maps/stipple/tiles"
@@ -36,10 +37,10 @@ func storeDir(out string, perDot float64) string {
 // with the store kept in dir, so a rerun with the same input fingerprint
 // (and the same areas, for sample = "near") reuses it. areas, when not
 // nil, are the only areas placed.
-func place(ctx context.Context, dir string, in *mapjob.Input, m *mapfile.Map, areas []int, hidpi bool, workers int, memory int64) (*sampling, error) {
+func place(ctx context.Context, dir string, in *mapjob.Input, m *mapfile.Map, areas []int, hidpi bool, workers int, memory int64, placed *atomic.Int64) (*sampling, error) {
 	start := time.Now()
 	variant := areasVariant(areas)
-	pl, err := mapjob.Place(ctx, in, m, mapjob.PlaceOptions{Workers: workers, Memory: memory, Dir: dir, Variant: variant, Areas: areas})
+	pl, err := mapjob.Place(ctx, in, m, mapjob.PlaceOptions{Workers: workers, Memory: memory, Dir: dir, Variant: variant, Areas: areas, Placed: placed})
 	if err != nil {
 		return nil, err
 	}

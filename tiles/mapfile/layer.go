@@ -42,20 +42,30 @@ type Layer struct {
 // Crosswalk is a relationship table between two sets of areas: rows of
 // (source id, target id, weight), read by package geo/crosswalk.
 type Crosswalk struct {
+	// File is the crosswalk CSV, relative to the map file.
 	File string `toml:"file"`
 	// Source, Target and Weight name the columns: the older area's id,
 	// the map's area id, and the share of the older area's people that
 	// goes to the target.
 	Source string `toml:"source"`
+	// Target is the column of the map's area id.
 	Target string `toml:"target"`
+	// Weight is the column of the share of the older area's people that
+	// goes to the target.
 	Weight string `toml:"weight"`
-	// Key normalisation, as a count table's (applied to both ids).
-	Trim        bool   `toml:"trim"`
+	// Key normalisation, as a count table's (applied to both ids): Trim
+	// drops white space around ids.
+	Trim bool `toml:"trim"`
+	// StripPrefix removes this prefix from ids that start with it.
 	StripPrefix string `toml:"strip_prefix"`
-	KeepLast    int    `toml:"keep_last"`
-	PadZeros    int    `toml:"pad_zeros"`
-	Delimiter   string `toml:"delimiter"`
-	SkipRows    int    `toml:"skip_rows"`
+	// KeepLast keeps the last N characters of longer ids (0: all).
+	KeepLast int `toml:"keep_last"`
+	// PadZeros left-pads ids made of digits to PadZeros digits.
+	PadZeros int `toml:"pad_zeros"`
+	// Delimiter separates the fields, as input.table.delimiter.
+	Delimiter string `toml:"delimiter"`
+	// SkipRows skips description rows under the header.
+	SkipRows int `toml:"skip_rows"`
 }
 
 // Options returns the table options the crosswalk's ids are read with.

@@ -22,11 +22,18 @@ type Map struct {
 	// relative to its folder.
 	Path string `toml:"-"`
 
-	Title        string  `toml:"title"`
-	Credit       string  `toml:"credit"`
+	// Title heads the viewer, the legend and map.json.
+	Title string `toml:"title"`
+	// Credit names the source of the counts; shown in the viewer, legend
+	// and print pages.
+	Credit string `toml:"credit"`
+	// PeoplePerDot is how many people one dot stands for, at least 0.01.
 	PeoplePerDot float64 `toml:"people_per_dot"`
-	Seed         uint64  `toml:"seed"`
-	Out          string  `toml:"out"`
+	// Seed picks the random placement, a whole number from 0 up; another
+	// seed gives another, equally valid, placement.
+	Seed uint64 `toml:"seed"`
+	// Out is the output folder, relative to the map file, or a bucket URL.
+	Out string `toml:"out"`
 	// Rounding is "random" (default: each area's dots are count/N rounded
 	// up or down at random, unbiased) or "exact" (each category gets exactly
 	// round(total/N) dots, shared out by largest remainders).
@@ -40,9 +47,13 @@ type Map struct {
 	// the run with its row named.
 	AllowOutliers bool `toml:"allow_outliers"`
 
-	Input      Input      `toml:"input"`
-	Tiles      Tiles      `toml:"tiles"`
-	Dots       Dots       `toml:"dots"`
+	// Input names the areas and their counts.
+	Input Input `toml:"input"`
+	// Tiles sets the zooms and size of the tile pyramid.
+	Tiles Tiles `toml:"tiles"`
+	// Dots sets the dots' size and opacity.
+	Dots Dots `toml:"dots"`
+	// Categories are the groups of people, one colour each (1 to 63).
 	Categories []Category `toml:"category"`
 	// Layers, when set, are two or more maps rendered into one folder with
 	// a layer switch and a compare divider (see Layer).
@@ -65,7 +76,7 @@ type Input struct {
 	ID string `toml:"id"`
 	// Layer picks the layer of a GeoPackage with several.
 	Layer string `toml:"layer"`
-	// Table, when set, is a CSV file holding the counts, joined on ID.
+	// Table is a CSV file holding the counts, joined on ID; optional.
 	Table *Table `toml:"table"`
 	// Mask lists polygon files of places where nobody lives (water,
 	// parks, airports); dots are kept out of them.
@@ -74,16 +85,19 @@ type Input struct {
 
 // Table is a CSV count table joined onto the areas.
 type Table struct {
+	// File is the CSV file, relative to the map file.
 	File string `toml:"file"`
 	// Key is the table's column holding the area key.
 	Key string `toml:"key"`
 	// SkipRows skips description rows under the header.
 	SkipRows int `toml:"skip_rows"`
-	// Key normalisation, applied to both sides: trim white space, strip a
-	// fixed prefix, keep the last N characters.
-	Trim        bool   `toml:"trim"`
+	// Key normalisation, applied to both sides, in this order: Trim drops
+	// white space around keys.
+	Trim bool `toml:"trim"`
+	// StripPrefix removes this prefix from keys that start with it.
 	StripPrefix string `toml:"strip_prefix"`
-	KeepLast    int    `toml:"keep_last"`
+	// KeepLast keeps the last N characters of longer keys (0: all).
+	KeepLast int `toml:"keep_last"`
 	// NullAsZero reads "-", "(X)", "N", "null", empty … as 0 and reports
 	// how many cells it zeroed; without it they are errors.
 	NullAsZero bool `toml:"null_as_zero"`
@@ -121,9 +135,12 @@ func (t *Table) delimiter() rune {
 
 // Tiles sets the pyramid.
 type Tiles struct {
+	// MinZoom is the lowest zoom written, 0 to 22.
 	MinZoom int `toml:"min_zoom"`
+	// MaxZoom is the deepest zoom written, MinZoom to 22.
 	MaxZoom int `toml:"max_zoom"`
-	Size    int `toml:"size"`
+	// Size is the tile size in pixels, 256 or 512.
+	Size int `toml:"size"`
 	// HiDPI also writes {z}/{x}/{y}@2x.png tiles of twice the pixels for
 	// high-density screens.
 	HiDPI bool `toml:"hidpi"`
@@ -131,20 +148,27 @@ type Tiles struct {
 
 // Dots sets the look of dots.
 type Dots struct {
-	// Diameter in CSS pixels at the deepest zoom; each zoom out halves the
+	// Diameter is the dot's diameter in CSS pixels at the deepest zoom; each zoom out halves the
 	// dot's area (a factor √2 in diameter), down to MinDiameter; below it
 	// dots keep their size and fade instead, so the ink still halves per
 	// zoom out.
-	Diameter    float64 `toml:"diameter"`
+	Diameter float64 `toml:"diameter"`
+	// MinDiameter is the smallest drawn diameter, above 0 and at most
+	// Diameter.
 	MinDiameter float64 `toml:"min_diameter"`
-	Opacity     float64 `toml:"opacity"`
+	// Opacity is a dot's opacity, above 0 and at most 1.
+	Opacity float64 `toml:"opacity"`
 }
 
 // Category is one group of people with its own colour.
 type Category struct {
-	Key    string   `toml:"key"`
-	Label  string   `toml:"label"`
-	Color  string   `toml:"color"`
+	// Key identifies the category; it seeds its dots, so renaming it moves them.
+	Key string `toml:"key"`
+	// Label names the category in the legend and viewer.
+	Label string `toml:"label"`
+	// Color is the dots' colour, #rrggbb.
+	Color string `toml:"color"`
+	// Fields are the count fields (or table columns) summed for it.
 	Fields []string `toml:"fields"`
 	// FieldsMOE, for survey tables, names the fields holding each count
 	// field's published 90% margin of error, one for each of Fields in the
