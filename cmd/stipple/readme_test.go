@@ -23,15 +23,23 @@ const (
 )
 
 // fieldDocs reads the doc comments of the struct fields in package
-// tiles/mapfile, by "Type.Field".
+// tiles/mapfile, and in render/theme whose Text is the [theme.text]
+// table, by "Type.Field".
 func fieldDocs(t *testing.T) map[string]string {
 	t.Helper()
 	fset := token.NewFileSet()
-	pkgs, err := parser.ParseDir(fset, "../../tiles/mapfile", func(fi os.FileInfo) bool { return !strings.HasSuffix(fi.Name(), "_test.go") }, parser.ParseComments)
-	if err != nil {
-		t.Fatal(err)
-	}
 	docs := map[string]string{}
+	for _, dir := range []string{"../../tiles/mapfile", "../../render/theme"} {
+		pkgs, err := parser.ParseDir(fset, dir, func(fi os.FileInfo) bool { return !strings.HasSuffix(fi.Name(), "_test.go") }, parser.ParseComments)
+		if err != nil {
+			t.Fatal(err)
+		}
+		addDocs(docs, pkgs)
+	}
+	return docs
+}
+
+func addDocs(docs map[string]string, pkgs map[string]*ast.Package) {
 	for _, p := range pkgs {
 		for _, f := range p.Files {
 			ast.Inspect(f, func(n ast.Node) bool {
@@ -58,7 +66,6 @@ func fieldDocs(t *testing.T) map[string]string {
 			})
 		}
 	}
-	return docs
 }
 
 // keyRow is one map-file key.

@@ -50,10 +50,12 @@ type Text struct {
 	// RowsWithoutArea says how many people are in count rows that match no
 	// area: {people}.
 	RowsWithoutArea string `toml:"rows_without_area"`
-	// People, Dots and All head the print legend's columns and total row.
+	// People heads the print legend's people column.
 	People string `toml:"people"`
-	Dots   string `toml:"dots"`
-	All    string `toml:"all"`
+	// Dots heads the print legend's dots column.
+	Dots string `toml:"dots"`
+	// All names the print legend's total row.
+	All string `toml:"all"`
 	// Scale is the print scale bar's caption: {denominator}, {latitude}.
 	Scale string `toml:"scale"`
 	// ScaleUndefined replaces it when the projection has no scale at the

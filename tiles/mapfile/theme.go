@@ -20,10 +20,10 @@ type ThemeTable struct {
 	// Ground is the map's ground colour, #rrggbb.
 	Ground string `toml:"ground"`
 	// Font is a TrueType font file (.ttf, or .otf with TrueType outlines)
-	// for the legends, print pages and viewer; FontBold its bold cut
-	// (without it, bold text uses Font). Relative to the file that names
-	// them.
-	Font     string `toml:"font"`
+	// for the legends, print pages and viewer, relative to the file that
+	// names it.
+	Font string `toml:"font"`
+	// FontBold is the font's bold cut (without it, bold text uses Font).
 	FontBold string `toml:"font_bold"`
 	// Text replaces any of the words around the map ([theme.text]).
 	Text theme.Text `toml:"text"`
