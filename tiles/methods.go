@@ -102,6 +102,16 @@ func MethodsText(m *Metadata) string {
 		}
 		fmt.Fprintf(&b, "; %s on the areas (stipple inspect lists them).\n", plural(me.GeometryNotes, "geometry note", "geometry notes"))
 	}
+	if ms := m.Measures; ms != nil && ms.H != nil && ms.M != nil {
+		b.WriteString("\nMixing measures (Theil & Finizza 1971; Reardon & Firebaugh 2002; per-area figures in " + ms.AreaTable + "):\n")
+		fmt.Fprintf(&b, "- Theil's H = %.3f: how unevenly the groups are spread over the areas, from 0 (every area has the whole map's mix) to 1 (each area holds one group only).\n", *ms.H)
+		fmt.Fprintf(&b, "- Mutual information M = %.3f: H times the entropy of the whole map's mix of groups, in natural units.\n", *ms.M)
+		if iv := ms.Intervals; iv != nil && iv.H[0] != nil && iv.H[1] != nil {
+			fmt.Fprintf(&b, "- The counts are survey estimates: over %d draws of the counts within their margins of error (seed %d), %.0f%% of the values of H lie between %.3f and %.3f.\n",
+				iv.Draws, iv.Seed, 100*iv.Level, *iv.H[0], *iv.H[1])
+		}
+		b.WriteString("These measure evenness; exposure, concentration, centralization and clustering are other sides of segregation (Massey & Denton 1988).\n")
+	}
 	fmt.Fprintf(&b, "\nCaution: %s\n", me.Caution)
 	if m.Version != "" {
 		fmt.Fprintf(&b, "\nMade with stipple %s.\n", m.Version)

@@ -431,6 +431,10 @@ func TestMeasuresBesideTheMap(t *testing.T) {
 	if err != nil || len(rows) != 1+len(in.Layer.Features) || rows[0][0] != "id" || rows[1][0] != in.Layer.Features[0].ID {
 		t.Fatalf("areas.csv: %v rows (%v); want a header and %d areas", len(rows), err, len(in.Layer.Features))
 	}
+	methods, _ := os.ReadFile(filepath.Join(m.Out, "methods.txt"))
+	if !strings.Contains(string(methods), fmt.Sprintf("- Theil's H = %.3f: how unevenly", x.H)) {
+		t.Errorf("methods.txt does not state H:\n%s", methods)
+	}
 	alt, _ := os.ReadFile(filepath.Join(m.Out, "alt.txt"))
 	if !strings.Contains(string(alt), fmt.Sprintf("Theil's H, how unevenly the groups are spread over the areas (0 when every area has the whole map's mix, 1 when each area holds one group), is %.3f.", x.H)) {
 		t.Errorf("alt.txt does not state H: %s", alt)
@@ -483,5 +487,34 @@ func TestEstimatesCarryIntervals(t *testing.T) {
 	}
 	if *zero.Intervals.H[0] != *zero.H || *zero.Intervals.H[1] != *zero.H {
 		t.Errorf("zero margins: H interval [%v, %v]; want both %v", *zero.Intervals.H[0], *zero.Intervals.H[1], *zero.H)
+	}
+}
+
+// TestCategoryKeyRenameReplaces: dots are seeded by category key, so a
+// renamed key places them again (the sampling fingerprint holds the keys),
+// and the tiles differ from those of the old key.
+func TestCategoryKeyRenameReplaces(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	if _, err := Run(ctx, m, Options{Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	before := published(t, m.Out)
+	m.Categories[0].Key = "north"
+	s, err := Run(ctx, m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.StoreReused {
+		t.Fatal("a renamed category key reused the old dots")
+	}
+	changed := 0
+	for p, b := range published(t, m.Out) {
+		if strings.Count(filepath.ToSlash(p), "/") == 2 && !bytes.Equal(b, before[p]) {
+			changed++
+		}
+	}
+	if changed == 0 {
+		t.Error("no tile changed with the category's key")
 	}
 }
