@@ -6,9 +6,10 @@ import (
 	"math"
 	"strings"
 
-	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
+	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/sink"
@@ -116,17 +117,29 @@ func PutReferences(ctx context.Context, out sink.Sink, m *mapfile.Map) error {
 	return tiles.PutReference(ctx, out, refs)
 }
 
-// refBound is the box round a reference layer's shapes (empty when none).
-func refBound(r tiles.Reference) orb.Bound {
-	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
-	for _, l := range r.Labels {
-		b = b.Extend(l.At)
+// cssPxMM is one CSS pixel on paper: 1/96 inch (CSS Values and Units
+// Level 3, section 5.2).
+const cssPxMM = 25.4 / 96
+
+// printReferences reads the map's reference layers for a print page:
+// widths from CSS pixels to millimetres, labels in placement order.
+func printReferences(m *mapfile.Map) ([]page.Reference, error) {
+	refs, err := LoadReferences(m)
+	if err != nil {
+		return nil, err
 	}
-	for _, ln := range r.Lines {
-		b = b.Union(ln.Bound())
+	var out []page.Reference
+	for _, r := range refs {
+		c, err := render.ParseHex(r.Color)
+		if err != nil {
+			return nil, fmt.Errorf("%s: [[reference]] color %q: %w", m.Path, r.Color, err)
+		}
+		pr := page.Reference{Kind: r.Kind, Above: r.Above, Color: c, WidthMM: r.Width * cssPxMM, Lines: r.Lines, Areas: r.Areas}
+		tiles.SortLabels(r.Labels)
+		for _, l := range r.Labels {
+			pr.Labels = append(pr.Labels, page.Label{Name: l.Name, Rank: l.Rank, At: l.At})
+		}
+		out = append(out, pr)
 	}
-	for _, p := range r.Areas {
-		b = b.Union(p.Bound())
-	}
-	return b
+	return out, nil
 }
