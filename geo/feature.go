@@ -15,6 +15,11 @@ type Feature struct {
 	// Geometry is the area in longitude/latitude degrees (WGS 84). Outer
 	// rings come first in each polygon, holes after; winding is not relied on.
 	Geometry orb.MultiPolygon
+	// Points and Lines hold point and line geometries (place labels, roads,
+	// rivers) for reference layers. Only a reader asked for them fills
+	// them (geojson.Options.PointsAndLines); areas are always polygons.
+	Points orb.MultiPoint
+	Lines  orb.MultiLineString
 	// Props holds the attribute values by field name. Values are string,
 	// float64, int64, bool or nil.
 	Props map[string]any

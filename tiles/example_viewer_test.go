@@ -47,6 +47,7 @@ func ExampleWriteViewerLayers() {
 	// embed.html
 	// index.html
 	// map-data.js
+	// reference.js
 	// theme.css
 	// tile-index/0-12.js
 	// tile-index/1-12.js

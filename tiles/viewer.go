@@ -19,7 +19,7 @@ import (
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
-//go:embed viewer/page.html viewer/viewer.js viewer/viewer.css
+//go:embed viewer/page.html viewer/viewer.js viewer/viewer.css viewer/reference.js
 var viewerFiles embed.FS
 
 // Files the viewer writes beside the tiles.
@@ -174,7 +174,12 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 	// The scripts, styles and data first; the pages, which are the entry
 	// points a reader opens, last, so a folder being published never
 	// offers a page whose files are not there yet.
-	for _, name := range []string{viewerJS, viewerCSS} {
+	if ok, err := hasReference(ctx, out); err != nil {
+		return fmt.Errorf("tiles: viewer: %w", err)
+	} else if ok {
+		data.Reference = ReferenceScript
+	}
+	for _, name := range []string{viewerJS, viewerCSS, refJS} {
 		b, err := viewerFiles.ReadFile("viewer/" + name)
 		if err != nil {
 			return fmt.Errorf("tiles: %w", err)
@@ -226,6 +231,8 @@ type viewerData struct {
 	Format string            `json:"format"`
 	Layers []viewerLayerData `json:"layers"`
 	Sets   []tileSetData     `json:"sets"`
+	// Reference is ReferenceScript when the folder has reference layers.
+	Reference string `json:"reference,omitempty"`
 }
 
 type viewerLayerData struct {

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/demo"
 	"github.com/stipple-maps/stipple/geo/geojson"
 	"github.com/stipple-maps/stipple/render"
@@ -504,8 +505,30 @@ func demoText() string {
 	for _, g := range demo.Groups {
 		fmt.Fprintf(&b, "\n[[category]]\nkey = %q\nlabel = %q\ncolor = %q\nfields = [%q]\n", g.Field, g.Label, g.Color, g.Field)
 	}
+	b.WriteString(demoReferences)
 	return b.String()
 }
+
+// demoReferences are the demo's invented reference layers.
+const demoReferences = `
+# Reference layers (invented): the river under the dots, roads and names over them.
+[[reference]]
+file = "water.geojson"
+kind = "areas"
+
+[[reference]]
+file = "roads.geojson"
+kind = "lines"
+above = true
+color = "#8d939c"
+width = 1.2
+
+[[reference]]
+file = "places.geojson"
+kind = "labels"
+name = "name"
+rank = "rank"
+`
 
 // writeDemoSource writes the demo's GeoJSON and map file under dir/source
 // and returns the parsed map.
@@ -516,6 +539,11 @@ func writeDemoSource(dir string) (*mapfile.Map, error) {
 	}
 	if err := geojson.Write(filepath.Join(src, "quillmere.geojson"), demo.City(1)); err != nil {
 		return nil, err
+	}
+	for name, l := range map[string]*geo.Layer{"places.geojson": demo.Places(), "roads.geojson": demo.Roads(), "water.geojson": demo.Water()} {
+		if err := geojson.Write(filepath.Join(src, name), l); err != nil {
+			return nil, err
+		}
 	}
 	path := filepath.Join(src, "quillmere.toml")
 	if err := os.WriteFile(path, []byte(demoText()), 0o644); err != nil {

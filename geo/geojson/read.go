@@ -23,6 +23,10 @@ type Options struct {
 	IDField string
 	// MaxBytes caps the file size; 0 means 4 GiB.
 	MaxBytes int64
+	// PointsAndLines also accepts Point, MultiPoint, LineString and
+	// MultiLineString geometries (RFC 7946, sections 3.1.2–3.1.5), read
+	// into Feature.Points and Feature.Lines; without it they are errors.
+	PointsAndLines bool
 }
 
 // Read reads the FeatureCollection in the file at path.
@@ -112,7 +116,11 @@ func Decode(path string, data []byte, opt Options) (*geo.Layer, error) {
 		if rf.Type != "Feature" {
 			return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "type", Message: fmt.Sprintf("type is %q; want \"Feature\"", rf.Type)}
 		}
-		if rf.Geometry != nil {
+		if rf.Geometry != nil && opt.PointsAndLines && pointOrLine(rf.Geometry.Type) {
+			if err := decodePointsLines(rf.Geometry, &f); err != nil {
+				return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "geometry", Message: err.Error()}
+			}
+		} else if rf.Geometry != nil {
 			g, err := decodeGeometry(rf.Geometry)
 			if err != nil {
 				return nil, &geo.Error{Path: path, Index: i, ID: f.ID, Field: "geometry", Message: err.Error()}
@@ -198,6 +206,77 @@ func decodeGeometry(g *rawGeometry) (orb.MultiPolygon, error) {
 	default:
 		return nil, fmt.Errorf("geometry type %s is not Polygon or MultiPolygon", g.Type)
 	}
+}
+
+func pointOrLine(t string) bool {
+	return t == "Point" || t == "MultiPoint" || t == "LineString" || t == "MultiLineString"
+}
+
+// decodePointsLines reads a point or line geometry into f.Points or f.Lines.
+func decodePointsLines(g *rawGeometry, f *geo.Feature) error {
+	switch g.Type {
+	case "Point":
+		var c []float64
+		if err := json.Unmarshal(g.Coordinates, &c); err != nil {
+			return fmt.Errorf("Point coordinates: %v", err)
+		}
+		p, err := position(c, "position")
+		if err != nil {
+			return err
+		}
+		f.Points = orb.MultiPoint{p}
+	case "MultiPoint", "LineString":
+		var c [][]float64
+		if err := json.Unmarshal(g.Coordinates, &c); err != nil {
+			return fmt.Errorf("%s coordinates: %v", g.Type, err)
+		}
+		pts := make([]orb.Point, 0, len(c))
+		for i, pc := range c {
+			p, err := position(pc, fmt.Sprintf("position %d", i))
+			if err != nil {
+				return err
+			}
+			pts = append(pts, p)
+		}
+		if g.Type == "MultiPoint" {
+			f.Points = pts
+			return nil
+		}
+		if len(pts) < 2 {
+			return fmt.Errorf("LineString has %d positions; want at least 2 (RFC 7946, section 3.1.4)", len(pts))
+		}
+		f.Lines = orb.MultiLineString{pts}
+	case "MultiLineString":
+		var c [][][]float64
+		if err := json.Unmarshal(g.Coordinates, &c); err != nil {
+			return fmt.Errorf("MultiLineString coordinates: %v", err)
+		}
+		for li, lc := range c {
+			line := make(orb.LineString, 0, len(lc))
+			for i, pc := range lc {
+				p, err := position(pc, fmt.Sprintf("line %d position %d", li, i))
+				if err != nil {
+					return err
+				}
+				line = append(line, p)
+			}
+			if len(line) < 2 {
+				return fmt.Errorf("line %d has %d positions; want at least 2 (RFC 7946, section 3.1.4)", li, len(line))
+			}
+			f.Lines = append(f.Lines, line)
+		}
+	}
+	return nil
+}
+
+func position(c []float64, what string) (orb.Point, error) {
+	if len(c) < 2 {
+		return orb.Point{}, fmt.Errorf("%s has %d values; want at least 2", what, len(c))
+	}
+	if math.IsNaN(c[0]) || math.IsNaN(c[1]) || math.IsInf(c[0], 0) || math.IsInf(c[1], 0) {
+		return orb.Point{}, fmt.Errorf("%s is not finite", what)
+	}
+	return orb.Point{c[0], c[1]}, nil
 }
 
 func polygon(c [][][]float64) (orb.Polygon, error) {

@@ -10,7 +10,9 @@ import (
 )
 
 // Write writes the layer as an RFC 7946 FeatureCollection: Polygon for a
-// one-part feature, MultiPolygon otherwise, properties as they are.
+// one-part feature, MultiPolygon otherwise (Point, MultiPoint, LineString
+// or MultiLineString for a feature with Points or Lines), properties as
+// they are.
 func Write(path string, l *geo.Layer) error {
 	type geom struct {
 		Type        string `json:"type"`
@@ -28,7 +30,16 @@ func Write(path string, l *geo.Layer) error {
 	}{Type: "FeatureCollection"}
 	for _, f := range l.Features {
 		g := geom{Type: "MultiPolygon", Coordinates: coords(f.Geometry)}
-		if len(f.Geometry) == 1 {
+		switch {
+		case len(f.Points) == 1:
+			g = geom{Type: "Point", Coordinates: [2]float64(f.Points[0])}
+		case len(f.Points) > 1:
+			g = geom{Type: "MultiPoint", Coordinates: f.Points}
+		case len(f.Lines) == 1:
+			g = geom{Type: "LineString", Coordinates: f.Lines[0]}
+		case len(f.Lines) > 1:
+			g = geom{Type: "MultiLineString", Coordinates: f.Lines}
+		case len(f.Geometry) == 1:
 			g = geom{Type: "Polygon", Coordinates: coords(f.Geometry)[0]}
 		}
 		fc.Features = append(fc.Features, feature{"Feature", f.ID, f.Props, g})

@@ -21,6 +21,11 @@ type Options struct {
 	IDField string
 	// Layer picks a GeoPackage layer when the file has several.
 	Layer string
+	// PointsAndLines also reads point and line geometries (into
+	// Feature.Points and Feature.Lines), for reference layers. GeoJSON
+	// files only: a Shapefile or GeoPackage of points or lines is an
+	// error that says to convert it.
+	PointsAndLines bool
 }
 
 // Result is a layer in lon/lat with what was found on the way.
@@ -58,7 +63,7 @@ func File(path string, opt Options) (*Result, error) {
 	var err error
 	switch ext {
 	case ".geojson", ".json":
-		res.Layer, err = geojson.Read(path, geojson.Options{IDField: opt.IDField})
+		res.Layer, err = geojson.Read(path, geojson.Options{IDField: opt.IDField, PointsAndLines: opt.PointsAndLines})
 	case ".shp":
 		var ws []shapefile.Warning
 		res.Layer, ws, err = shapefile.ReadAll(path, shapefile.Options{IDField: opt.IDField})
@@ -71,6 +76,9 @@ func File(path string, opt Options) (*Result, error) {
 		return nil, fmt.Errorf("read: %s: unknown file type %q; stipple reads .geojson, .json, .shp and .gpkg", path, filepath.Ext(path))
 	}
 	if err != nil {
+		if opt.PointsAndLines && ext != ".geojson" && ext != ".json" {
+			return nil, fmt.Errorf("%w (points and lines are read from GeoJSON: convert the file, e.g. ogr2ogr -f GeoJSON out.geojson %s)", err, filepath.Base(path))
+		}
 		return nil, err
 	}
 	if err := toLonLat(res); err != nil {
@@ -106,16 +114,41 @@ func toLonLat(res *Result) error {
 	}
 	for i := range l.Features {
 		f := &l.Features[i]
-		for _, poly := range f.Geometry {
-			for _, ring := range poly {
-				for k, p := range ring {
-					lon, lat := crs.ToLonLat(p[0], p[1])
-					if math.IsNaN(lon) || math.IsNaN(lat) {
-						return &geo.Error{Path: l.Path, Index: f.Index, ID: f.ID, Field: "geometry",
-							Message: fmt.Sprintf("point (%g, %g) is outside the area %s can convert", p[0], p[1], crs.Name)}
-					}
-					ring[k] = orb.Point{lon, lat}
+		if err := eachPoint(f, func(p *orb.Point) error {
+			lon, lat := crs.ToLonLat(p[0], p[1])
+			if math.IsNaN(lon) || math.IsNaN(lat) {
+				return &geo.Error{Path: l.Path, Index: f.Index, ID: f.ID, Field: "geometry",
+					Message: fmt.Sprintf("point (%g, %g) is outside the area %s can convert", p[0], p[1], crs.Name)}
+			}
+			*p = orb.Point{lon, lat}
+			return nil
+		}); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// eachPoint calls fn on every vertex of f: its polygons, points and lines.
+func eachPoint(f *geo.Feature, fn func(*orb.Point) error) error {
+	for _, poly := range f.Geometry {
+		for _, ring := range poly {
+			for k := range ring {
+				if err := fn(&ring[k]); err != nil {
+					return err
 				}
+			}
+		}
+	}
+	for k := range f.Points {
+		if err := fn(&f.Points[k]); err != nil {
+			return err
+		}
+	}
+	for _, line := range f.Lines {
+		for k := range line {
+			if err := fn(&line[k]); err != nil {
+				return err
 			}
 		}
 	}
@@ -123,16 +156,16 @@ func toLonLat(res *Result) error {
 }
 
 func checkLonLat(l *geo.Layer) error {
-	for _, f := range l.Features {
-		for _, poly := range f.Geometry {
-			for _, ring := range poly {
-				for _, p := range ring {
-					if math.Abs(p[0]) > 180.0000001 || math.Abs(p[1]) > 90.0000001 {
-						return &geo.Error{Path: l.Path, Index: f.Index, ID: f.ID, Field: "geometry",
-							Message: fmt.Sprintf("coordinates look projected: (%g, %g) is not longitude/latitude, and the file names no coordinate system; add a .prj or convert it, e.g. ogr2ogr -t_srs EPSG:4326 out.gpkg in", p[0], p[1])}
-					}
-				}
+	for i := range l.Features {
+		f := &l.Features[i]
+		if err := eachPoint(f, func(p *orb.Point) error {
+			if math.Abs(p[0]) > 180.0000001 || math.Abs(p[1]) > 90.0000001 {
+				return &geo.Error{Path: l.Path, Index: f.Index, ID: f.ID, Field: "geometry",
+					Message: fmt.Sprintf("coordinates look projected: (%g, %g) is not longitude/latitude, and the file names no coordinate system; add a .prj or convert it, e.g. ogr2ogr -t_srs EPSG:4326 out.gpkg in", p[0], p[1])}
 			}
+			return nil
+		}); err != nil {
+			return err
 		}
 	}
 	return nil

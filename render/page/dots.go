@@ -75,7 +75,7 @@ func (l *Layout) Place(dots DotSource) (*Page, error) {
 	if l.spec.Outlines != nil {
 		outlines = l.outlines()
 	}
-	p.items = l.furniture(p.counts, outlines)
+	p.items = l.withReferences(l.furniture(p.counts, outlines))
 	return p, nil
 }
 

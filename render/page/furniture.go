@@ -19,6 +19,7 @@ const (
 	kCircle             // disc centred X, Y, radius R, filled
 	kPath               // polyline rings in Rings, stroked, clipped to the frame
 	kDots               // the dots, inside the frame
+	kArea               // polygon rings in Rings, filled even-odd (and stroked), clipped to the frame
 )
 
 // item is one mark on the page, in millimetres. Both the PNG and the PDF

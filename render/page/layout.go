@@ -48,6 +48,9 @@ type Spec struct {
 	// Outlines, when not nil, are drawn as thin lines over the dots
 	// (longitude/latitude polygons, e.g. the areas' boundaries).
 	Outlines []orb.MultiPolygon
+	// References are reference layers (place names, roads, water) drawn
+	// under or over the dots; labels are vector text in the PDF.
+	References []Reference
 	// Font sets the text (nil: render.DefaultFont); the PDF embeds it.
 	Font *render.Font
 	// Words are the page's own words (column heads, total, scale

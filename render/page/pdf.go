@@ -133,6 +133,8 @@ func (p *Page) WritePDF(w io.Writer, mode DotMode) error {
 		case kCircle:
 			setFill(*it.fill)
 			pdf.Circle(it.x, it.y, it.r, "F")
+		case kArea:
+			p.pdfArea(pdf, it)
 		case kPath:
 			f := p.frame
 			pdf.ClipRect(f.X, f.Y, f.W, f.H, false)

@@ -54,6 +54,8 @@ func (p *Page) Raster() *image.RGBA {
 			dc.DrawCircle(it.x*k, it.y*k, it.r*k)
 			dc.SetColor(*it.fill)
 			dc.Fill()
+		case kArea:
+			p.rasterShape(dc, it, k, 0, 0)
 		case kPath:
 			f := p.frame
 			dc.DrawRectangle(f.X*k, f.Y*k, f.W*k, f.H*k)
@@ -75,12 +77,14 @@ func (p *Page) Raster() *image.RGBA {
 }
 
 // DotLayer draws the map frame alone at the page's DPI: the dots over
-// white paper, nothing else. The PDF embeds it as the map's raster.
+// white paper (with the reference layers under the dots), nothing else.
+// The PDF embeds it as the map's raster.
 func (p *Page) DotLayer() *image.RGBA {
 	img := image.NewRGBA(image.Rect(0, 0, p.framePx.Dx(), p.framePx.Dy()))
 	for i := range img.Pix {
 		img.Pix[i] = 0xff
 	}
+	p.drawUnder(img)
 	p.drawDots(img, 0, 0)
 	return img
 }

@@ -58,6 +58,9 @@ type Map struct {
 	// Layers, when set, are two or more maps rendered into one folder with
 	// a layer switch and a compare divider (see Layer).
 	Layers []Layer `toml:"layer"`
+	// References are reference layers (place names, roads, water) from
+	// the map maker's own files, drawn with the dots (see Reference).
+	References []Reference `toml:"reference"`
 	// ThemeTable is the [theme] table as written.
 	ThemeTable ThemeTable `toml:"theme"`
 
@@ -346,6 +349,9 @@ func (m *Map) check(md toml.MetaData, lines *Lines, data []byte) error {
 		return errAt("wants an opacity above 0 and at most 1", "dots", "opacity")
 	}
 	if err := m.checkCategories(lines, ""); err != nil {
+		return err
+	}
+	if err := m.checkReferences(lines); err != nil {
 		return err
 	}
 	if m.Layers != nil {

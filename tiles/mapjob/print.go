@@ -193,6 +193,9 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 			spec.Subtitle = fmt.Sprintf("%s people in %s areas", render.FormatCount(total), render.FormatCount(float64(res.Areas)))
 		}
 	}
+	if spec.References, err = printReferences(m); err != nil {
+		return nil, err
+	}
 	lay, err := page.NewLayout(spec)
 	if err != nil {
 		return nil, err

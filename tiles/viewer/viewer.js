@@ -362,6 +362,7 @@
       divider.hidden = true;
     }
     drawScale();
+    if (window.stippleReferenceView) window.stippleReferenceView(st.x, st.y, st.z, sz.w, sz.h);
     var lim = zoomLimits();
     byId("st-in").disabled = st.z >= lim[1] - 1e-9;
     byId("st-out").disabled = st.z <= lim[0] + 1e-9;
