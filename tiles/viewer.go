@@ -86,7 +86,9 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 	}
 	data := viewerData{Format: dataFormat}
 	th := theme.Or(layers[0].Meta.Theme)
-	pages := pageData{Title: layers[0].Meta.Title, Multi: len(layers) > 1, CautionShort: th.Text.CautionShort}
+	title := layers[0].Meta.Title
+	pages := pageData{Title: title, Multi: len(layers) > 1, CautionShort: th.Text.CautionShort, T: th.Text,
+		MapLabel: theme.Fill(th.Text.ViewerMapLabel, "title", title), StillAlt: theme.Fill(th.Text.ViewerStillAlt, "title", title)}
 	keys := map[string]bool{}
 	var sets []tileSet
 	for i, l := range layers {
@@ -133,7 +135,7 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 			}
 		}
 		data.Layers = append(data.Layers, vl)
-		pages.Layers = append(pages.Layers, pageLayer(i, key, label, m))
+		pages.Layers = append(pages.Layers, pageLayer(i, key, label, m, th.Text))
 	}
 	for _, s := range sets {
 		data.Sets = append(data.Sets, s.public())
@@ -439,13 +441,20 @@ func encodeIndex(rows map[int][]int) tileIndex {
 	return idx
 }
 
-// pageData feeds viewer/page.html.
+// pageData feeds viewer/page.html. Every word of the page comes from the
+// first layer's theme: T holds the viewer's interface words (the fold
+// button's and the compare keys' second words ride on data-* attributes
+// for viewer.js), MapLabel and StillAlt are T's sentences with the title
+// filled in.
 type pageData struct {
 	Title        string
 	Embed        bool
 	Multi        bool
 	Outlines     bool
 	CautionShort string
+	T            theme.Text
+	MapLabel     string
+	StillAlt     string
 	Layers       []legendData
 }
 
@@ -460,7 +469,8 @@ type legendRow struct {
 	Label, Color, People, Share string
 }
 
-func pageLayer(i int, key, label string, m *Metadata) legendData {
+// pageLayer is layer i's legend; tx gives the count's tooltip.
+func pageLayer(i int, key, label string, m *Metadata, tx theme.Text) legendData {
 	d := legendData{N: i, Key: key, Label: label, Title: m.Title, Note: m.Note, Caution: m.Caution, Credit: m.Theme.CreditLine(m.Credit)}
 	total := 0.0
 	for _, c := range m.Categories {
@@ -469,7 +479,7 @@ func pageLayer(i int, key, label string, m *Metadata) legendData {
 	for _, c := range m.Categories {
 		share := ""
 		if total > 0 {
-			share = fmt.Sprintf("%.1f%%", 100*c.People/total)
+			share = theme.Fill(tx.ViewerShare, "share", fmt.Sprintf("%.1f%%", 100*c.People/total))
 		}
 		d.Rows = append(d.Rows, legendRow{Label: c.Label, Color: safeColor(c.Color), People: render.FormatCount(c.People), Share: share})
 	}

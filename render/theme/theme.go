@@ -10,6 +10,7 @@ package theme
 import (
 	"fmt"
 	"image/color"
+	"regexp"
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
@@ -61,6 +62,59 @@ type Text struct {
 	// ScaleUndefined replaces it when the projection has no scale at the
 	// map's centre.
 	ScaleUndefined string `toml:"scale_undefined"`
+
+	// ViewerLanguage is the language of these words as a BCP 47 tag
+	// ("en", "fr", "de-CH"), which the viewer's pages declare (lang) so
+	// screen readers pronounce them right.
+	ViewerLanguage string `toml:"viewer_language"`
+	// ViewerMapLabel is what a screen reader says of the viewer's map, with
+	// {title} for the map's title.
+	ViewerMapLabel string `toml:"viewer_map_label"`
+	// ViewerStillAlt describes the still that an embed shows without
+	// JavaScript, with {title} for the map's title.
+	ViewerStillAlt string `toml:"viewer_still_alt"`
+	// ViewerControls names the viewer's group of zoom buttons for screen
+	// readers.
+	ViewerControls string `toml:"viewer_controls"`
+	// ViewerZoomIn names the viewer's zoom-in button.
+	ViewerZoomIn string `toml:"viewer_zoom_in"`
+	// ViewerZoomInTip is the zoom-in button's tooltip, naming its keyboard
+	// key.
+	ViewerZoomInTip string `toml:"viewer_zoom_in_tip"`
+	// ViewerZoomOut names the viewer's zoom-out button.
+	ViewerZoomOut string `toml:"viewer_zoom_out"`
+	// ViewerZoomOutTip is the zoom-out button's tooltip, naming its
+	// keyboard key.
+	ViewerZoomOutTip string `toml:"viewer_zoom_out_tip"`
+	// ViewerFit is the button that shows the whole map.
+	ViewerFit string `toml:"viewer_fit"`
+	// ViewerFitTip is the fit button's tooltip, naming its keyboard key.
+	ViewerFitTip string `toml:"viewer_fit_tip"`
+	// ViewerAreas is the button that draws the counting areas' boundaries.
+	ViewerAreas string `toml:"viewer_areas"`
+	// ViewerAreasTip is the areas button's tooltip.
+	ViewerAreasTip string `toml:"viewer_areas_tip"`
+	// ViewerHideKey is the button that folds the viewer's key.
+	ViewerHideKey string `toml:"viewer_hide_key"`
+	// ViewerShowKey is the same button once the key is folded.
+	ViewerShowKey string `toml:"viewer_show_key"`
+	// ViewerShare is a legend count's tooltip: {share} is the category's
+	// share of all people, "12.5%".
+	ViewerShare string `toml:"viewer_share"`
+	// ViewerMapShown names, for screen readers, the switch between the
+	// maps of a viewer with several.
+	ViewerMapShown string `toml:"viewer_map_shown"`
+	// ViewerCompare is the button that shows two maps side by side.
+	ViewerCompare string `toml:"viewer_compare"`
+	// ViewerRightShows names the list that picks the map right of the
+	// divider.
+	ViewerRightShows string `toml:"viewer_right_shows"`
+	// ViewerDivider names the divider between the two compared maps.
+	ViewerDivider string `toml:"viewer_divider"`
+	// ViewerLeftSide heads the key of the map left of the divider.
+	ViewerLeftSide string `toml:"viewer_left_side"`
+	// ViewerRightSide heads the key of the map right of the divider.
+	ViewerRightSide string `toml:"viewer_right_side"`
 }
 
 // DefaultText is the English text.
@@ -78,6 +132,28 @@ var DefaultText = Text{
 	All:             "All",
 	Scale:           "Scale 1 : {denominator}, true at the map centre ({latitude})",
 	ScaleUndefined:  "Scale not defined at the map centre.",
+
+	ViewerLanguage:   "en",
+	ViewerMapLabel:   "{title}. Dot-density map: drag or use the arrow keys to move, + and - to zoom.",
+	ViewerStillAlt:   "{title}: a still of the whole map with its key; the zoomable map needs JavaScript.",
+	ViewerControls:   "Map view",
+	ViewerZoomIn:     "Zoom in",
+	ViewerZoomInTip:  "Zoom in (+)",
+	ViewerZoomOut:    "Zoom out",
+	ViewerZoomOutTip: "Zoom out (-)",
+	ViewerFit:        "Fit",
+	ViewerFitTip:     "Show the whole map (0)",
+	ViewerAreas:      "Areas",
+	ViewerAreasTip:   "Draw the boundaries of the counting areas",
+	ViewerHideKey:    "Hide key",
+	ViewerShowKey:    "Show key",
+	ViewerShare:      "{share} of all",
+	ViewerMapShown:   "Map shown",
+	ViewerCompare:    "Compare",
+	ViewerRightShows: "Right side shows",
+	ViewerDivider:    "Divider between the two maps",
+	ViewerLeftSide:   "Left of the divider",
+	ViewerRightSide:  "Right of the divider",
 }
 
 // Placeholders lists, for each Text key (its TOML name) that has them,
@@ -88,6 +164,7 @@ var Placeholders = map[string][]string{
 	"beyond_limit":      {"{people}"},
 	"rows_without_area": {"{people}"},
 	"scale":             {"{denominator}", "{latitude}"},
+	"viewer_share":      {"{share}"},
 }
 
 // Default is the built-in theme: DefaultGround, Liberation Sans and the
@@ -132,6 +209,17 @@ func (t *Text) fields() []textField {
 		{"beyond_limit", &t.BeyondLimit}, {"rows_without_area", &t.RowsWithoutArea},
 		{"people", &t.People}, {"dots", &t.Dots}, {"all", &t.All},
 		{"scale", &t.Scale}, {"scale_undefined", &t.ScaleUndefined},
+		{"viewer_language", &t.ViewerLanguage}, {"viewer_map_label", &t.ViewerMapLabel},
+		{"viewer_still_alt", &t.ViewerStillAlt}, {"viewer_controls", &t.ViewerControls},
+		{"viewer_zoom_in", &t.ViewerZoomIn}, {"viewer_zoom_in_tip", &t.ViewerZoomInTip},
+		{"viewer_zoom_out", &t.ViewerZoomOut}, {"viewer_zoom_out_tip", &t.ViewerZoomOutTip},
+		{"viewer_fit", &t.ViewerFit}, {"viewer_fit_tip", &t.ViewerFitTip},
+		{"viewer_areas", &t.ViewerAreas}, {"viewer_areas_tip", &t.ViewerAreasTip},
+		{"viewer_hide_key", &t.ViewerHideKey}, {"viewer_show_key", &t.ViewerShowKey},
+		{"viewer_share", &t.ViewerShare}, {"viewer_map_shown", &t.ViewerMapShown},
+		{"viewer_compare", &t.ViewerCompare}, {"viewer_right_shows", &t.ViewerRightShows},
+		{"viewer_divider", &t.ViewerDivider}, {"viewer_left_side", &t.ViewerLeftSide},
+		{"viewer_right_side", &t.ViewerRightSide},
 	}
 }
 
@@ -144,9 +232,18 @@ func (t *Text) field(key string) *string {
 	panic("theme: no text key " + key)
 }
 
+// languageTag is the shape of a BCP 47 language tag: subtags of letters
+// and digits, 1 to 8 each, joined by hyphens, the first of letters only
+// (RFC 5646, section 2.1, the "langtag" and "privateuse" forms).
+var languageTag = regexp.MustCompile(`^[A-Za-z]{1,8}(-[A-Za-z0-9]{1,8})*$`)
+
 // Check returns an error naming the first key whose text lacks one of its
-// placeholders; key is the TOML name.
+// placeholders, or whose language is not shaped as a BCP 47 tag; key is
+// the TOML name.
 func (t Text) Check() (key string, err error) {
+	if t.ViewerLanguage != "" && !languageTag.MatchString(t.ViewerLanguage) {
+		return "viewer_language", fmt.Errorf("%q is not a language tag such as \"en\" or \"fr-CA\"", t.ViewerLanguage)
+	}
 	for _, f := range t.fields() {
 		for _, ph := range Placeholders[f.key] {
 			if *f.p != "" && !strings.Contains(*f.p, ph) {

@@ -434,7 +434,7 @@
       el.hidden = !(isLeft || isRight);
       el.style.order = isRight ? "1" : "0";
       side.hidden = st.right < 0;
-      side.textContent = isRight ? "Right of the divider" : "Left of the divider";
+      side.textContent = isRight ? side.dataset.right : side.dataset.left;
     });
   }
   function setLayer(n) {
@@ -470,7 +470,7 @@
     keyEl.classList.toggle("st-folded", folded);
     var b = byId("st-fold");
     b.setAttribute("aria-expanded", folded ? "false" : "true");
-    b.textContent = folded ? "Show key" : "Hide key";
+    b.textContent = folded ? b.dataset.show : b.dataset.hide;
     schedule();
   }
 
