@@ -136,6 +136,10 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *ma
 	r.NotDrawn = tot.NotDrawn
 	if md.Measures != nil {
 		r.H, r.M = md.Measures.H, md.Measures.M
+		r.MostDiverse = nil
+		for _, a := range md.Measures.MostDiverse {
+			r.MostDiverse = append(r.MostDiverse, a.ID)
+		}
 	}
 	r.Tiles, r.Tiles2x, r.Bytes = st.Tiles, st.Tiles2x, st.Bytes
 	r.Print = prints

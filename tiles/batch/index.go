@@ -100,6 +100,7 @@ func WriteIndex(dir string, f *File, rep *Report) error {
 		if r.H != nil && r.M != nil {
 			cd.H, cd.M = fmt.Sprintf("%.3f", *r.H), fmt.Sprintf("%.3f", *r.M)
 		}
+		cd.Diverse = strings.Join(r.MostDiverse, ", ")
 		if cd.Failed {
 			data.Failed++
 		}
@@ -135,7 +136,7 @@ type indexCard struct {
 	Failed                           bool
 	Viewer, Thumb, Legend, Meta, Def string
 	People, Note, Zooms, MB, Seconds string
-	H, M                             string
+	H, M, Diverse                    string
 	Areas                            int
 	Tiles                            int64
 	Rows                             []indexRow

@@ -66,6 +66,9 @@ func TestBatchMixingAddsUp(t *testing.T) {
 		if r.H == nil || *r.H != want.H || *r.M != want.M {
 			t.Errorf("%s: H %v M %v; want %v %v", r.Slug, r.H, r.M, want.H, want.M)
 		}
+		if len(r.MostDiverse) == 0 || len(r.MostDiverse) > mapjob.MostDiverse {
+			t.Errorf("%s: most diverse areas %v", r.Slug, r.MostDiverse)
+		}
 	}
 	b, err := os.ReadFile(filepath.Join(f.Out, SummaryJSON))
 	if err != nil {

@@ -91,6 +91,9 @@ type Result struct {
 	// (tiles.Measures); nil when undefined.
 	H *float64 `json:"theil_h"`
 	M *float64 `json:"mutual_information_m"`
+	// MostDiverse names the extent's areas of highest entropy diversity,
+	// most diverse first (tiles.Measures).
+	MostDiverse []string `json:"most_diverse_areas,omitempty"`
 }
 
 // Report is what a batch run did.
