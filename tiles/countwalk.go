@@ -217,6 +217,7 @@ func (cw *countWalk) combine(r *tileRenderer) error {
 	for s := range cw.order {
 		cw.put(<-s.res)
 	}
+	cw.w.counting.Add(-1)
 	if err != nil {
 		return err
 	}

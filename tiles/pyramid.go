@@ -66,6 +66,10 @@ type Stats struct {
 	// Planned is the number of tiles that hold dots, over all zooms and
 	// kinds: an estimate of the final Tiles + Tiles2x for progress displays.
 	Planned int64
+	// Counting is true while the count zooms (dots narrower than a pixel)
+	// are still being drawn: their tiles cost far more or less each than
+	// disc tiles, so a rate measured now does not tell the time left.
+	Counting bool
 }
 
 // Source is where the dots come from: a sorted dot store.
@@ -233,6 +237,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	// Creating a file costs tens to hundreds of microseconds of kernel time
 	// here, and more when the disk is busy; separate writers let the
 	// renderers go on meanwhile.
+	w.counting.Store(int64(len(walks)))
 	w.io = make(chan tileFile, 8*workers)
 	for i := 0; i < 2*workers+2; i++ {
 		iowg.Add(1)
@@ -349,6 +354,7 @@ type writer struct {
 	left      map[string]*int64
 	zoomStats map[string]*ZoomStats
 	io        chan tileFile
+	counting  atomic.Int64 // count walks not yet finished
 }
 
 func (w *writer) addDone(z int, p *pass, d ZoomStats) {
@@ -443,6 +449,7 @@ func (w *writer) account(j job, size int64, kept bool) error {
 	}
 	snap := w.st
 	w.mu.Unlock()
+	snap.Counting = w.counting.Load() > 0
 	if w.opt.Progress != nil {
 		snap.PerZoom = nil // the live map is not safe to share
 		w.opt.Progress(snap)
