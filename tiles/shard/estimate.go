@@ -55,9 +55,9 @@ var MeasuredRates = Rates{
 	DiscNsPerDot:   580,
 	TileNs:         0.123e6,
 	// sink.Dir.Put of a 4 KiB tile on the ext4 virtual disk of the same
-	// machines, less the same on tmpfs: 0.70–1.21 ms against 0.10–0.12 ms
-	// under load (BenchmarkTileFiles, BENCHMARKS.md "Tile files"); the
-	// lower figure, as a part's own writes overlap its drawing.
+	// machines less the same on tmpfs: 0.36–1.1 ms over three rounds at
+	// load 6–23 (BenchmarkTileFiles, BENCHMARKS.md "Tile files"); a part's
+	// own writes overlap its drawing, so a figure from the lower half.
 	FileNs:     0.6e6,
 	CountBytes: 6400,
 	DiscBytes:  3800,
