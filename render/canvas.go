@@ -274,6 +274,40 @@ func (c *Canvas) CountN(cat, px, py int, n uint32) {
 	c.touched = true
 }
 
+// AddHalf adds count canvas src, shrunk to half its width and height, into
+// quadrant (qx, qy) (each 0 or 1) of count canvas c of the same size and
+// categories: src's pixel (x, y) adds its counts to c's pixel
+// (qx·W/2 + x/2, qy·H/2 + y/2). The four tiles of zoom z+1 under a tile of
+// zoom z, added this way, give the counts of the zoom-z tile exactly, for a
+// count pixel is a power-of-two block of world cells; sums saturate like
+// Count, so the result does not depend on the order either.
+func (c *Canvas) AddHalf(src *Canvas, qx, qy int) {
+	ox, oy := qx*c.W/2, qy*c.H/2
+	n := src.NCat
+	for y, used := range src.rows {
+		if !used {
+			continue
+		}
+		py := oy + y>>1
+		m := src.mask[y*src.wpr : (y+1)*src.wpr]
+		for wi, left := range m {
+			for left != 0 {
+				x := wi<<6 + bits.TrailingZeros64(left)
+				left &= left - 1
+				p := y*src.W + x
+				px := ox + x>>1
+				if cb := src.cats[p]; single(cb) {
+					c.CountN(bits.TrailingZeros8(cb), px, py, src.tot[p])
+					continue
+				}
+				for k, v := range src.cov[p*n : p*n+n] {
+					c.CountN(k, px, py, v)
+				}
+			}
+		}
+	}
+}
+
 // Composite writes the canvas into dst (same size): a pixel's colour is the
 // coverage-weighted mean of its categories' colours, and its alpha is the
 // total coverage, clipped at fully opaque. colors has one entry per category.
@@ -301,6 +335,14 @@ func (c *Canvas) CompositeTile(colors []color.NRGBA, t *Tile) {
 func (c *Canvas) CompositeCountsTile(colors []color.NRGBA, mass float64, t *Tile) {
 	t.start()
 	c.compositeInto(colors, countGain(mass), t.Image.Pix, t.Image.Stride, t, true)
+}
+
+// CompositeCountsKeep composites like CompositeCountsTile but leaves the
+// canvas as it was, for a count canvas that is still to be added into
+// another (AddHalf).
+func (c *Canvas) CompositeCountsKeep(colors []color.NRGBA, mass float64, t *Tile) {
+	t.start()
+	c.compositeInto(colors, countGain(mass), t.Image.Pix, t.Image.Stride, t, false)
 }
 
 // countGain is the fixed-point gain that turns a dot count into coverage

@@ -66,6 +66,10 @@ type Stats struct {
 	// Planned is the number of tiles that hold dots, over all zooms and
 	// kinds: an estimate of the final Tiles + Tiles2x for progress displays.
 	Planned int64
+	// Counting is true while the count zooms (dots narrower than a pixel)
+	// are still being drawn: their tiles cost far more or less each than
+	// disc tiles, so a rate measured now does not tell the time left.
+	Counting bool
 }
 
 // Source is where the dots come from: a sorted dot store.
@@ -109,8 +113,10 @@ type pass struct {
 type job struct {
 	p       *pass
 	z, x, y int
-	hist    bool
-	n       int // keys in the tile, for ordering
+	n       int // keys in the tile
+	// walk, when set, makes the job a subtree of a count walk (sub).
+	walk *countWalk
+	sub  subtree
 }
 
 // Write renders every tile in the zoom range that has ink and writes it.
@@ -118,12 +124,14 @@ type job struct {
 // Each zoom is drawn one of two ways, decided by the dot's look there. Where
 // a dot is narrower than a pixel, the tile is a count canvas: every dot adds
 // one to the pixel holding its centre, and compositing turns counts into ink
-// (count × dot mass). Those low zooms hold the most dots per tile, and a dot
-// costs a shift and an increment there. Where a dot is a pixel or wider it is
+// (count × dot mass). Those low zooms hold the most dots per tile; the dots
+// are counted once, at the deepest count zoom, and each zoom above is the
+// sum of 2 × 2 pixel blocks of the one below (countWalk), which gives the
+// same integers as counting its dots. Where a dot is a pixel or wider it is
 // an anti-aliased disc from a precomputed stamp, and the tile also draws the
 // dots of its neighbours' edge strips, so a dot across an edge has the same
-// pixels on both tiles. All tiles of all zooms go into one queue, the largest
-// count tiles first, so every worker stays busy even at zoom 0.
+// pixels on both tiles. All tiles of all zooms go into one queue, the count
+// zooms' subtrees first, so every worker stays busy even at zoom 0.
 func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if opt.TileSize != 256 && opt.TileSize != 512 {
 		return Stats{}, fmt.Errorf("tiles: tile size %d; want 256 or 512", opt.TileSize)
@@ -157,10 +165,10 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			return d
 		}})
 	}
-	// Plan: every zoom not yet done. Count tiles are listed (low zooms,
-	// few tiles); disc tiles are streamed from the store zoom by zoom, so
-	// memory does not grow with the number of tiles.
-	var hist []job
+	// Plan: every zoom not yet done. Count zooms are walked as one tree per
+	// pass (countWalk); disc tiles are streamed from the store zoom by
+	// zoom, so memory does not grow with the number of tiles.
+	var walks []*countWalk
 	type discZoom struct {
 		p *pass
 		z int
@@ -170,6 +178,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	w.zoomStats = map[string]*ZoomStats{}
 	for _, p := range passes {
 		p.shift = bits.TrailingZeros(uint(p.size))
+		var cw *countWalk
 		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
 			zk := zoomKey(z, p.suffix)
 			if done, ok := man.Done[zk]; ok {
@@ -182,14 +191,19 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			w.left[zk], w.zoomStats[zk] = &one, &ZoomStats{}
 			man.began(zk)
 			if p.look(z).Diameter < 1 {
-				for _, t := range occupied(w.src, z) {
-					w.noteRead(searchCost)
-					if !w.keep(z, t.x, t.y) {
-						continue
-					}
-					hist = append(hist, job{p: p, z: z, x: t.x, y: t.y, hist: true, n: t.n})
-					w.st.Planned++
+				if cw == nil {
+					cw = &countWalk{w: w, p: p, top: z, write: map[int]bool{}, ncat: len(opt.Colors)}
+					walks = append(walks, cw)
 				}
+				cw.deep = z
+				cw.write[z] = true
+				cw.zooms = append(cw.zooms, zk)
+				w.src.EachTile(z, func(x, y int, _ []uint64) {
+					w.noteRead(searchCost)
+					if w.keep(z, x, y) {
+						w.st.Planned++
+					}
+				})
 			} else {
 				w.src.EachTile(z, func(x, y int, _ []uint64) {
 					if w.keep(z, x, y) {
@@ -207,8 +221,18 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	if err := man.save(opt.Dir); err != nil {
 		return Stats{}, err
 	}
-	// Longest processing time first for the count tiles.
-	slices.SortStableFunc(hist, func(a, b job) int { return b.n - a.n })
+	for _, cw := range walks {
+		cw.split = cw.deep
+		for z := cw.top; z < cw.deep; z++ {
+			n := 0
+			w.src.EachTile(z, func(int, int, []uint64) { n++ })
+			if n >= 16*workers {
+				cw.split = z
+				break
+			}
+		}
+		cw.order = make(chan subtree, countWindow*workers)
+	}
 
 	ch := make(chan job, 4*workers)
 	var wg, iowg sync.WaitGroup
@@ -216,6 +240,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	// Creating a file costs tens to hundreds of microseconds of kernel time
 	// here, and more when the disk is busy; separate writers let the
 	// renderers go on meanwhile.
+	w.counting.Store(int64(len(walks)))
 	w.io = make(chan tileFile, 8*workers)
 	for i := 0; i < 2*workers+2; i++ {
 		iowg.Add(1)
@@ -242,21 +267,33 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			r := newTileRenderer(w, len(opt.Colors))
 			for j := range ch {
 				if failed.Load() != nil {
+					if j.walk != nil {
+						j.sub.res <- nil
+					}
 					continue
 				}
-				if err := w.do(r, j); err != nil {
+				var err error
+				if j.walk != nil {
+					err = j.walk.run(r, j.sub)
+				} else {
+					err = w.do(r, j)
+				}
+				if err != nil {
 					failed.CompareAndSwap(nil, &err)
 				}
 			}
 		}()
 	}
 	stop := func() bool { return ctx.Err() != nil || failed.Load() != nil }
-	queue := func(j job) {
+	queue := func(j job) bool {
 		if stop() {
-			return
+			return false
 		}
-		atomic.AddInt64(w.left[zoomKey(j.z, j.p.suffix)], 1)
+		if j.walk == nil {
+			atomic.AddInt64(w.left[zoomKey(j.z, j.p.suffix)], 1)
+		}
 		ch <- j
+		return true
 	}
 	// release drops the dispatcher's hold on a zoom.
 	release := func(zk string) {
@@ -266,15 +303,17 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 			}
 		}
 	}
-	for _, j := range hist {
-		queue(j)
-	}
-	for _, p := range passes {
-		for z := opt.MinZoom; z <= opt.MaxZoom; z++ {
-			if zk := zoomKey(z, p.suffix); w.left[zk] != nil && p.look(z).Diameter < 1 && !stop() {
-				release(zk)
+	var cwg sync.WaitGroup
+	for _, cw := range walks {
+		cw.stopped, cw.releaseZoom = stop, release
+		cwg.Add(1)
+		go func() {
+			defer cwg.Done()
+			if err := cw.combine(newTileRenderer(w, len(opt.Colors))); err != nil {
+				failed.CompareAndSwap(nil, &err)
 			}
-		}
+		}()
+		cw.queueJobs(queue)
 	}
 	for _, d := range disc {
 		eachCandidate(w.src, d.z, func() { w.noteRead(searchCost) }, func(x, y, n int) {
@@ -288,6 +327,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	}
 	close(ch)
 	wg.Wait()
+	cwg.Wait()
 	close(w.io)
 	iowg.Wait()
 	if p := failed.Load(); p != nil {
@@ -317,6 +357,7 @@ type writer struct {
 	left      map[string]*int64
 	zoomStats map[string]*ZoomStats
 	io        chan tileFile
+	counting  atomic.Int64 // count walks not yet finished
 }
 
 func (w *writer) addDone(z int, p *pass, d ZoomStats) {
@@ -341,14 +382,27 @@ func (w *writer) finishZoom(zk string) error {
 // do renders and encodes one tile and hands it to the writers (w.io).
 func (w *writer) do(r *tileRenderer, j job) error {
 	p := TilePath(j.z, j.x, j.y, j.p.suffix)
-	if w.resuming {
-		if size, ok, err := w.opt.Out.Exists(w.ctx, p); err != nil {
-			return err
-		} else if ok {
-			return w.account(j, size, true)
-		}
+	if kept, err := w.kept(j, p); err != nil || kept {
+		return err
 	}
-	t := r.render(j)
+	return w.encode(r, j, p, r.render(j))
+}
+
+// kept reports whether tile j (at path p) is kept from an earlier run,
+// accounting for it if so.
+func (w *writer) kept(j job, p string) (bool, error) {
+	if !w.resuming {
+		return false, nil
+	}
+	size, ok, err := w.opt.Out.Exists(w.ctx, p)
+	if err != nil || !ok {
+		return false, err
+	}
+	return true, w.account(j, size, true)
+}
+
+// encode encodes tile t (nil: no ink) and hands it to the writers.
+func (w *writer) encode(r *tileRenderer, j job, p string, t *render.Tile) error {
 	if t == nil {
 		return w.account(j, -1, false)
 	}
@@ -398,6 +452,7 @@ func (w *writer) account(j job, size int64, kept bool) error {
 	}
 	snap := w.st
 	w.mu.Unlock()
+	snap.Counting = w.counting.Load() > 0
 	if w.opt.Progress != nil {
 		snap.PerZoom = nil // the live map is not safe to share
 		w.opt.Progress(snap)
@@ -418,15 +473,6 @@ func (w *writer) noteRead(n int) {
 		w.read.Store(0)
 		w.rel.Release()
 	}
-}
-
-type tileAt struct{ x, y, n int }
-
-// occupied lists the tiles at zoom z that hold dots, in Z-order.
-func occupied(src indexed, z int) []tileAt {
-	var out []tileAt
-	src.EachTile(z, func(x, y int, k []uint64) { out = append(out, tileAt{x, y, len(k)}) })
-	return out
 }
 
 // eachCandidate calls fn for every tile at zoom z that may have ink: each
@@ -499,25 +545,25 @@ func newTileRenderer(w *writer, ncat int) *tileRenderer {
 		stamps: map[string]*render.Stamp{}, enc: render.NewEncoder()}
 }
 
-// render draws one tile; nil when it has no ink.
+// tileOf returns the worker's tile of edge T.
+func (r *tileRenderer) tileOf(T int) *render.Tile {
+	if r.tile[T] == nil {
+		r.tile[T] = render.NewTile(T, T)
+	}
+	return r.tile[T]
+}
+
+// render draws one disc tile; nil when it has no ink.
 func (r *tileRenderer) render(j job) *render.Tile {
 	T := j.p.size
 	c := r.canvas[T]
 	if c == nil {
 		c = render.NewCanvas(T, T, r.ncat)
 		r.canvas[T] = c
-		r.tile[T] = render.NewTile(T, T)
 	}
 	c.Reset()
+	r.tileOf(T)
 	look := j.p.look(j.z)
-	if j.hist {
-		r.count(c, j)
-		if c.Empty() {
-			return nil
-		}
-		c.CompositeCountsTile(r.w.opt.Colors, look.Mass(), r.tile[T])
-		return r.tile[T]
-	}
 	if look.Diameter > render.MaxStampDiameter {
 		look.Diameter = render.MaxStampDiameter
 	}
@@ -535,13 +581,13 @@ func (r *tileRenderer) render(j job) *render.Tile {
 	return r.tile[T]
 }
 
-// count fills a count canvas: one per dot in the pixel holding its centre.
-func (r *tileRenderer) count(c *render.Canvas, j job) {
-	all := srcTile(r.w.src, j.z, j.x, j.y)
+// countKeys fills a count canvas for tile (z, x, y) of 2^shift pixels from
+// the tile's keys all: one per dot in the pixel holding its centre.
+func (r *tileRenderer) countKeys(c *render.Canvas, z, x, y, shift int, all []uint64) {
 	r.w.noteRead(searchCost)
 	// Pixel = world coordinate >> s, minus the tile's first pixel.
-	s := dotstore.WorldBits - j.z - j.p.shift
-	ox, oy := j.x<<j.p.shift, j.y<<j.p.shift
+	s := dotstore.WorldBits - z - shift
+	ox, oy := x<<shift, y<<shift
 	for keys := range chunks(all) {
 		r.w.noteRead(len(keys))
 		if s >= 0 {

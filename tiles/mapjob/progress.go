@@ -24,9 +24,13 @@ type progress struct {
 	mu       sync.Mutex
 	phase    string // "", "place", "tiles"
 	since    time.Time
-	done     chan struct{}
-	stopped  chan struct{}
-	drawn    bool
+	// rateFrom is when the tile phase's disc zooms began (zero before),
+	// with the tiles done then: their rate is measured from there.
+	rateFrom  time.Time
+	rateFromN int64
+	done      chan struct{}
+	stopped   chan struct{}
+	drawn     bool
 }
 
 func newProgress(w io.Writer, every time.Duration) *progress {
@@ -85,7 +89,7 @@ func (p *progress) startPlace(expected int64) {
 
 func (p *progress) startTiles() {
 	p.mu.Lock()
-	p.phase, p.since = "tiles", time.Now()
+	p.phase, p.since, p.rateFrom = "tiles", time.Now(), time.Time{}
 	p.mu.Unlock()
 }
 
@@ -113,28 +117,47 @@ func (p *progress) stop() {
 // tile is the pyramid's progress callback.
 func (p *progress) tile(s tiles.Stats) { p.tiles.Store(&s) }
 
-func (p *progress) line() string {
-	el := time.Since(p.since).Seconds()
+func (p *progress) line() string { return p.lineAt(time.Now()) }
+
+// lineAt is the progress line at time now.
+func (p *progress) lineAt(now time.Time) string {
 	switch p.phase {
 	case "place":
 		n := p.placed.Load()
-		return fmt.Sprintf("placing dots: %s of %s%s", count(n), count(p.expected), rateLeft(n, p.expected, el, "dots"))
+		return fmt.Sprintf("placing dots: %s of %s%s", count(n), count(p.expected), rateLeft(n, p.expected, now.Sub(p.since), "dots"))
 	case "tiles":
 		s := p.tiles.Load()
 		if s == nil {
 			return ""
 		}
 		n := s.Tiles + s.Tiles2x
-		return fmt.Sprintf("writing tiles: %s of about %s, %.1f MB%s", count(n), count(s.Planned), float64(s.Bytes)/1e6, rateLeft(n, s.Planned, el, "tiles"))
+		head := fmt.Sprintf("writing tiles: %s of about %s, %.1f MB", count(n), count(s.Planned), float64(s.Bytes)/1e6)
+		if s.Counting {
+			// Low zooms: few tiles, each summing many dots; their rate
+			// says nothing of the tiles to come.
+			return head + ", low zooms, estimating time left"
+		}
+		if p.rateFrom.IsZero() {
+			p.rateFrom, p.rateFromN = now, n
+		}
+		return head + rateLeft(n-p.rateFromN, s.Planned-p.rateFromN, now.Sub(p.rateFrom), "tiles")
 	}
 	return ""
 }
 
-func rateLeft(n, total int64, secs float64, unit string) string {
-	if secs <= 0 || n <= 0 {
-		return ""
+// minRateTime is how long a phase runs before its rate is trusted for a
+// time left: the first seconds of a phase are its slowest (caches, page
+// faults, the first large tiles) and extrapolating them gave absurd
+// figures (hundreds of hours).
+const minRateTime = 15 * time.Second
+
+// rateLeft is ", R unit/s, about T left" for n of total done in el, or
+// ", estimating time left" before el reaches minRateTime.
+func rateLeft(n, total int64, el time.Duration, unit string) string {
+	if el < minRateTime || n <= 0 {
+		return ", estimating time left"
 	}
-	rate := float64(n) / secs
+	rate := float64(n) / el.Seconds()
 	s := fmt.Sprintf(", %s %s/s", count(int64(rate)), unit)
 	if total > n {
 		s += fmt.Sprintf(", about %s left", (time.Duration(float64(total-n) / rate * float64(time.Second))).Round(time.Second))

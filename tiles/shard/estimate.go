@@ -20,8 +20,14 @@ type Rates struct {
 	// tiles and of disc tiles, per core.
 	CountNsPerDot float64 `json:"count_ns_per_dot_zoom"`
 	DiscNsPerDot  float64 `json:"disc_ns_per_dot_zoom"`
-	// TileNs is compositing, encoding and writing one tile, per core.
+	// TileNs is compositing, encoding and writing one tile, per core, with
+	// the tiles on tmpfs.
 	TileNs float64 `json:"tile_ns"`
+	// FileNs is what creating one tile file costs on the output's file
+	// system beyond tmpfs (kernel time and waiting for the disk): a sparse
+	// part writes many tiles per dot, so leaving it out makes such parts
+	// look light. 0 for tiles on tmpfs.
+	FileNs float64 `json:"file_ns"`
 	// CountBytes and DiscBytes are the mean size of a count tile and of a
 	// disc tile (PNG).
 	CountBytes float64 `json:"count_tile_bytes"`
@@ -48,9 +54,17 @@ var MeasuredRates = Rates{
 	CountNsPerDot:  10,
 	DiscNsPerDot:   580,
 	TileNs:         0.123e6,
-	CountBytes:     6400,
-	DiscBytes:      3800,
+	// sink.Dir.Put of a 4 KiB tile on the ext4 virtual disk of the same
+	// machines less the same on tmpfs: 0.36–1.1 ms over three rounds at
+	// load 6–23 (BenchmarkTileFiles, BENCHMARKS.md "Tile files"); a part's
+	// own writes overlap its drawing, so a figure from the lower half.
+	FileNs:     0.6e6,
+	CountBytes: 6400,
+	DiscBytes:  3800,
 }
+
+// tileNs is the whole cost of one tile: drawing, encoding and its file.
+func (r Rates) tileNs() float64 { return r.TileNs + r.FileNs }
 
 // ZoomEstimate is the expected output of one zoom (1× tiles; @2x tiles
 // double the count).
@@ -148,7 +162,7 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 		e.Zooms = append(e.Zooms, ze)
 		e.Tiles += ze.Tiles * scale
 		e.Bytes += ze.Bytes
-		coreNs += (ze.Tiles*r.TileNs + total*ns) * scale
+		coreNs += (ze.Tiles*r.tileNs() + total*ns) * scale
 	}
 	if l.Split > p.MinZoom {
 		// Pixels of the summary level, treated as tiles one pixel wide.
@@ -286,7 +300,7 @@ func Final(l *Layout, e Estimate, r Rates) FinalWork {
 		}
 		f.Tiles += ze.Tiles * scale
 		f.Bytes += ze.Bytes
-		f.CoreHours += (ze.Tiles*r.TileNs + e.Pixels*r.CountNsPerDot) * scale / 1e9 / 3600
+		f.CoreHours += (ze.Tiles*r.tileNs() + e.Pixels*r.CountNsPerDot) * scale / 1e9 / 3600
 	}
 	return f
 }
@@ -346,7 +360,7 @@ func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) [
 	}
 	for z := s; z <= wm.p.MaxZoom; z++ {
 		for i, v := range wm.large[z] {
-			areaWork[i] += v * wm.r.TileNs * wm.scale
+			areaWork[i] += v * wm.r.tileNs() * wm.scale
 		}
 	}
 	w := map[uint64]float64{}
@@ -356,7 +370,7 @@ func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) [
 	for z := s; z <= wm.p.MaxZoom; z++ {
 		d := z - s
 		for _, t := range wm.tracked[z] {
-			w[morton(s, t.x>>d, t.y>>d)] += t.v * wm.r.TileNs * wm.scale
+			w[morton(s, t.x>>d, t.y>>d)] += t.v * wm.r.tileNs() * wm.scale
 		}
 	}
 	for c, v := range w {

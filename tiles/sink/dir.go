@@ -7,20 +7,36 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 	"sync/atomic"
+	"time"
 )
 
-// Dir is a sink in a local folder. Put writes a temporary file in the
-// folder's TempDir and renames it into place (rename is atomic within a
-// file system, POSIX rename(2)); content types are not stored. A process
-// killed mid-Put leaves at most a temporary file in TempDir, never in the
-// map's own folders, so a published folder holds only whole files.
+// Dir is a sink in a local folder. Put writes the file once, under a
+// temporary name of its own in the folder's TempDir (created with O_EXCL
+// and mode 0644, so no chmod), and renames it into place (rename is atomic
+// within a file system, POSIX rename(2)): a reader sees the old file or
+// the whole new one. Content types are not stored. A process killed
+// mid-Put leaves at most a temporary file in TempDir, never in the map's
+// own folders, so a published folder holds only whole files.
+//
+// Creating the file in the tile's own folder (under a temporary name, or
+// the tile itself) measured no cheaper on the build machines' disk, within
+// wide noise (BENCHMARKS.md, "Tile files").
 type Dir struct {
 	root string
 	made sync.Map // folders known to exist
 }
+
+// tempToken tells this process's temporary names from another's sharing
+// the folder (several parts of a sharded render, or hosts on a network
+// file system); tempSeq tells its own apart.
+var (
+	tempToken = fmt.Sprintf("%d-%x", os.Getpid(), time.Now().UnixNano()&0xffffff)
+	tempSeq   atomic.Int64
+)
 
 // NewDir returns the sink for folder root; nothing is created until Put.
 func NewDir(root string) *Dir { return &Dir{root: root} }
@@ -30,9 +46,10 @@ func (d *Dir) Root() string { return d.root }
 
 func (d *Dir) String() string { return d.root }
 
-// TempDir is where Put writes before renaming: inside stipple's state
-// folder (.stipple, which is never published), on the same file system as
-// the tiles. Several processes may share it: names are unique.
+// TempDir is where Put writes and link links before renaming:
+// inside stipple's state folder (.stipple, which is never published), on
+// the same file system as the tiles. Several processes may share it: names
+// are unique.
 const TempDir = ".stipple/put"
 
 func (d *Dir) full(p string) (string, error) {
@@ -51,32 +68,70 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 	if err != nil {
 		return err
 	}
-	tmpDir, err := d.makeDirs(full)
+	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
+	var tmp string
+	var f *os.File
+	for try := 0; ; try++ {
+		tmp = filepath.Join(tmpDir, "put-"+tempToken+"-"+strconv.FormatInt(tempSeq.Add(1), 36))
+		f, err = d.create(tmp, os.O_EXCL)
+		if err == nil || !os.IsExist(err) || try == 9 {
+			break
+		}
+	}
 	if err != nil {
 		return fmt.Errorf("sink: %w", err)
 	}
-	f, err := os.CreateTemp(tmpDir, "put-*")
-	if err != nil {
-		return fmt.Errorf("sink: %w", err)
-	}
-	tmp := f.Name()
 	_, werr := f.Write(data)
 	cerr := f.Close()
 	if werr == nil {
 		werr = cerr
 	}
 	if werr == nil {
-		// CreateTemp makes 0600 files; tiles are meant to be served.
-		werr = os.Chmod(tmp, 0o644)
-	}
-	if werr == nil {
-		werr = os.Rename(tmp, full)
+		werr = d.rename(tmp, full)
 	}
 	if werr != nil {
 		os.Remove(tmp)
 		return fmt.Errorf("sink: %w", werr)
 	}
 	return nil
+}
+
+// rename moves tmp to full, making full's folder when it is missing (one
+// failed rename and one mkdir for the first file of a folder; later files
+// cost the rename alone).
+func (d *Dir) rename(tmp, full string) error {
+	err := os.Rename(tmp, full)
+	if err == nil || !os.IsNotExist(err) {
+		return err
+	}
+	if err := d.mkdir(filepath.Dir(full)); err != nil {
+		return err
+	}
+	return os.Rename(tmp, full)
+}
+
+// mkdir makes folder dir, trying a single mkdir before MkdirAll.
+func (d *Dir) mkdir(dir string) error {
+	if err := os.Mkdir(dir, 0o755); err != nil && !os.IsExist(err) {
+		return os.MkdirAll(dir, 0o755)
+	}
+	return nil
+}
+
+// create opens file full for writing with mode 0644 and the extra flag
+// (such as O_EXCL), making its folder when it is missing: the first
+// file of a folder costs one failed open and one mkdir, every later one a
+// single open.
+func (d *Dir) create(full string, flag int) (*os.File, error) {
+	flag |= os.O_WRONLY | os.O_CREATE
+	f, err := os.OpenFile(full, flag, 0o644)
+	if err == nil || !os.IsNotExist(err) {
+		return f, err
+	}
+	if err := d.mkdir(filepath.Dir(full)); err != nil {
+		return nil, err
+	}
+	return os.OpenFile(full, flag, 0o644)
 }
 
 // Exists implements Sink.

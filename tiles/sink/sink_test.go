@@ -127,11 +127,17 @@ func TestDirPutIsAtomic(t *testing.T) {
 		t.Errorf("folder holds %d entries; want 1", len(entries))
 	}
 	// A temporary file left by a killed Put is not listed.
-	os.WriteFile(filepath.Join(root, ".stipple", "put", "put-123"), []byte("half"), 0o644)
+	if err := os.WriteFile(filepath.Join(root, ".stipple", "put", "put-123-abc-1"), []byte("half"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	var listed []string
 	d.List(ctx, "", func(p string, _ int64) error { listed = append(listed, p); return nil })
 	if len(listed) != 1 || listed[0] != "1/0/0.png" {
 		t.Errorf("List = %v; want [1/0/0.png]", listed)
+	}
+	// Put leaves nothing of its own in the temporary folder.
+	if entries, _ := os.ReadDir(filepath.Join(root, ".stipple", "put")); len(entries) != 1 {
+		t.Errorf("temporary folder holds %d entries; want only the planted one", len(entries))
 	}
 	if fi, _ := os.Stat(filepath.Join(root, "1", "0", "0.png")); fi.Mode().Perm() != 0o644 {
 		t.Errorf("mode %v; want 0644", fi.Mode().Perm())
