@@ -37,6 +37,11 @@ type Reference struct {
 	// Lines (kind lines) and Areas (kind areas; outer ring first).
 	Lines []orb.LineString
 	Areas []orb.Polygon
+	// Key, when not "", lists the layer in a key (the viewer's key card,
+	// a print page's legend) as a swatch of Color with this label, under
+	// the heading KeyTitle; consecutive keyed layers with one KeyTitle
+	// share the heading. The diversity shading uses it for its classes.
+	Key, KeyTitle string
 }
 
 // Label is one place name.
@@ -91,6 +96,9 @@ type refLayer struct {
 	Labels []refLabel       `json:"labels,omitempty"`
 	Lines  [][][2]float64   `json:"lines,omitempty"`
 	Areas  [][][][2]float64 `json:"areas,omitempty"`
+	// Key and KeyTitle (omitted when empty) list the layer in the key.
+	Key      string `json:"key,omitempty"`
+	KeyTitle string `json:"keyTitle,omitempty"`
 }
 
 type refLabel struct {
@@ -121,7 +129,7 @@ func roundLine(l []orb.Point) [][2]float64 {
 func ReferenceJS(refs []Reference) ([]byte, error) {
 	d := refData{Format: referenceFormat, Layers: []refLayer{}}
 	for _, r := range refs {
-		l := refLayer{Kind: r.Kind, Above: r.Above, Color: r.Color, Width: r.Width}
+		l := refLayer{Kind: r.Kind, Above: r.Above, Color: r.Color, Width: r.Width, Key: r.Key, KeyTitle: r.KeyTitle}
 		ls := slices.Clone(r.Labels)
 		SortLabels(ls)
 		for _, lb := range ls {

@@ -141,6 +141,7 @@ func (l *Layout) legendColumn(x, y, w float64, counts []int) ([]item, float64) {
 	}
 	y += 2 * fs
 	items, y = l.textBlock(items, l.tf.wrap(l.spec.Note, 10*fs, true, w), x, y, 10*fs, true, ink)
+	items, y = l.referenceKey(items, x, y, w)
 	return items, y - y0
 }
 

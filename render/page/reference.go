@@ -24,6 +24,10 @@ type Reference struct {
 	Labels  []Label
 	Lines   []orb.LineString
 	Areas   []orb.Polygon
+	// Key, when not "", lists the layer in the page's legend, after the
+	// dot note: a square swatch of Color with this label, under the
+	// heading KeyTitle (shared by consecutive keyed layers).
+	Key, KeyTitle string
 }
 
 // Label is a place name at a point; rank 1 is placed first.
@@ -251,4 +255,37 @@ func (p *Page) pdfArea(pdf *fpdf.Fpdf, it item) {
 	}
 	pdf.DrawPath(style)
 	pdf.ClipEnd()
+}
+
+// referenceKey lays out the keyed reference layers (Reference.Key) at x, y
+// in a column w wide: each KeyTitle as a heading, then a square swatch and
+// label per layer. It returns the items and the y below them (y itself
+// when no layer has a key).
+func (l *Layout) referenceKey(items []item, x, y, w float64) ([]item, float64) {
+	fs := l.fs
+	sz, hs := 8*fs, 8*fs
+	title := ""
+	first := true
+	for _, r := range l.spec.References {
+		if r.Key == "" {
+			continue
+		}
+		if first || r.KeyTitle != title {
+			y += 2.5 * fs
+			items, y = l.textBlock(items, l.tf.wrap(r.KeyTitle, hs, true, w), x, y, hs, true, ink)
+			y += 0.8 * fs
+			title, first = r.KeyTitle, false
+		}
+		pitch := math.Max(4.2*fs, lineMM(sz)+0.8*fs)
+		c := r.Color
+		side := 3 * fs
+		items = append(items, item{kind: kRect, x: x + 0.2*fs, y: y + (pitch-side)/2, w: side, h: side, fill: &c, stroke: &muted, lineW: 0.1})
+		lines := l.tf.wrap(r.Key, sz, false, math.Max(w-5*fs, 10))
+		b := y + pitch/2 + l.tf.ascentMM(sz)/2 - 0.15*fs
+		for i, ln := range lines {
+			items = append(items, textItem(ln, x+5*fs, b+float64(i)*lineMM(sz), sz, false, ink))
+		}
+		y += pitch + float64(len(lines)-1)*lineMM(sz)
+	}
+	return items, y
 }

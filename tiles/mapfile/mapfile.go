@@ -46,6 +46,11 @@ type Map struct {
 	// through (see mapjob's outlier check); without it such a cell stops
 	// the run with its row named.
 	AllowOutliers bool `toml:"allow_outliers"`
+	// ShadeDiversity fills each area with people, under the dots, by its
+	// entropy diversity (normalised: 0 = one group, 1 = all groups
+	// equal) in five classes 0–0.2–0.4–0.6–0.8–1, light to dark, with a
+	// key in the viewer and on print pages. Off by default.
+	ShadeDiversity bool `toml:"shade_diversity"`
 
 	// Input names the areas and their counts.
 	Input Input `toml:"input"`

@@ -236,7 +236,7 @@ func Run(ctx context.Context, m *mapfile.Map, opt Options) (*Summary, error) {
 	if err := PutMeasures(ctx, out, in, m, nil, sum.Metadata); err != nil {
 		return nil, err
 	}
-	if err := PutReferences(ctx, out, m); err != nil {
+	if err := PutReferences(ctx, out, in, m); err != nil {
 		return nil, err
 	}
 	if err := PutFurniture(ctx, out, sum.Metadata, m.RGBA()); err != nil {

@@ -193,7 +193,7 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 			spec.Subtitle = fmt.Sprintf("%s people in %s areas", render.FormatCount(total), render.FormatCount(float64(res.Areas)))
 		}
 	}
-	if spec.References, err = printReferences(m); err != nil {
+	if spec.References, err = printReferences(in, m, areas); err != nil {
 		return nil, err
 	}
 	lay, err := page.NewLayout(spec)

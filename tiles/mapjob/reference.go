@@ -106,25 +106,42 @@ func labelRank(v any, props map[string]any, field string) (int, error) {
 	return int(x), nil
 }
 
-// PutReferences reads the map's reference layers and writes them for the
-// viewer (tiles.ReferenceScript), or removes an old one when the map has
-// none. Call it before PutFurniture, whose viewer links to the file.
-func PutReferences(ctx context.Context, out sink.Sink, m *mapfile.Map) error {
-	refs, err := LoadReferences(m)
+// PutReferences writes the map's reference layers for the viewer
+// (tiles.ReferenceScript): the diversity shading of in's areas first
+// (DiversityShade, when the map asks for it), then the [[reference]]
+// layers; or it removes an old file when the map has neither. Call it
+// before PutFurniture, whose viewer links to the file.
+func PutReferences(ctx context.Context, out sink.Sink, in *Input, m *mapfile.Map) error {
+	refs, err := allReferences(in, m, nil)
 	if err != nil {
 		return err
 	}
 	return tiles.PutReference(ctx, out, refs)
 }
 
+// allReferences is the diversity shading of the areas idx (all when nil)
+// followed by the map's [[reference]] layers.
+func allReferences(in *Input, m *mapfile.Map, idx []int) ([]tiles.Reference, error) {
+	shade, err := DiversityShade(in, m, idx)
+	if err != nil {
+		return nil, err
+	}
+	refs, err := LoadReferences(m)
+	if err != nil {
+		return nil, err
+	}
+	return append(shade, refs...), nil
+}
+
 // cssPxMM is one CSS pixel on paper: 1/96 inch (CSS Values and Units
 // Level 3, section 5.2).
 const cssPxMM = 25.4 / 96
 
-// printReferences reads the map's reference layers for a print page:
-// widths from CSS pixels to millimetres, labels in placement order.
-func printReferences(m *mapfile.Map) ([]page.Reference, error) {
-	refs, err := LoadReferences(m)
+// printReferences reads the map's reference layers for a print page, the
+// diversity shading of the areas idx (all when nil) first: widths from CSS
+// pixels to millimetres, labels in placement order.
+func printReferences(in *Input, m *mapfile.Map, idx []int) ([]page.Reference, error) {
+	refs, err := allReferences(in, m, idx)
 	if err != nil {
 		return nil, err
 	}
@@ -134,7 +151,8 @@ func printReferences(m *mapfile.Map) ([]page.Reference, error) {
 		if err != nil {
 			return nil, fmt.Errorf("%s: [[reference]] color %q: %w", m.Path, r.Color, err)
 		}
-		pr := page.Reference{Kind: r.Kind, Above: r.Above, Color: c, WidthMM: r.Width * cssPxMM, Lines: r.Lines, Areas: r.Areas}
+		pr := page.Reference{Kind: r.Kind, Above: r.Above, Color: c, WidthMM: r.Width * cssPxMM, Lines: r.Lines, Areas: r.Areas,
+			Key: r.Key, KeyTitle: r.KeyTitle}
 		tiles.SortLabels(r.Labels)
 		for _, l := range r.Labels {
 			pr.Labels = append(pr.Labels, page.Label{Name: l.Name, Rank: l.Rank, At: l.At})

@@ -322,7 +322,7 @@ func RunFinal(ctx context.Context, in *Input, m *mapfile.Map, plan *ShardPlan, o
 	if err := PutMeasures(ctx, out, in, m, nil, sum.Metadata); err != nil {
 		return nil, err
 	}
-	if err := PutReferences(ctx, out, m); err != nil {
+	if err := PutReferences(ctx, out, in, m); err != nil {
 		return nil, err
 	}
 	if err := PutFurniture(ctx, out, sum.Metadata, colors); err != nil {

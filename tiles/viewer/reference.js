@@ -1,6 +1,8 @@
 // stipple viewer, reference layers: place names, lines (roads, rivers) and
-// areas (water, parks) from the map maker's own files, which the render
-// writes as a script beside the viewer (map-data.js names it). Areas and
+// areas (water, parks) from the map maker's own files, and the optional
+// shading of each area by its diversity, which the render writes as a
+// script beside the viewer (map-data.js names it). Layers with a key are
+// listed in the key card. Areas and
 // lines are drawn on two canvases, one under the dot tiles and one over
 // them; labels are text elements over everything, placed again at every
 // view: most important rank first, and a label whose box would overlap a
@@ -40,9 +42,10 @@
         kind: l.kind, above: l.above, color: l.color, width: l.width || 0,
         lines: (l.lines || []).map(line),
         areas: (l.areas || []).map(function (poly) { return poly.map(line); }),
-        labels: l.labels || []
+        labels: l.labels || [], key: l.key || "", keyTitle: l.keyTitle || ""
       };
     });
+    keyBlock();
     below = canvas("st-ref st-ref-below");
     above = canvas("st-ref st-ref-above");
     mapEl.insertBefore(below, mapEl.firstChild);
@@ -79,6 +82,39 @@
     measure();
     if (document.fonts && document.fonts.ready) document.fonts.ready.then(function () { measure(); draw(); });
     draw();
+  }
+
+  // Layers with a key (the diversity shading's classes) are listed in the
+  // key card, after the dot legends: a heading per key title, then a
+  // square swatch and label per layer. Folded, the card keeps them in one
+  // wrapped row (viewer.css, .st-ref-key).
+  function keyBlock() {
+    var body = document.getElementById("st-key-body"), box = null, list = null, title = null;
+    if (!body) return;
+    layers.forEach(function (l) {
+      if (!l.key) return;
+      if (!box || l.keyTitle !== title) {
+        box = document.createElement("div");
+        box.className = "st-ref-key";
+        var h = document.createElement("h2");
+        h.className = "st-ref-key-title";
+        h.textContent = l.keyTitle;
+        list = document.createElement("ul");
+        list.className = "st-groups";
+        box.appendChild(h);
+        box.appendChild(list);
+        body.appendChild(box);
+        title = l.keyTitle;
+      }
+      var li = document.createElement("li"), sw = document.createElement("span"), lb = document.createElement("span");
+      sw.className = "st-swatch st-ref-swatch";
+      sw.style.backgroundColor = l.color;
+      lb.className = "st-label";
+      lb.textContent = l.key;
+      li.appendChild(sw);
+      li.appendChild(lb);
+      list.appendChild(li);
+    });
   }
 
   function measure() {
