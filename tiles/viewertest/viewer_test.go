@@ -506,8 +506,8 @@ func TestHostileTextStaysText(t *testing.T) {
 		if got.Layer != evilKey {
 			t.Errorf("%s: the hash's hostile layer key picked %q", page, got.Layer)
 		}
-		// Only the viewer's own two scripts run; no element came from a label.
-		scripts := 2 + 1 // map-data.js, viewer.js, and one tile index
+		// Only the viewer's own scripts run; no element came from a label.
+		scripts := 3 + 1 // map-data.js, viewer.js, reference.js, and one tile index
 		if got.Scripts > scripts || got.Images != 0 || got.Svgs != 0 || got.Links != 0 {
 			t.Errorf("%s: markup from the map file reached the page: %+v", page, got)
 		}
