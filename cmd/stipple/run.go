@@ -404,6 +404,9 @@ func printSummary(w io.Writer, s *mapjob.Summary) {
 	if s.RowsWithoutArea > 0 {
 		fmt.Fprintf(w, "  not drawn: %s people in table rows that match no area (listed above)\n", render.FormatCount(s.RowsWithoutArea))
 	}
+	if ms := md.Measures; ms != nil && ms.H != nil && ms.M != nil {
+		fmt.Fprintf(w, "  mixing: Theil's H %.3f (0 = every area has the whole mix, 1 = each area one group), M %.3f; per area in %s\n", *ms.H, *ms.M, ms.AreaTable)
+	}
 	if s.BeyondPeople > 0 {
 		fmt.Fprintf(w, "  not on the tiles: %s people (%d dots) beyond Web Mercator's latitude limit (85.05° north or south); print pages draw them\n",
 			render.FormatCount(s.BeyondPeople), sum(s.Beyond))
