@@ -76,6 +76,15 @@ func WriteViewerLayers(dir string, layers []ViewerLayer) error {
 // the pages (the legend is written into the HTML, not built by script),
 // encoding/json for map-data.js, which carries no map-file text but keys.
 func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
+	return PutViewerThen(ctx, out, layers, nil)
+}
+
+// PutViewerThen is PutViewer that calls beforePages, when not nil, after
+// every file of the viewer but its pages is written and before the pages
+// (embed.html, then index.html) are. A map writes its map.json there, so
+// that map.json never describes tiles the tile index does not yet list,
+// and the pages never appear without map.json.
+func PutViewerThen(ctx context.Context, out sink.Sink, layers []ViewerLayer, beforePages func(context.Context) error) error {
 	if len(layers) == 0 {
 		return fmt.Errorf("tiles: viewer: no layers")
 	}
@@ -210,6 +219,11 @@ func PutViewer(ctx context.Context, out sink.Sink, layers []ViewerLayer) error {
 	tmpl, err := template.ParseFS(viewerFiles, "viewer/page.html")
 	if err != nil {
 		return fmt.Errorf("tiles: viewer template: %w", err)
+	}
+	if beforePages != nil {
+		if err := beforePages(ctx); err != nil {
+			return err
+		}
 	}
 	for _, p := range []struct {
 		name  string

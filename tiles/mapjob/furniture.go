@@ -95,12 +95,12 @@ func LegendOf(md *tiles.Metadata, colors []color.NRGBA) render.Legend {
 
 // PutFurniture writes a map's furniture into out, after its tiles: the
 // legend as legend.png (300 px wide), legend@2x.png (the same at twice the
-// pixels) and legend.svg (text kept as text, for print and CMS work), then
-// map.json with its TileJSON 3.0.0 descriptor (tilejson.json) and the
-// methods note (methods.txt), a still of the whole map (still.png, the
-// no-script fallback of embed.html), then the viewer (index.html, embed.html,
-// alt.txt, its scripts and the tile index listed from out). md.Legend is set to the legends'
-// names. Every command that makes a map writes its furniture here, so a
+// pixels) and legend.svg (text kept as text, for print and CMS work), the
+// TileJSON 3.0.0 descriptor (tilejson.json), the methods note
+// (methods.txt), a still of the whole map (still.png, the no-script
+// fallback of embed.html), the viewer's scripts, alt.txt and the tile index
+// listed from out; then the entry points: map.json, and last the pages
+// (embed.html, index.html). md.Legend is set to the legends' names. Every command that makes a map writes its furniture here, so a
 // folder, a bucket, a shard's final step and a batch extent get the same
 // files.
 func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors []color.NRGBA) error {
@@ -123,9 +123,6 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 		return err
 	}
 	md.Legend = append(md.Legend, "legend.svg")
-	if err := tiles.PutMetadata(ctx, out, md); err != nil {
-		return err
-	}
 	if err := tiles.PutTileJSON(ctx, out, md); err != nil {
 		return err
 	}
@@ -135,7 +132,12 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 	if err := putStill(ctx, out, md, leg); err != nil {
 		return err
 	}
-	return tiles.PutViewer(ctx, out, []tiles.ViewerLayer{{Meta: md}})
+	// map.json is an entry point: it is written after the tile index and
+	// before the pages, so the folder never offers it over an index of
+	// another map's tiles.
+	return tiles.PutViewerThen(ctx, out, []tiles.ViewerLayer{{Meta: md}}, func(ctx context.Context) error {
+		return tiles.PutMetadata(ctx, out, md)
+	})
 }
 
 // EstimatesCaution is added to the caution of a map whose counts are

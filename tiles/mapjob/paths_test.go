@@ -21,6 +21,7 @@ import (
 	"github.com/stipple-maps/stipple/render/page"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 // smallWithMask copies testdata/small (three invented areas, one of them,
@@ -516,5 +517,55 @@ func TestCategoryKeyRenameReplaces(t *testing.T) {
 	}
 	if changed == 0 {
 		t.Error("no tile changed with the category's key")
+	}
+}
+
+// recordingSink is a sink that notes the path of every Put, in order.
+type recordingSink struct {
+	sink.Sink
+	puts []string
+}
+
+func (r *recordingSink) Put(ctx context.Context, path string, data []byte, contentType, cacheControl string) error {
+	r.puts = append(r.puts, path)
+	return r.Sink.Put(ctx, path, data, contentType, cacheControl)
+}
+
+// TestFurnitureEntryPointsLast: the furniture writes the tile index before
+// map.json and map.json before the pages, which come last, so a run cut
+// off while writing it never leaves map.json (or a page) beside an index
+// that names another map's tiles.
+func TestFurnitureEntryPointsLast(t *testing.T) {
+	ctx := context.Background()
+	m := smallWithMask(t)
+	s, err := Run(ctx, m, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := &recordingSink{Sink: sink.NewDir(m.Out)}
+	if err := PutFurniture(ctx, rec, s.Metadata, m.RGBA()); err != nil {
+		t.Fatal(err)
+	}
+	at := map[string]int{}
+	lastIndex := -1
+	for i, p := range rec.puts {
+		at[p] = i
+		if strings.HasPrefix(p, tiles.IndexDir+"/") {
+			lastIndex = i
+		}
+	}
+	meta, ok := at[tiles.MetadataFile]
+	if !ok || lastIndex < 0 {
+		t.Fatalf("the furniture wrote no %s or no tile index: %v", tiles.MetadataFile, rec.puts)
+	}
+	if meta < lastIndex {
+		t.Errorf("%s is written (step %d) before the tile index is complete (step %d)", tiles.MetadataFile, meta, lastIndex)
+	}
+	embed, view := at[tiles.EmbedPage], at[tiles.ViewerPage]
+	if embed < meta || view < meta {
+		t.Errorf("a page is written before %s: %v", tiles.MetadataFile, rec.puts)
+	}
+	if n := len(rec.puts); max(embed, view) != n-1 || min(embed, view) != n-2 {
+		t.Errorf("the pages are not the last two files written: %v", rec.puts)
 	}
 }
