@@ -10,24 +10,15 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
-	"slices"
 	"strings"
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
 	"github.com/stipple-maps/stipple/geo/read"
 	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
-)
-
-// Planning rates for inspect's estimates, measured on the 2-core reference
-// machine (BENCHMARKS.md); a real run prints its own.
-const (
-	planDotsPerSecond  = 2.0e6
-	planTilesPerSecond = 400.0
-	planBytesPerTile   = 12000.0
+	"github.com/stipple-maps/stipple/tiles/shard"
 )
 
 var inspectDoc = register(cmdDoc{Name: "inspect", Order: 30, Usage: "inspect FILE [--map MAP.toml] [flags]",
@@ -79,8 +70,7 @@ func cmdInspect(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err != nil {
 		return err
 	}
-	plan(stdout, m, in)
-	return nil
+	return plan(stdout, m, in)
 }
 
 func describe(w io.Writer, res *read.Result) {
@@ -201,14 +191,12 @@ func fieldStats(l *geo.Layer, name string) stats {
 	return s
 }
 
-func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) {
+func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) error {
 	if in.Join != nil {
 		fmt.Fprintln(w, strings.TrimRight(in.Join.String(), "\n"))
 	}
 	fmt.Fprintf(w, "map %s: %s\n", m.Path, render.DotNote(m.PeoplePerDot))
 	var dots float64
-	b := orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}
-	var bounds []orb.Bound
 	// The dots are the render's own allocation (mapjob.Load's in.Dots, by
 	// the map's rounding rule and seed), so the numbers agree with render.
 	for k, c := range m.Categories {
@@ -223,46 +211,41 @@ func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) {
 	}
 	fmt.Fprintf(w, "  dots: exactly the dots render allocates with this map file (rounding = %q, seed %d); render draws them all\n", m.Rounding, m.Seed)
 	fmt.Fprintln(w, "  except those in areas it cannot draw (counted there as not drawn)")
-	for i, f := range in.Layer.Features {
-		has := slices.ContainsFunc(in.Counts[i], func(v float64) bool { return v > 0 })
-		if has && len(f.Geometry) > 0 {
-			fb := f.Geometry.Bound()
-			b = b.Union(fb)
-			bounds = append(bounds, fb)
-		}
+	est, err := mapjob.Estimate(in, m, m.Tiles.HiDPI)
+	if err != nil {
+		return err
 	}
-	var tilesTotal float64
-	fmt.Fprintln(w, "  tiles per zoom (upper bound: tiles touched by areas with people):")
-	for z := m.Tiles.MinZoom; z <= m.Tiles.MaxZoom; z++ {
-		n := tilesTouched(bounds, z)
-		tilesTotal += float64(n)
-		fmt.Fprintf(w, "    z%-2d %10d\n", z, n)
+	fmt.Fprintln(w, "  expected tiles per zoom (the same estimate as stipple plan, from the areas' shapes and dots):")
+	for _, z := range est.Zooms {
+		fmt.Fprintf(w, "    z%-2d %10s  %8.1f MB\n", z.Zoom, render.FormatCount(math.Round(z.Tiles)), z.Bytes/1e6)
 	}
-	secs := dots/planDotsPerSecond + tilesTotal/planTilesPerSecond
-	fmt.Fprintf(w, "  estimate: %.0f dots, at most %.0f tiles, about %.0f MB, about %.0f s on 2 cores\n",
-		dots, tilesTotal, tilesTotal*planBytesPerTile/1e6, math.Max(1, secs))
+	hidpi := ""
+	if m.Tiles.HiDPI {
+		hidpi = " (with @2x tiles)"
+	}
+	fmt.Fprintf(w, "  estimate: %.0f dots, about %s tiles%s, about %s, about %s of CPU (rates measured on %s)\n",
+		dots, render.FormatCount(math.Round(est.Tiles)), hidpi, sizeText(est.Bytes), cpuText(est.CoreHours), shard.MeasuredRates.Source)
+	return nil
 }
 
-// tilesTouched counts distinct tiles at zoom z that the bounds touch; for
-// very many tiles it sums per-bound counts instead (an upper bound).
-func tilesTouched(bounds []orb.Bound, z int) int {
-	seen := map[[2]uint32]bool{}
-	total := 0
-	for _, b := range bounds {
-		nw := tiles.At(b.Min[0], b.Max[1], tiles.Zoom(z))
-		se := tiles.At(b.Max[0], b.Min[1], tiles.Zoom(z))
-		n := int(se.X-nw.X+1) * int(se.Y-nw.Y+1)
-		if len(seen) > 2_000_000 || n > 100_000 {
-			total += n
-			continue
-		}
-		for y := nw.Y; y <= se.Y; y++ {
-			for x := nw.X; x <= se.X; x++ {
-				seen[[2]uint32{x, y}] = true
-			}
-		}
+// sizeText is a byte count for people: "6.7 MB", "1.2 GB".
+func sizeText(b float64) string {
+	if b >= 1e9 {
+		return fmt.Sprintf("%.1f GB", b/1e9)
 	}
-	return total + len(seen)
+	return fmt.Sprintf("%.1f MB", b/1e6)
+}
+
+// cpuText is CPU time for people: "40 s", "12 min", "2.5 h".
+func cpuText(coreHours float64) string {
+	s := coreHours * 3600
+	switch {
+	case s < 120:
+		return fmt.Sprintf("%.0f s", math.Max(s, 1))
+	case s < 7200:
+		return fmt.Sprintf("%.0f min", s/60)
+	}
+	return fmt.Sprintf("%.1f h", coreHours)
 }
 
 var initDoc = register(cmdDoc{Name: "init", Order: 40, Usage: "init FILE [--out MAP.toml] [--table COUNTS.csv] [--layer NAME]",

@@ -377,3 +377,15 @@ func mergeOutcomes(in *Input, l *shard.Layout, reps []*shard.Report) (Outcomes, 
 	}
 	return outcomes, nil
 }
+
+// Estimate predicts what a render of m writes (tiles and bytes per zoom)
+// and the CPU it takes, from the areas' shapes and dots, without placing a
+// dot: shard.EstimateTiles at shard.MeasuredRates over a one-part layout.
+// stipple inspect --map and stipple plan both print it.
+func Estimate(in *Input, m *mapfile.Map, hidpi bool) (shard.Estimate, error) {
+	sp, err := PlanShards(in, m, 1, hidpi)
+	if err != nil {
+		return shard.Estimate{}, err
+	}
+	return shard.EstimateTiles(sp.Areas, sp.Layout, shard.MeasuredRates), nil
+}

@@ -5,6 +5,7 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/stipple-maps/stipple/geo"
+	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
 )
 
@@ -28,10 +29,14 @@ type Rates struct {
 	// part writes many tiles per dot, so leaving it out makes such parts
 	// look light. 0 for tiles on tmpfs.
 	FileNs float64 `json:"file_ns"`
-	// CountBytes and DiscBytes are the mean size of a count tile and of a
-	// disc tile (PNG).
-	CountBytes float64 `json:"count_tile_bytes"`
-	DiscBytes  float64 `json:"disc_tile_bytes"`
+	// TileBytes is a drawn tile's PNG size beyond its inked pixels
+	// (signature, header, palette or row filters, empty rows).
+	TileBytes float64 `json:"tile_bytes"`
+	// CountInkBytes and DiscInkBytes are the PNG bytes per inked pixel of
+	// a count tile and of a disc tile: about one on tiles that fit a
+	// palette of 256 colours, three to four on truecolour tiles.
+	CountInkBytes float64 `json:"count_ink_bytes"`
+	DiscInkBytes  float64 `json:"disc_ink_bytes"`
 }
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
@@ -58,9 +63,25 @@ var MeasuredRates = Rates{
 	// machines less the same on tmpfs: 0.36–1.1 ms over three rounds at
 	// load 6–23 (BenchmarkTileFiles, BENCHMARKS.md "Tile files"); a part's
 	// own writes overlap its drawing, so a figure from the lower half.
-	FileNs:     0.6e6,
-	CountBytes: 6400,
-	DiscBytes:  3800,
+	FileNs: 0.6e6,
+	// Fitted on the demo, one state and the national map (BENCHMARKS.md,
+	// "Size estimates"): total bytes of each zoom against its predicted
+	// inked pixels (inkedPixels).
+	TileBytes:     TileBytesFit,
+	CountInkBytes: CountInkBytesFit,
+	DiscInkBytes:  DiscInkBytesFit,
+}
+
+// countInkBytes is the PNG bytes per inked pixel of a count tile whose
+// inked pixels hold m dots each on average. With few dots a pixel, a tile's
+// colours fit a palette (about a byte a pixel); with many, the mixes of
+// categories and counts run past 256 colours and the tile is truecolour
+// (DiscInkBytes a pixel). Between 4 and 12 dots a pixel the rate is taken
+// to rise in a straight line: the renders of BENCHMARKS.md ("Size
+// estimates") change over there.
+func (r Rates) countInkBytes(m float64) float64 {
+	t := math.Min(math.Max((m-4)/8, 0), 1)
+	return r.CountInkBytes + t*(r.DiscInkBytes-r.CountInkBytes)
 }
 
 // tileNs is the whole cost of one tile: drawing, encoding and its file.
@@ -73,8 +94,12 @@ type ZoomEstimate struct {
 	Disc  bool    `json:"disc"`
 	Tiles float64 `json:"tiles"`
 	Bytes float64 `json:"bytes"`
-	// PerShard is the expected tiles of each part (zooms ≥ split).
-	PerShard []float64 `json:"-"`
+	// Inked is the expected number of inked pixels over the zoom's tiles.
+	Inked float64 `json:"inked_pixels"`
+	// PerShard and PerShardBytes are the expected tiles and bytes of each
+	// part (zooms ≥ split).
+	PerShard      []float64 `json:"-"`
+	PerShardBytes []float64 `json:"-"`
 }
 
 // Estimate is the expected output of a whole render.
@@ -142,23 +167,47 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 	}
 	coreNs := total * r.SampleNsPerDot
 	for z := p.MinZoom; z <= p.MaxZoom; z++ {
-		ze := ZoomEstimate{Zoom: z, Disc: p.look(z, pass{1}).Diameter >= 1, PerShard: make([]float64, l.Shards)}
-		tilesOfAreas(areas, z, func(tx, ty int, v float64, area int) {
-			ze.Tiles += v
-			if z >= l.Split {
-				if tx >= 0 {
-					ze.PerShard[l.Owner(z, tx, ty)] += v
-				} else {
-					ze.PerShard[l.AreaOwner(areas[area].Bound)] += v
+		ze := ZoomEstimate{Zoom: z, Disc: p.look(z, pass{1}).Diameter >= 1, PerShard: make([]float64, l.Shards), PerShardBytes: make([]float64, l.Shards)}
+		for _, ps := range p.passes() {
+			look := p.look(z, ps)
+			px := float64(p.TileSize * ps.scale)
+			px *= px
+			inkPer := inkPerDot(look)
+			tilesOfAreas(areas, z, func(t tileGuess) {
+				v := t.V
+				if v <= 0 {
+					return
 				}
-			}
-		})
-		b := r.CountBytes
+				n := t.Dots / v // dots per drawn tile
+				ink := v * inkedPixels(n, inkPer, math.Max(px*t.Share, 1))
+				perInk := r.DiscInkBytes
+				if look.Diameter < 1 {
+					perInk = r.countInkBytes(n * inkPer * v / math.Max(ink, 1))
+				}
+				b := v*r.TileBytes + ink*perInk
+				ze.Bytes += b
+				if ps.scale == 1 {
+					ze.Inked += ink
+					ze.Tiles += v
+				}
+				if z >= l.Split {
+					owner := 0
+					if t.Area < 0 {
+						owner = l.Owner(z, t.X, t.Y)
+					} else {
+						owner = l.AreaOwner(areas[t.Area].Bound)
+					}
+					ze.PerShardBytes[owner] += b
+					if ps.scale == 1 {
+						ze.PerShard[owner] += v
+					}
+				}
+			})
+		}
 		ns := r.CountNsPerDot
 		if ze.Disc {
-			b, ns = r.DiscBytes, r.DiscNsPerDot
+			ns = r.DiscNsPerDot
 		}
-		ze.Bytes = ze.Tiles * b * scale
 		e.Zooms = append(e.Zooms, ze)
 		e.Tiles += ze.Tiles * scale
 		e.Bytes += ze.Bytes
@@ -166,17 +215,53 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 	}
 	if l.Split > p.MinZoom {
 		// Pixels of the summary level, treated as tiles one pixel wide.
-		tilesOfAreas(areas, min(l.Level(), dotstore.WorldBits), func(_, _ int, v float64, _ int) { e.Pixels += v })
+		tilesOfAreas(areas, min(l.Level(), dotstore.WorldBits), func(t tileGuess) { e.Pixels += t.V })
 	}
 	e.CoreHours = coreNs / 1e9 / 3600
 	return e
 }
 
-// tilesOfAreas calls fn with expected drawn tiles at zoom z: once per
-// tracked tile (tx, ty ≥ 0) with its probability of holding a dot, and once
-// per large area (tx = −1) with its expected tile count and its index.
-func tilesOfAreas(areas []Area, z int, fn func(tx, ty int, v float64, area int)) {
-	empty := map[[2]int]float64{} // probability that a tracked tile stays empty
+// inkPerDot is the pixels one dot of look d inks on an empty tile: a disc
+// inks every pixel its edge's antialiasing reaches, about a disc half a
+// pixel wider all round; a count tile's dot, smaller than a pixel, inks one.
+func inkPerDot(d render.Dot) float64 {
+	if d.Diameter < 1 {
+		return 1
+	}
+	r := d.Diameter/2 + 0.5
+	return math.Pi * r * r
+}
+
+// inkedPixels is the expected number of inked pixels of a tile of px
+// pixels holding n dots placed at random, each inking a pixels: every
+// pixel stays empty with probability (1 − a/px)^n ≈ e^(−n·a/px).
+func inkedPixels(n, a, px float64) float64 {
+	return px * (1 - math.Exp(-n*a/px))
+}
+
+// tileGuess is an expected drawn tile (or, for a large area, a group of
+// them) of tilesOfAreas.
+type tileGuess struct {
+	// X and Y are the tile's column and row; −1 for a large area's tiles.
+	X, Y int
+	// V is the probability that the tile holds a dot, or a large area's
+	// expected number of drawn tiles.
+	V float64
+	// Dots is the expected number of dots in them.
+	Dots float64
+	// Share is the part of a tile's pixels the dots fall on: the areas'
+	// footprint in the tile (1 for a large area's tiles).
+	Share float64
+	// Area is a large area's index; −1 for a tracked tile.
+	Area int
+}
+
+// tilesOfAreas calls fn with the expected drawn tiles at zoom z: once per
+// tracked tile (an area spanning at most spanLimit tiles is tracked tile by
+// tile) and once per large area.
+func tilesOfAreas(areas []Area, z int, fn func(t tileGuess)) {
+	type tracked struct{ empty, dots, share float64 } // probability that the tile stays empty; expected dots; footprint
+	seen := map[[2]int]*tracked{}
 	var order [][2]int
 	for ai, a := range areas {
 		if !(a.Dots > 0) {
@@ -187,13 +272,19 @@ func tilesOfAreas(areas []Area, z int, fn func(tx, ty int, v float64, area int))
 		tx0, ty0, tx1, ty1 := int(x0>>sh), int(y0>>sh), int(x1>>sh), int(y1>>sh)
 		n := float64((tx1 - tx0 + 1) * (ty1 - ty0 + 1))
 		fill := a.Fill
-		if fill <= 0 || n == 1 {
+		if fill <= 0 || fill > 1 {
+			fill = 1
+		}
+		// The area's footprint per tile of its bound, as a share of a tile.
+		cell := float64(uint64(1) << sh)
+		share := math.Min(fill*float64(x1-x0+1)*float64(y1-y0+1)/(cell*cell*n), 1)
+		if n == 1 {
 			fill = 1
 		}
 		covered := math.Max(fill*n, 1)
 		lambda := a.Dots / covered
 		if n > spanLimit {
-			fn(-1, -1, covered*(1-math.Exp(-lambda)), ai)
+			fn(tileGuess{X: -1, Y: -1, V: covered * (1 - math.Exp(-lambda)), Dots: a.Dots, Share: 1, Area: ai})
 			continue
 		}
 		// Each tracked tile is covered with probability fill.
@@ -204,17 +295,21 @@ func tilesOfAreas(areas []Area, z int, fn func(tx, ty int, v float64, area int))
 		for ty := ty0; ty <= ty1; ty++ {
 			for tx := tx0; tx <= tx1; tx++ {
 				k := [2]int{tx, ty}
-				q, ok := empty[k]
-				if !ok {
-					q = 1
+				t := seen[k]
+				if t == nil {
+					t = &tracked{empty: 1}
+					seen[k] = t
 					order = append(order, k)
 				}
-				empty[k] = q * (1 - pHit)
+				t.empty *= 1 - pHit
+				t.dots += a.Dots / n
+				t.share = math.Min(t.share+share, 1)
 			}
 		}
 	}
 	for _, k := range order {
-		fn(k[0], k[1], 1-empty[k], -1)
+		t := seen[k]
+		fn(tileGuess{X: k[0], Y: k[1], V: 1 - t.empty, Dots: t.dots, Share: t.share, Area: -1})
 	}
 }
 
@@ -258,14 +353,9 @@ func Work(areas []Area, l *Layout, e Estimate, r Rates) []ShardWork {
 		if ze.Zoom < l.Split {
 			continue
 		}
-		b := r.CountBytes
-		if ze.Disc {
-			b = r.DiscBytes
-		}
 		for i := range out {
-			t := ze.PerShard[i]
-			out[i].Tiles += t * scale
-			out[i].Bytes += t * b * scale
+			out[i].Tiles += ze.PerShard[i] * scale
+			out[i].Bytes += ze.PerShardBytes[i]
 		}
 	}
 	// The layout's own estimate, block by block, is the finer one: large
@@ -329,11 +419,11 @@ func newWorkModel(areas []Area, p Pyramid, r Rates, maxSplit int) *workModel {
 	for z := p.MinZoom; z <= p.MaxZoom; z++ {
 		lg := map[int]float64{}
 		var tr []trackedTile
-		tilesOfAreas(areas, z, func(tx, ty int, v float64, area int) {
-			if tx < 0 {
-				lg[area] += v
+		tilesOfAreas(areas, z, func(t tileGuess) {
+			if t.Area >= 0 {
+				lg[t.Area] += t.V
 			} else {
-				tr = append(tr, trackedTile{tx, ty, v})
+				tr = append(tr, trackedTile{t.X, t.Y, t.V})
 			}
 		})
 		wm.tracked[z], wm.large[z] = tr, lg
@@ -378,3 +468,11 @@ func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) [
 	}
 	return sortedBlocks(w)
 }
+
+// The byte rates of MeasuredRates, fitted on the renders of BENCHMARKS.md
+// ("Size estimates").
+const (
+	TileBytesFit     = 200
+	CountInkBytesFit = 1.0
+	DiscInkBytesFit  = 3.4
+)
