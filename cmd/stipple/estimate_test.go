@@ -33,11 +33,17 @@ func TestEstimateMatchesRender(t *testing.T) {
 		{"default", nil},
 		{"hidpi", []string{"--hidpi"}},
 		{"to z13", []string{"--max-zoom", "13"}},
+		{"one category", []string{"one category"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			dir := filepath.Join(t.TempDir(), "demo")
+			one := len(tc.args) == 1 && tc.args[0] == "one category"
+			args := tc.args
+			if one {
+				args = nil
+			}
 			var out, errOut bytes.Buffer
-			if code := run(t.Context(), append([]string{"demo", dir}, tc.args...), &out, &errOut); code != 0 {
+			if code := run(t.Context(), append([]string{"demo", dir}, args...), &out, &errOut); code != 0 {
 				t.Fatalf("demo: exit %d: %s", code, errOut.String())
 			}
 			m, err := mapfile.Read(filepath.Join(dir, "source", "quillmere.toml"))
@@ -45,12 +51,22 @@ func TestEstimateMatchesRender(t *testing.T) {
 				t.Fatal(err)
 			}
 			hidpi := false
-			for i, a := range tc.args {
+			for i, a := range args {
 				switch a {
 				case "--hidpi":
 					hidpi = true
 				case "--max-zoom":
-					m.Tiles.MaxZoom, _ = strconv.Atoi(tc.args[i+1])
+					m.Tiles.MaxZoom, _ = strconv.Atoi(args[i+1])
+				}
+			}
+			if one {
+				// A map of one colour: its tiles fit a palette, about a
+				// third of the bytes per inked pixel.
+				m.Categories = m.Categories[:1]
+				dir = filepath.Join(t.TempDir(), "one")
+				m.Out = dir
+				if _, err := mapjob.Run(t.Context(), m, mapjob.Options{Workers: 2}); err != nil {
+					t.Fatal(err)
 				}
 			}
 			in, err := mapjob.Load(m, nil)

@@ -43,7 +43,7 @@ const planPoints = 64
 // input.
 func PlanShards(in *Input, m *mapfile.Map, n int, hidpi bool) (*ShardPlan, error) {
 	areas := shardAreas(in, m)
-	p := shard.Pyramid{MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size, HiDPI: hidpi, Look: Look(m)}
+	p := shard.Pyramid{MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size, HiDPI: hidpi, Look: Look(m), Categories: len(m.Categories)}
 	l, err := shard.Plan(areas, p, shard.PlanOptions{Shards: n})
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", m.Path, err)

@@ -37,6 +37,13 @@ type Rates struct {
 	// palette of 256 colours, three to four on truecolour tiles.
 	CountInkBytes float64 `json:"count_ink_bytes"`
 	DiscInkBytes  float64 `json:"disc_ink_bytes"`
+	// SingleInkBytes and SparseInkBytes are the PNG bytes per inked pixel
+	// of a map of one category, whose tiles hold one colour at levels of
+	// opacity and always fit a palette: SingleInkBytes on a well-inked
+	// tile, SparseInkBytes on a tile of a few scattered dots, where every
+	// short run of ink costs its own codes (singleInkBytes).
+	SingleInkBytes float64 `json:"single_ink_bytes"`
+	SparseInkBytes float64 `json:"sparse_ink_bytes"`
 }
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
@@ -67,21 +74,32 @@ var MeasuredRates = Rates{
 	// Fitted on the demo, one state and the national map (BENCHMARKS.md,
 	// "Size estimates"): total bytes of each zoom against its predicted
 	// inked pixels (inkedPixels).
-	TileBytes:     TileBytesFit,
-	CountInkBytes: CountInkBytesFit,
-	DiscInkBytes:  DiscInkBytesFit,
+	TileBytes:      TileBytesFit,
+	CountInkBytes:  CountInkBytesFit,
+	DiscInkBytes:   DiscInkBytesFit,
+	SingleInkBytes: SingleInkBytesFit,
+	SparseInkBytes: SparseInkBytesFit,
 }
 
-// countInkBytes is the PNG bytes per inked pixel of a count tile whose
-// inked pixels hold m dots each on average. With few dots a pixel, a tile's
-// colours fit a palette (about a byte a pixel); with many, the mixes of
-// categories and counts run past 256 colours and the tile is truecolour
-// (DiscInkBytes a pixel). Between 4 and 12 dots a pixel the rate is taken
-// to rise in a straight line: the renders of BENCHMARKS.md ("Size
-// estimates") change over there.
+// countInkBytes is the PNG bytes per inked pixel of a count zoom whose
+// inked pixels hold m dots each on average. With about one dot a pixel,
+// the tiles' colours fit a palette (about a byte a pixel); with more, the
+// mixes of categories and counts run past 256 colours and the tiles are
+// truecolour (DiscInkBytes a pixel). Between 1.2 and 3 dots a pixel the
+// rate is taken to rise in a straight line: the count zooms of the renders
+// in BENCHMARKS.md ("Size estimates") change over there.
 func (r Rates) countInkBytes(m float64) float64 {
-	t := math.Min(math.Max((m-4)/8, 0), 1)
+	t := math.Min(math.Max((m-1.2)/1.8, 0), 1)
 	return r.CountInkBytes + t*(r.DiscInkBytes-r.CountInkBytes)
+}
+
+// singleInkBytes is the PNG bytes per inked pixel of a one-category tile
+// with a share f of its pixels inked: SparseInkBytes for a tile of a few
+// dots, falling to SingleInkBytes as the ink joins up (a twentieth of the
+// tile inked is taken as the scale of that change, from the one-category
+// renders of BENCHMARKS.md, "Size estimates").
+func (r Rates) singleInkBytes(f float64) float64 {
+	return r.SingleInkBytes + (r.SparseInkBytes-r.SingleInkBytes)*math.Exp(-f/0.05)
 }
 
 // tileNs is the whole cost of one tile: drawing, encoding and its file.
@@ -173,23 +191,29 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 			px := float64(p.TileSize * ps.scale)
 			px *= px
 			inkPer := inkPerDot(look)
+			// Tiles and inked pixels, in all and per part; the bytes per
+			// inked pixel of a count zoom depend on its dots per inked
+			// pixel, known once the zoom is summed.
+			var tilesAll, inkAll, dotsAll, inkBytes float64
+			partTiles, partInk, partInkBytes := make([]float64, l.Shards), make([]float64, l.Shards), make([]float64, l.Shards)
+			perTile := p.Categories == 1 || look.Diameter >= 1 // bytes per inked pixel known tile by tile
 			tilesOfAreas(areas, z, func(t tileGuess) {
 				v := t.V
 				if v <= 0 {
 					return
 				}
-				n := t.Dots / v // dots per drawn tile
-				ink := v * inkedPixels(n, inkPer, math.Max(px*t.Share, 1))
-				perInk := r.DiscInkBytes
-				if look.Diameter < 1 {
-					perInk = r.countInkBytes(n * inkPer * v / math.Max(ink, 1))
+				ink := v * inkedPixels(t.Dots/v, inkPer, math.Max(px*t.Share, 1))
+				ib := 0.0
+				switch {
+				case p.Categories == 1:
+					ib = ink * r.singleInkBytes(ink/(v*px))
+				case look.Diameter >= 1:
+					ib = ink * r.DiscInkBytes
 				}
-				b := v*r.TileBytes + ink*perInk
-				ze.Bytes += b
-				if ps.scale == 1 {
-					ze.Inked += ink
-					ze.Tiles += v
-				}
+				tilesAll += v
+				inkAll += ink
+				dotsAll += t.Dots
+				inkBytes += ib
 				if z >= l.Split {
 					owner := 0
 					if t.Area < 0 {
@@ -197,12 +221,26 @@ func EstimateTiles(areas []Area, l *Layout, r Rates) Estimate {
 					} else {
 						owner = l.AreaOwner(areas[t.Area].Bound)
 					}
-					ze.PerShardBytes[owner] += b
-					if ps.scale == 1 {
-						ze.PerShard[owner] += v
-					}
+					partTiles[owner] += v
+					partInk[owner] += ink
+					partInkBytes[owner] += ib
 				}
 			})
+			if !perTile {
+				perInk := r.countInkBytes(dotsAll / math.Max(inkAll, 1))
+				inkBytes = inkAll * perInk
+				for i := range partInk {
+					partInkBytes[i] = partInk[i] * perInk
+				}
+			}
+			ze.Bytes += tilesAll*r.TileBytes + inkBytes
+			for i := range partTiles {
+				ze.PerShardBytes[i] += partTiles[i]*r.TileBytes + partInkBytes[i]
+			}
+			if ps.scale == 1 {
+				ze.Tiles, ze.Inked = tilesAll, inkAll
+				copy(ze.PerShard, partTiles)
+			}
 		}
 		ns := r.CountNsPerDot
 		if ze.Disc {
@@ -472,7 +510,9 @@ func (wm *workModel) blocks(areas []Area, s int, points func(int) []orb.Point) [
 // The byte rates of MeasuredRates, fitted on the renders of BENCHMARKS.md
 // ("Size estimates").
 const (
-	TileBytesFit     = 200
-	CountInkBytesFit = 1.0
-	DiscInkBytesFit  = 3.4
+	TileBytesFit      = 300
+	CountInkBytesFit  = 1.0
+	DiscInkBytesFit   = 3.4
+	SingleInkBytesFit = 1.0
+	SparseInkBytesFit = 2.4
 )

@@ -40,6 +40,9 @@ type Pyramid struct {
 	HiDPI bool
 	// Look is the dot's look per zoom, in pixels of TileSize tiles.
 	Look func(z int) render.Dot
+	// Categories is the number of categories, for size estimates (a map
+	// of one colour has palette tiles); 0 for not known.
+	Categories int
 }
 
 // pass is one kind of tile: scale 1 (the 1× tiles) or 2 (@2x).
