@@ -3,35 +3,43 @@ package tiles
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 )
 
 // AltText describes one or more maps in plain text, for screen readers and
 // for the alt attribute of a picture of the map: what the map shows, each
 // category with its total and share, the dot value, where the dots sit,
 // the caution and the source. Several maps (a viewer's layers) get one
-// paragraph each.
+// paragraph each. The words are each map's theme's (Metadata.Theme; the
+// first map's for the opening sentence of several).
 func AltText(maps ...*Metadata) string {
 	var b strings.Builder
 	if len(maps) > 1 {
-		fmt.Fprintf(&b, "A viewer of %d dot-density maps, which can be shown one at a time or two side by side.\n\n", len(maps))
+		tx := theme.Or(maps[0].Theme).Text
+		b.WriteString(theme.Fill(tx.AltViewer, "n", strconv.Itoa(len(maps))))
+		b.WriteString("\n\n")
 	}
 	for i, m := range maps {
 		if i > 0 {
 			b.WriteString("\n")
 		}
 		if len(maps) > 1 {
+			tx := theme.Or(m.Theme).Text
 			label := m.LayerLabel
 			if label == "" {
 				label = m.Layer
 			}
+			n := strconv.Itoa(i + 1)
 			if label != "" {
-				fmt.Fprintf(&b, "Map %d (%s): ", i+1, label)
+				b.WriteString(theme.Fill(tx.AltMapNumberNamed, "n", n, "name", label))
 			} else {
-				fmt.Fprintf(&b, "Map %d: ", i+1)
+				b.WriteString(theme.Fill(tx.AltMapNumber, "n", n))
 			}
+			b.WriteString(" ")
 		}
 		b.WriteString(altOne(m))
 		b.WriteString("\n")
@@ -40,18 +48,25 @@ func AltText(maps ...*Metadata) string {
 }
 
 func altOne(m *Metadata) string {
+	tx := theme.Or(m.Theme).Text
 	var b strings.Builder
+	// sentence adds s after a space.
+	sentence := func(s string) {
+		if b.Len() > 0 {
+			b.WriteString(" ")
+		}
+		b.WriteString(s)
+	}
 	title := strings.TrimSpace(m.Title)
 	if title == "" {
-		title = "untitled"
+		title = tx.AltUntitled
 	}
-	fmt.Fprintf(&b, "Dot-density map: %s.", strings.TrimSuffix(title, "."))
+	sentence(theme.Fill(tx.AltTitle, "title", strings.TrimSuffix(title, ".")))
 	if m.PeoplePerDot == 1 {
-		b.WriteString(" Each dot stands for one person")
+		sentence(tx.AltDotsOne)
 	} else {
-		fmt.Fprintf(&b, " Each dot stands for %s people", render.FormatCount(m.PeoplePerDot))
+		sentence(theme.Fill(tx.AltDots, "n", render.FormatCount(m.PeoplePerDot)))
 	}
-	b.WriteString(", coloured by group and placed at random inside the area where they were counted.")
 	total := 0.0
 	for _, c := range m.Categories {
 		total += c.People
@@ -59,9 +74,10 @@ func altOne(m *Metadata) string {
 	switch len(m.Categories) {
 	case 0:
 	case 1:
-		fmt.Fprintf(&b, " One group: %s, %s people.", m.Categories[0].Label, render.FormatCount(m.Categories[0].People))
+		c := m.Categories[0]
+		sentence(theme.Fill(tx.AltOneGroup, "label", c.Label, "people", render.FormatCount(c.People)))
 	default:
-		fmt.Fprintf(&b, " %d groups, %s people in all:", len(m.Categories), render.FormatCount(total))
+		sentence(theme.Fill(tx.AltGroups, "n", strconv.Itoa(len(m.Categories)), "people", render.FormatCount(total)))
 		for i, c := range m.Categories {
 			sep := ";"
 			if i == len(m.Categories)-1 {
@@ -71,41 +87,43 @@ func altOne(m *Metadata) string {
 			if total > 0 {
 				share = 100 * c.People / total
 			}
-			fmt.Fprintf(&b, " %s, %s people (%.1f%%)%s", c.Label, render.FormatCount(c.People), share, sep)
+			sentence(theme.Fill(tx.AltGroup, "label", c.Label, "people", render.FormatCount(c.People), "share", fmt.Sprintf("%.1f%%", share)) + sep)
 		}
 	}
-	if m.NotDrawn.People+m.NotDrawn.RowsWithoutArea > 0 {
-		fmt.Fprintf(&b, " %s people are not drawn.", render.FormatCount(m.NotDrawn.People+m.NotDrawn.RowsWithoutArea))
+	if n := m.NotDrawn.People + m.NotDrawn.RowsWithoutArea; n > 0 {
+		sentence(theme.Fill(tx.AltNotDrawn, "people", render.FormatCount(n)))
 	}
 	if m.NotDrawn.BeyondTileLimit > 0 {
-		fmt.Fprintf(&b, " %s people are beyond the tile projection's latitude limit (85.05° north or south) and are not on the tiles.", render.FormatCount(m.NotDrawn.BeyondTileLimit))
+		sentence(theme.Fill(tx.AltBeyondLimit, "people", render.FormatCount(m.NotDrawn.BeyondTileLimit)))
 	}
 	if ms := m.Measures; ms != nil && ms.H != nil && ms.M != nil {
-		fmt.Fprintf(&b, " Theil's H, how unevenly the groups are spread over the areas (0 when every area has the whole map's mix, 1 when each area holds one group), is %.3f.", *ms.H)
-		fmt.Fprintf(&b, " The mutual information index M, H times the diversity of the whole map, is %.3f.", *ms.M)
+		sentence(theme.Fill(tx.AltTheilH, "h", fmt.Sprintf("%.3f", *ms.H)))
+		sentence(theme.Fill(tx.AltMutualInformation, "m", fmt.Sprintf("%.3f", *ms.M)))
 		if iv := ms.Intervals; iv != nil && iv.H[0] != nil && iv.H[1] != nil {
-			fmt.Fprintf(&b, " The counts are survey estimates: over %d seeded draws of the counts within their margins of error, %.0f%% of the values of H lie between %.3f and %.3f.",
-				iv.Draws, 100*iv.Level, *iv.H[0], *iv.H[1])
+			sentence(theme.Fill(tx.AltInterval, "draws", strconv.Itoa(iv.Draws), "level", fmt.Sprintf("%.0f%%", 100*iv.Level),
+				"low", fmt.Sprintf("%.3f", *iv.H[0]), "high", fmt.Sprintf("%.3f", *iv.H[1])))
 		}
 	}
-	if where := boundsText(m.Bounds); where != "" {
-		fmt.Fprintf(&b, " The map covers %s.", where)
+	if where := boundsText(tx, m.Bounds); where != "" {
+		sentence(where)
 	}
 	if c := strings.TrimSpace(m.Caution); c != "" {
-		fmt.Fprintf(&b, " %s", c)
+		sentence(c)
 	}
 	if c := m.Theme.CreditLine(m.Credit); c != "" {
-		fmt.Fprintf(&b, " %s", c)
 		if !strings.HasSuffix(c, ".") {
-			b.WriteString(".")
+			c += "."
 		}
+		sentence(c)
 	}
 	return b.String()
 }
 
-// boundsText writes [west, south, east, north] as "128.56°W to 128.26°W,
-// 34.36°S to 34.09°S".
-func boundsText(bb [4]float64) string {
+// boundsText says where [west, south, east, north] is, in the theme's
+// words (AltCovers): "The map covers longitudes 128.56°W to 128.26°W and
+// latitudes 34.36°S to 34.09°S."; "" for bounds that are not finite or
+// all zero.
+func boundsText(tx theme.Text, bb [4]float64) string {
 	for _, v := range bb {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return ""
@@ -119,8 +137,9 @@ func boundsText(bb [4]float64) string {
 		if v < 0 {
 			h, v = neg, -v
 		}
-		return fmt.Sprintf("%.2f°%s", v, h)
+		return theme.Fill(h, "degrees", fmt.Sprintf("%.2f", v))
 	}
-	return fmt.Sprintf("longitudes %s to %s and latitudes %s to %s",
-		deg(bb[0], "E", "W"), deg(bb[2], "E", "W"), deg(bb[1], "N", "S"), deg(bb[3], "N", "S"))
+	return theme.Fill(tx.AltCovers,
+		"west", deg(bb[0], tx.LongitudeEast, tx.LongitudeWest), "east", deg(bb[2], tx.LongitudeEast, tx.LongitudeWest),
+		"south", deg(bb[1], tx.LatitudeNorth, tx.LatitudeSouth), "north", deg(bb[3], tx.LatitudeNorth, tx.LatitudeSouth))
 }

@@ -2,9 +2,11 @@ package tiles
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 )
 
 // MethodsFile is the name of the methods note written beside map.json.
@@ -47,46 +49,54 @@ type MethodsNotDrawn struct {
 // MethodsText is the methods note of a map, plain text that a desk can
 // paste under a story: the source, the dot value, how dots were placed
 // and rounded (with the seed), what was not drawn and why, the repairs
-// made to the areas, and the caution.
+// made to the areas, and the caution, in the words of the map's theme
+// (Metadata.Theme).
 func MethodsText(m *Metadata) string {
+	th := theme.Or(m.Theme)
+	tx := th.Text
 	var b strings.Builder
+	line := func(s string) {
+		b.WriteString(s)
+		b.WriteString("\n")
+	}
 	me := m.Methods
 	if me == nil {
-		me = &Methods{Source: render.CreditLine(m.Credit), PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Caution: m.Caution}
+		me = &Methods{Source: m.Theme.CreditLine(m.Credit), PeoplePerDot: m.PeoplePerDot, Seed: m.Seed, Caution: m.Caution}
 	}
 	title := m.Title
 	if title == "" {
-		title = "this map"
+		title = tx.MethodsUntitled
 	}
-	fmt.Fprintf(&b, "About the map: %s\n\n", title)
+	line(theme.Fill(tx.MethodsTitle, "title", title) + "\n")
 	if me.Source != "" {
-		fmt.Fprintf(&b, "%s\n\n", me.Source)
+		line(me.Source + "\n")
 	} else {
-		b.WriteString("Source: not given in the map file.\n\n")
+		line(tx.MethodsNoSource + "\n")
 	}
-	fmt.Fprintf(&b, "%s. The map shows %s people in %s with %s dots.\n",
-		render.DotNote(me.PeoplePerDot), render.FormatCount(me.People), plural(me.Groups, "group", "groups"), render.FormatCount(float64(me.Dots)))
-	fmt.Fprintf(&b, "Each dot is placed at random inside the area its people were counted in, by a generator seeded with %d: the same data and seed place every dot in the same spot.\n", me.Seed)
+	line(theme.Fill(tx.MethodsTotals, "dot_note", th.DotNote(me.PeoplePerDot), "people", render.FormatCount(me.People),
+		"groups", count(me.Groups, tx.MethodsGroupsOne, tx.MethodsGroups), "dots", render.FormatCount(float64(me.Dots))))
+	line(theme.Fill(tx.MethodsPlacement, "seed", strconv.FormatUint(me.Seed, 10)))
 	if me.RoundingRule != "" {
-		fmt.Fprintf(&b, "Rounding: %s\n", me.RoundingRule)
+		line(theme.Fill(tx.MethodsRounding, "rule", me.RoundingRule))
 	}
 	b.WriteString("\n")
 	if len(me.NotDrawn) == 0 {
-		b.WriteString("Not drawn: none; every person counted has a dot.\n")
+		line(tx.MethodsAllDrawn)
 	} else {
-		b.WriteString("Not drawn:\n")
+		line(tx.MethodsNotDrawn)
 		for _, n := range me.NotDrawn {
-			where := ""
+			people := render.FormatCount(n.People)
 			if n.Areas > 0 {
-				where = " in " + plural(n.Areas, "area", "areas")
+				line("- " + theme.Fill(tx.MethodsNotDrawnIn, "people", people, "areas", count(n.Areas, tx.MethodsAreasOne, tx.MethodsAreas), "reason", n.Reason))
+			} else {
+				line("- " + theme.Fill(tx.MethodsNotDrawnRow, "people", people, "reason", n.Reason))
 			}
-			fmt.Fprintf(&b, "- %s people%s: %s\n", render.FormatCount(n.People), where, n.Reason)
 		}
 	}
 	var parts []string
 	for _, r := range repairOrder {
 		if n := me.Repairs[r.key]; n > 0 {
-			parts = append(parts, fmt.Sprintf("%s %d", r.text, n))
+			parts = append(parts, theme.Fill(*r.text(&tx), "n", strconv.Itoa(n)))
 		}
 	}
 	repairs := 0
@@ -94,41 +104,49 @@ func MethodsText(m *Metadata) string {
 		repairs += n
 	}
 	if me.GeometryNotes == 0 && repairs == 0 {
-		b.WriteString("Repairs: none; the area boundaries were used as they were.\n")
+		line(tx.MethodsNoRepairs)
 	} else {
-		fmt.Fprintf(&b, "Repairs: %s made while reading the area boundaries", plural(repairs, "repair", "repairs"))
+		rs := count(repairs, tx.MethodsRepairsCountOne, tx.MethodsRepairsCount)
+		notes := count(me.GeometryNotes, tx.MethodsNotesCountOne, tx.MethodsNotesCount)
 		if len(parts) > 0 {
-			fmt.Fprintf(&b, " (%s)", strings.Join(parts, ", "))
+			line(theme.Fill(tx.MethodsRepairs, "repairs", rs, "kinds", strings.Join(parts, ", "), "notes", notes))
+		} else {
+			line(theme.Fill(tx.MethodsRepairsNoKinds, "repairs", rs, "notes", notes))
 		}
-		fmt.Fprintf(&b, "; %s on the areas (stipple inspect lists them).\n", plural(me.GeometryNotes, "geometry note", "geometry notes"))
 	}
 	if ms := m.Measures; ms != nil && ms.H != nil && ms.M != nil {
-		b.WriteString("\nMixing measures (Theil & Finizza 1971; Reardon & Firebaugh 2002; per-area figures in " + ms.AreaTable + "):\n")
-		fmt.Fprintf(&b, "- Theil's H = %.3f: how unevenly the groups are spread over the areas, from 0 (every area has the whole map's mix) to 1 (each area holds one group only).\n", *ms.H)
-		fmt.Fprintf(&b, "- Mutual information M = %.3f: H times the entropy of the whole map's mix of groups, in natural units.\n", *ms.M)
+		b.WriteString("\n")
+		line(theme.Fill(tx.MethodsMeasures, "file", ms.AreaTable))
+		line("- " + theme.Fill(tx.MethodsTheilH, "h", fmt.Sprintf("%.3f", *ms.H)))
+		line("- " + theme.Fill(tx.MethodsMutualInformation, "m", fmt.Sprintf("%.3f", *ms.M)))
 		if iv := ms.Intervals; iv != nil && iv.H[0] != nil && iv.H[1] != nil {
-			fmt.Fprintf(&b, "- The counts are survey estimates: over %d draws of the counts within their margins of error (seed %d), %.0f%% of the values of H lie between %.3f and %.3f.\n",
-				iv.Draws, iv.Seed, 100*iv.Level, *iv.H[0], *iv.H[1])
+			line("- " + theme.Fill(tx.MethodsInterval, "draws", strconv.Itoa(iv.Draws), "seed", strconv.FormatUint(iv.Seed, 10),
+				"level", fmt.Sprintf("%.0f%%", 100*iv.Level), "low", fmt.Sprintf("%.3f", *iv.H[0]), "high", fmt.Sprintf("%.3f", *iv.H[1])))
 		}
-		b.WriteString("These measure evenness; exposure, concentration, centralization and clustering are other sides of segregation (Massey & Denton 1988).\n")
+		line(tx.MethodsEvenness)
 	}
-	fmt.Fprintf(&b, "\nCaution: %s\n", me.Caution)
+	b.WriteString("\n")
+	line(theme.Fill(tx.MethodsCaution, "caution", me.Caution))
 	if m.Version != "" {
-		fmt.Fprintf(&b, "\nMade with stipple %s.\n", m.Version)
+		b.WriteString("\n")
+		line(theme.Fill(tx.MethodsMadeWith, "version", m.Version))
 	}
 	return b.String()
 }
 
 // repairOrder names the keys of Methods.Repairs in the order the note
-// lists them.
-var repairOrder = []struct{ key, text string }{
-	{"closed_rings", "rings closed"},
-	{"dropped_points", "repeated points dropped"},
-	{"dropped_rings", "rings without area dropped"},
-	{"self_intersecting", "self-intersecting rings filled even-odd"},
-	{"antimeridian", "rings unwrapped at 180°"},
-	{"polar_rings", "rings closed along a pole"},
-	{"empty_features", "areas without a polygon"},
+// lists them, each with its words in a theme.
+var repairOrder = []struct {
+	key  string
+	text func(*theme.Text) *string
+}{
+	{"closed_rings", func(t *theme.Text) *string { return &t.MethodsRepairClosedRings }},
+	{"dropped_points", func(t *theme.Text) *string { return &t.MethodsRepairDroppedPoints }},
+	{"dropped_rings", func(t *theme.Text) *string { return &t.MethodsRepairDroppedRings }},
+	{"self_intersecting", func(t *theme.Text) *string { return &t.MethodsRepairSelfIntersecting }},
+	{"antimeridian", func(t *theme.Text) *string { return &t.MethodsRepairAntimeridian }},
+	{"polar_rings", func(t *theme.Text) *string { return &t.MethodsRepairPolarRings }},
+	{"empty_features", func(t *theme.Text) *string { return &t.MethodsRepairEmptyFeatures }},
 }
 
 // RepairKeys lists the keys Methods.Repairs may hold.
@@ -140,9 +158,10 @@ func RepairKeys() []string {
 	return k
 }
 
-func plural(n int, one, many string) string {
+// count is one when n is 1, else many with {n} filled in ("1,204 areas").
+func count(n int, one, many string) string {
 	if n == 1 {
-		return "1 " + one
+		return one
 	}
-	return render.FormatCount(float64(n)) + " " + many
+	return theme.Fill(many, "n", render.FormatCount(float64(n)))
 }

@@ -7,7 +7,6 @@ import (
 	"html"
 	"strings"
 
-	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -51,7 +50,7 @@ func TileJSONOf(m *Metadata, base string) *TileJSON {
 	}
 	t.Description = strings.TrimSpace(m.Note + ". " + m.Caution)
 	// §3.4: a client may show the attribution as HTML, so it is escaped.
-	t.Attribution = html.EscapeString(render.CreditLine(m.Credit))
+	t.Attribution = html.EscapeString(creditLine(m))
 	b := &t.Bounds
 	if b[0] > b[2] {
 		b[0], b[2] = -180, 180
@@ -68,6 +67,16 @@ func TileJSONOf(m *Metadata, base string) *TileJSON {
 	c[1] = max(b[1], min(b[3], c[1]))
 	c[2] = float64(max(m.MinZoom, min(m.MaxZoom, int(c[2]))))
 	return t
+}
+
+// creditLine is m's credit after its theme's prefix. Metadata read back
+// from map.json has no theme; its methods block keeps the line as the
+// render wrote it.
+func creditLine(m *Metadata) string {
+	if m.Theme == nil && m.Methods != nil && m.Methods.Source != "" {
+		return m.Methods.Source
+	}
+	return m.Theme.CreditLine(m.Credit)
 }
 
 // PutTileJSON writes m's TileJSON descriptor (tile URLs relative to it) to

@@ -1,6 +1,7 @@
 package page
 
 import (
+	"reflect"
 	"strings"
 	"sync"
 
@@ -107,18 +108,42 @@ func (t *typeface) pdfFamily() string {
 }
 
 // Words are a page's own words, for a desk to translate; empty fields are
-// English. Scale holds {denominator} and {latitude}.
+// DefaultWords'. Scale holds {denominator} and {latitude}; the projection
+// notes and the four hemisphere forms hold the placeholders DefaultWords
+// shows.
 type Words struct {
 	People, Dots, All     string
 	Scale, ScaleUndefined string
+	// Albers (standard parallels {parallel1} and {parallel2}), AlbersOne
+	// ({parallel}), LAEA ({latitude} {longitude}), EqualEarth
+	// ({longitude}), Mercator and PlateCarree describe the projection
+	// (Describe); the page adds a full stop.
+	Albers, AlbersOne, LAEA, EqualEarth, Mercator, PlateCarree string
+	// North, South, East and West write {degrees} of latitude or
+	// longitude: "{degrees}°N".
+	North, South, East, West string
 }
 
+// DefaultWords are the English words of a page.
+var DefaultWords = Words{
+	People: "people", Dots: "dots", All: "All",
+	Scale:          "Scale 1 : {denominator}, true at the map centre ({latitude})",
+	ScaleUndefined: "Scale not defined at the map centre.",
+	Albers:         "Albers equal-area conic, standard parallels {parallel1} and {parallel2}, WGS 84",
+	AlbersOne:      "Albers equal-area conic, standard parallel {parallel}, WGS 84",
+	LAEA:           "Lambert azimuthal equal-area, centred at {latitude} {longitude}, WGS 84",
+	EqualEarth:     "Equal Earth, central meridian {longitude}, WGS 84",
+	Mercator:       "Web Mercator (EPSG:3857), not equal-area: dots thin out towards the poles",
+	PlateCarree:    "Plate carrée (equirectangular), not equal-area",
+	North:          "{degrees}°N", South: "{degrees}°S", East: "{degrees}°E", West: "{degrees}°W",
+}
+
+// or is w with DefaultWords in its empty fields.
 func (w Words) or() Words {
-	def := Words{People: "people", Dots: "dots", All: "All",
-		Scale: "Scale 1 : {denominator}, true at the map centre ({latitude})", ScaleUndefined: "Scale not defined at the map centre."}
-	for _, f := range []struct{ p, d *string }{{&w.People, &def.People}, {&w.Dots, &def.Dots}, {&w.All, &def.All}, {&w.Scale, &def.Scale}, {&w.ScaleUndefined, &def.ScaleUndefined}} {
-		if *f.p == "" {
-			*f.p = *f.d
+	v, d := reflect.ValueOf(&w).Elem(), reflect.ValueOf(DefaultWords)
+	for i := range v.NumField() {
+		if v.Field(i).String() == "" {
+			v.Field(i).SetString(d.Field(i).String())
 		}
 	}
 	return w

@@ -4,7 +4,6 @@ import (
 	"image/color"
 	"math"
 	"strconv"
-	"strings"
 
 	"github.com/stipple-maps/stipple/geo/proj"
 	"github.com/stipple-maps/stipple/render"
@@ -184,7 +183,7 @@ func (l *Layout) notesColumn(x, y, w float64, bar *scaleBar) ([]item, float64) {
 			items, _ = l.textBlock(items, []string{bar.caption}, x, capY, small, false, muted)
 		}
 	}
-	items, y = l.textBlock(items, l.tf.wrap(Describe(l.spec.Projection)+".", small, false, w), x, y, small, false, muted)
+	items, y = l.textBlock(items, l.tf.wrap(l.words.Describe(l.spec.Projection)+".", small, false, w), x, y, small, false, muted)
 	y += 1.5 * fs
 	items, y = l.textBlock(items, l.tf.wrap(l.spec.Caution, small, false, w), x, y, small, false, ink)
 	for _, fn := range l.spec.Footnotes {
@@ -238,7 +237,7 @@ func (l *Layout) scaleBar(maxLen float64) scaleBar {
 	num := func(v float64) string { return strconv.FormatFloat(v/div, 'f', -1, 64) }
 	b.last = num(d)
 	b.ticks = []string{"0", num(d / 2), b.last + " " + unit}
-	b.caption = strings.NewReplacer("{denominator}", render.FormatCount(roundSig(b.denominator, 3)), "{latitude}", latString(lat)).Replace(l.words.Scale)
+	b.caption = fill(l.words.Scale, "{denominator}", render.FormatCount(roundSig(b.denominator, 3)), "{latitude}", l.words.latitude(lat))
 	return b
 }
 

@@ -72,9 +72,14 @@ func Projection(name string, extent orb.Bound) (proj.Projection, error) {
 }
 
 // Describe returns a short human description of p for the page's fine
-// print, e.g. "Albers equal-area conic, standard parallels 34.30°S and
-// 34.15°S, WGS 84". It reads the parameters from p's PROJ string.
-func Describe(p proj.Projection) string {
+// print in DefaultWords, e.g. "Albers equal-area conic, standard
+// parallels 34.3°S and 34.15°S, WGS 84". It reads the parameters from
+// p's PROJ string.
+func Describe(p proj.Projection) string { return Words{}.Describe(p) }
+
+// Describe is Describe in w's words (DefaultWords where w is empty).
+func (w Words) Describe(p proj.Projection) string {
+	w = w.or()
 	params := map[string]string{}
 	for _, f := range strings.Fields(p.String()) {
 		k, v, _ := strings.Cut(strings.TrimPrefix(f, "+"), "=")
@@ -85,42 +90,50 @@ func Describe(p proj.Projection) string {
 		if err != nil {
 			return "?"
 		}
-		return latString(v)
+		return w.latitude(v)
 	}
 	lon := func(key string) string {
 		v, err := strconv.ParseFloat(params[key], 64)
 		if err != nil {
 			v = 0
 		}
-		h := "E"
-		if v < 0 {
-			h, v = "W", -v
-		}
-		return strconv.FormatFloat(round(v, 2), 'f', -1, 64) + "°" + h
+		return w.longitude(v)
 	}
-	datum := "WGS 84"
 	switch params["proj"] {
 	case "aea":
 		if params["lat_1"] == params["lat_2"] {
-			return fmt.Sprintf("Albers equal-area conic, standard parallel %s, %s", lat("lat_1"), datum)
+			return fill(w.AlbersOne, "{parallel}", lat("lat_1"))
 		}
-		return fmt.Sprintf("Albers equal-area conic, standard parallels %s and %s, %s", lat("lat_1"), lat("lat_2"), datum)
+		return fill(w.Albers, "{parallel1}", lat("lat_1"), "{parallel2}", lat("lat_2"))
 	case "laea":
-		return fmt.Sprintf("Lambert azimuthal equal-area, centred at %s %s, %s", lat("lat_0"), lon("lon_0"), datum)
+		return fill(w.LAEA, "{latitude}", lat("lat_0"), "{longitude}", lon("lon_0"))
 	case "eqearth":
-		return fmt.Sprintf("Equal Earth, central meridian %s, %s", lon("lon_0"), datum)
+		return fill(w.EqualEarth, "{longitude}", lon("lon_0"))
 	case "webmerc", "merc":
-		return "Web Mercator (EPSG:3857), not equal-area: dots thin out towards the poles"
+		return w.Mercator
 	case "eqc":
-		return "Plate carrée (equirectangular), not equal-area"
+		return w.PlateCarree
 	}
 	return p.String()
 }
 
-func latString(v float64) string {
-	h := "N"
+// fill replaces each placeholder of s, given as placeholder, value pairs.
+func fill(s string, pairs ...string) string { return strings.NewReplacer(pairs...).Replace(s) }
+
+// latitude writes v degrees of latitude to two decimals: "34.15°S".
+func (w Words) latitude(v float64) string {
+	h := w.North
 	if v < 0 {
-		h, v = "S", -v
+		h, v = w.South, -v
 	}
-	return strconv.FormatFloat(round(v, 2), 'f', -1, 64) + "°" + h
+	return fill(h, "{degrees}", strconv.FormatFloat(round(v, 2), 'f', -1, 64))
+}
+
+// longitude writes v degrees of longitude to two decimals: "128.5°W".
+func (w Words) longitude(v float64) string {
+	h := w.East
+	if v < 0 {
+		h, v = w.West, -v
+	}
+	return fill(h, "{degrees}", strconv.FormatFloat(round(v, 2), 'f', -1, 64))
 }

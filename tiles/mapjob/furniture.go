@@ -29,7 +29,7 @@ func Metadata(m *mapfile.Map, s *Summary) *tiles.Metadata {
 		Bounds:  [4]float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]},
 		MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size,
 		Tiles: tiles.TilesTemplate, PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Note: m.Theme.DotNote(m.PeoplePerDot), Caution: cautionOf(theme.Or(m.Theme).Text.Caution, s), Theme: m.Theme,
+		Note: m.Theme.DotNote(m.PeoplePerDot), Caution: cautionOf(theme.Or(m.Theme).Text, s), Theme: m.Theme,
 		TileCount: s.Tiles.Tiles, TileBytes: s.Tiles.Bytes, PerZoom: s.Tiles.PerZoom,
 	}
 	if s.Tiles.Tiles2x > 0 {
@@ -140,15 +140,16 @@ func PutFurniture(ctx context.Context, out sink.Sink, md *tiles.Metadata, colors
 	})
 }
 
-// EstimatesCaution is added to the caution of a map whose counts are
-// survey estimates with published margins of error.
+// EstimatesCaution is what the default theme adds to the caution of a map
+// whose counts are survey estimates with published margins of error: a
+// space and theme.Text.CautionEstimates.
 const EstimatesCaution = " These counts are survey estimates with margins of error: small differences between areas may not be real."
 
-// cautionOf is the map's caution: the theme's (base), and a word on
-// estimates when the counts carry margins of error.
-func cautionOf(base string, s *Summary) string {
+// cautionOf is the map's caution: the theme's, and its word on estimates
+// when the counts carry margins of error.
+func cautionOf(tx theme.Text, s *Summary) string {
 	if s.Estimates {
-		return base + EstimatesCaution
+		return tx.Caution + " " + tx.CautionEstimates
 	}
-	return base
+	return tx.Caution
 }

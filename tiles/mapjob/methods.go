@@ -6,32 +6,39 @@ import (
 	"image/color"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
-// roundingRules says in a sentence what each rounding rule does (the
-// rules are sample.Allocate's).
-var roundingRules = map[string]string{
-	"random": "each area gets its people divided by the dot value in whole dots, and the fraction of a dot left over becomes one more dot with a chance equal to that fraction, so rounding favours no area and the expected total equals the count (the drawn total may differ from it by a few dots).",
-	"exact":  "each group gets exactly its total people divided by the dot value, rounded to the nearest whole dot, shared among the areas by largest remainders.",
+// roundingRule says in a sentence, in the words of tx, what a rounding
+// rule does (the rules are sample.Allocate's); "" for an unknown rule.
+func roundingRule(tx theme.Text, rule string) string {
+	switch rule {
+	case "random":
+		return tx.MethodsRoundingRandom
+	case "exact":
+		return tx.MethodsRoundingExact
+	}
+	return ""
 }
 
 // MethodsOf is the methods block of the map m made with summary s: the
 // credit, the dot value, the seed and rounding rule, the totals, the
 // people not drawn by reason, the repairs made to the areas, and the
-// caution.
+// caution, in the words of the map's theme.
 func MethodsOf(m *mapfile.Map, s *Summary) *tiles.Methods {
+	tx := theme.Or(m.Theme).Text
 	rounding := m.Rounding
 	if rounding == "" {
 		rounding = "random"
 	}
 	me := &tiles.Methods{
-		Source: render.CreditLine(m.Credit), PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
-		Rounding: rounding, RoundingRule: roundingRules[rounding], Groups: len(m.Categories),
+		Source: m.Theme.CreditLine(m.Credit), PeoplePerDot: m.PeoplePerDot, Seed: m.Seed,
+		Rounding: rounding, RoundingRule: roundingRule(tx, rounding), Groups: len(m.Categories),
 		NotDrawn: []tiles.MethodsNotDrawn{}, GeometryNotes: s.GeometryNotes, Repairs: map[string]int{},
-		Caution: render.Caution,
+		Caution: tx.Caution,
 	}
 	for k := range m.Categories {
 		if k < len(s.People) {
@@ -46,11 +53,11 @@ func MethodsOf(m *mapfile.Map, s *Summary) *tiles.Methods {
 	}
 	if s.BeyondPeople > 0 {
 		me.NotDrawn = append(me.NotDrawn, tiles.MethodsNotDrawn{People: s.BeyondPeople,
-			Reason: "beyond the tiles' latitude limit (85.05° north or south), which Web Mercator tiles cannot show; print pages draw them"})
+			Reason: tx.MethodsBeyondLimit})
 	}
 	if s.RowsWithoutArea > 0 {
 		me.NotDrawn = append(me.NotDrawn, tiles.MethodsNotDrawn{People: s.RowsWithoutArea,
-			Reason: "in rows of the count table that match no area"})
+			Reason: tx.MethodsRowsWithoutArea})
 	}
 	r := s.Repairs
 	for key, n := range map[string]int{

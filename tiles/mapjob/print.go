@@ -20,11 +20,15 @@ import (
 // printWords are the print page's own words from the map's theme.
 func printWords(t *theme.Theme) page.Words {
 	tx := theme.Or(t).Text
-	return page.Words{People: tx.People, Dots: tx.Dots, All: tx.All, Scale: tx.Scale, ScaleUndefined: tx.ScaleUndefined}
+	return page.Words{People: tx.People, Dots: tx.Dots, All: tx.All, Scale: tx.Scale, ScaleUndefined: tx.ScaleUndefined,
+		Albers: tx.ProjectionAlbers, AlbersOne: tx.ProjectionAlbersOne, LAEA: tx.ProjectionLAEA,
+		EqualEarth: tx.ProjectionEqualEarth, Mercator: tx.ProjectionMercator, PlateCarree: tx.ProjectionPlateCarree,
+		North: tx.LatitudeNorth, South: tx.LatitudeSouth, East: tx.LongitudeEast, West: tx.LongitudeWest}
 }
 
-// PrintCaution is printed on every page: the map caution, which already
-// says that maps of groups can be misused.
+// PrintCaution is the English caution of every page (the default
+// theme's): the map caution, which already says that maps of groups can
+// be misused. A page prints its map's theme's caution.
 const PrintCaution = render.Caution
 
 // PlaceForPrint returns the map's dots for a print page: the store a
@@ -125,6 +129,7 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 		return nil, err
 	}
 	colors := m.RGBA()
+	tx := theme.Or(m.Theme).Text
 	spec := page.Spec{
 		Size: opt.Size, DPI: opt.DPI, Margin: opt.Margin, Title: m.Title,
 		Note: m.Theme.DotNote(m.PeoplePerDot), Caution: theme.Or(m.Theme).Text.Caution, Credit: m.Theme.CreditLine(m.Credit),
@@ -149,8 +154,8 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 		for k := range res.People {
 			res.People[k] = float64(res.Dots[k]) * m.PeoplePerDot
 		}
-		spec.Footnotes = append(spec.Footnotes, fmt.Sprintf("People: the %s dots inside the box %s × %s people per dot; areas cut by the box count by their dots inside it.",
-			render.FormatCount(float64(sum(res.Dots))), ExtentOfBound(extent), render.FormatCount(m.PeoplePerDot)))
+		spec.Footnotes = append(spec.Footnotes, theme.Fill(tx.PrintFramePeople, "dots", render.FormatCount(float64(sum(res.Dots))),
+			"box", ExtentOfBound(extent).String(), "n", render.FormatCount(m.PeoplePerDot)))
 	} else {
 		var t Tally
 		if areas == nil {
@@ -164,9 +169,9 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 			res.Dots[k] = t.Dots[k] + t.Beyond[k]
 		}
 		if opt.Rule != "" {
-			spec.Footnotes = append(spec.Footnotes, "People and dots: "+opt.Rule+".")
+			spec.Footnotes = append(spec.Footnotes, theme.Fill(tx.PrintRule, "rule", opt.Rule))
 		}
-		spec.Footnotes = append(spec.Footnotes, NotDrawnNote(t.NotDrawn))
+		spec.Footnotes = append(spec.Footnotes, NotDrawnNote(m.Theme, t.NotDrawn))
 		if opt.Outlines {
 			spec.Outlines = []orb.MultiPolygon{}
 			if areas == nil {
@@ -188,9 +193,9 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	spec.Subtitle = opt.Subtitle
 	if spec.Subtitle == "" {
 		if opt.Frame != nil {
-			spec.Subtitle = fmt.Sprintf("About %s people inside the frame", render.FormatCount(total))
+			spec.Subtitle = theme.Fill(tx.PrintSubtitleFrame, "people", render.FormatCount(total))
 		} else {
-			spec.Subtitle = fmt.Sprintf("%s people in %s areas", render.FormatCount(total), render.FormatCount(float64(res.Areas)))
+			spec.Subtitle = theme.Fill(tx.PrintSubtitle, "people", render.FormatCount(total), "areas", render.FormatCount(float64(res.Areas)))
 		}
 	}
 	if spec.References, err = printReferences(in, m, areas); err != nil {
@@ -211,12 +216,14 @@ func Print(ctx context.Context, in *Input, m *mapfile.Map, pl *Placed, opt Print
 	return res, ctx.Err()
 }
 
-// NotDrawnNote is the print footnote on people whose dots found no place.
-func NotDrawnNote(people float64) string {
+// NotDrawnNote is the print footnote on people whose dots found no place,
+// in the words of theme t (nil: theme.Default).
+func NotDrawnNote(t *theme.Theme, people float64) string {
+	tx := theme.Or(t).Text
 	if people == 0 {
-		return "Not drawn: 0 people; every dot found room in its area."
+		return tx.PrintAllDrawn
 	}
-	return fmt.Sprintf("Not drawn: %s people, in areas too small or too thin to hold their dots.", render.FormatCount(people))
+	return theme.Fill(tx.PrintNotDrawn, "people", render.FormatCount(people))
 }
 
 func sum(v []int) int {

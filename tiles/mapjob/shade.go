@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/stipple-maps/stipple/geo/measure"
+	"github.com/stipple-maps/stipple/render/theme"
 	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 )
@@ -19,7 +20,8 @@ var ShadeBreaks = [6]float64{0, 0.2, 0.4, 0.6, 0.8, 1}
 // default dot palette and light enough for dots to read on.
 var ShadeRamp = [5]string{"#f8f0e3", "#e9d7c0", "#dabc9a", "#c89e77", "#b27d59"}
 
-// ShadeKeyTitle heads the shading's key in the viewer and on print pages.
+// ShadeKeyTitle is the default theme's heading of the shading's key in
+// the viewer and on print pages (theme.Text.ShadeKeyTitle).
 const ShadeKeyTitle = "Diversity of each area (0 = one group, 1 = all groups equal)"
 
 // ShadeClass is the class (0 to 4) of a normalised entropy score v.
@@ -41,7 +43,7 @@ func shadeLabel(c int) string {
 // as reference layers under the dots, one per class in class order, each
 // with its key label: every area with people is one polygon (each part
 // of a multipart area one) of its class's colour. Areas without people
-// are not shaded. It returns nil when the map does not ask for shading
+// are not shaded. The key's heading is the map theme's. It returns nil when the map does not ask for shading
 // (shade_diversity).
 func DiversityShade(in *Input, m *mapfile.Map, idx []int) ([]tiles.Reference, error) {
 	if !m.ShadeDiversity {
@@ -54,7 +56,7 @@ func DiversityShade(in *Input, m *mapfile.Map, idx []int) ([]tiles.Reference, er
 	}
 	out := make([]tiles.Reference, len(ShadeRamp))
 	for c := range out {
-		out[c] = tiles.Reference{Kind: mapfile.RefAreas, Color: ShadeRamp[c], Key: shadeLabel(c), KeyTitle: ShadeKeyTitle}
+		out[c] = tiles.Reference{Kind: mapfile.RefAreas, Color: ShadeRamp[c], Key: shadeLabel(c), KeyTitle: theme.Or(m.Theme).Text.ShadeKeyTitle}
 	}
 	for r, a := range areas {
 		if !(a.People > 0) {
