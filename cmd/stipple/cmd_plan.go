@@ -115,7 +115,7 @@ func printPlan(w io.Writer, m *mapfile.Map, p *shardPlan) {
 	f := p.Final
 	fmt.Fprintf(tw, "final\t%s pixels\t\t\t\t%s\t%.1f\t%.3f\t\n", render.FormatCount(math.Round(f.Cells)), render.FormatCount(math.Round(f.Tiles)), f.Bytes/1e6, f.CoreHours)
 	tw.Flush()
-	fmt.Fprintln(w, "expected tiles per zoom (1× tiles; estimates from the areas' shapes and dots, ±20% is typical):")
+	fmt.Fprintln(w, "expected tiles per zoom (1× tiles; estimates from the areas' shapes and dots, within 25% of what a render wrote on the maps of BENCHMARKS.md):")
 	tw = tabwriter.NewWriter(w, 2, 8, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "zoom\tkind\ttiles\tMB\tpart\t")
 	for _, z := range p.Est.Zooms {
@@ -129,5 +129,5 @@ func printPlan(w io.Writer, m *mapfile.Map, p *shardPlan) {
 		fmt.Fprintf(tw, "%d\t%s\t%s\t%.1f\t%s\t\n", z.Zoom, kind, render.FormatCount(math.Round(z.Tiles)), z.Bytes/1e6, who)
 	}
 	tw.Flush()
-	fmt.Fprintf(w, "total: about %s tiles, %.0f MB, %.2f core-hours (rates measured on %s)\n", render.FormatCount(math.Round(p.Est.Tiles)), p.Est.Bytes/1e6, p.Est.CoreHours, p.Rates.Source)
+	fmt.Fprintf(w, "total: about %s tiles, %s, %.2f core-hours (rates measured on %s)\n", render.FormatCount(math.Round(p.Est.Tiles)), sizeText(p.Est.Bytes), p.Est.CoreHours, p.Rates.Source)
 }
