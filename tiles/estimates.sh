@@ -34,10 +34,11 @@ keep() {
 }
 row() {
 	local label=$1 name=$2
-	local est tiles mb
-	est=$("$bin" plan "$work/$name.toml" | tail -1)
-	tiles=$(echo "$est" | sed -E 's/^total: about ([0-9,]+) tiles.*/\1/' | tr -d ,)
-	mb=$(echo "$est" | sed -E 's/^total: about [0-9,]+ tiles, ([0-9]+) MB.*/\1/')
+	local tiles mb
+	# The estimate's own totals are the JSON's keys at four spaces in.
+	"$bin" plan "$work/$name.toml" --json >"$work/plan.json"
+	tiles=$(sed -nE 's/^    "tiles": ([0-9.e+]+),?$/\1/p' "$work/plan.json" | head -1)
+	mb=$(sed -nE 's/^    "bytes": ([0-9.e+]+),?$/\1/p' "$work/plan.json" | head -1 | awk '{print $1 / 1e6}')
 	rm -rf "$work/out"
 	"$bin" render "$work/$name.toml" --out "$work/out" >/dev/null
 	local n b
