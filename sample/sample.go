@@ -107,7 +107,19 @@ func Feature(f *geo.Feature, counts []float64, opt Options, emit func(cat int, p
 // counts from Allocate in exact mode) and calls emit like Feature. Dot i of
 // category k is the same point as the i-th dot Feature would draw for k: it
 // depends on (Seed, f.ID, k, i), f's geometry and the masks only.
-func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.Point)) (r Result) {
+func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.Point)) Result {
+	return FeatureNSin(f, dots, opt, func(cat int, p orb.Point, _ float64) { emit(cat, p) })
+}
+
+// FeatureNSin is FeatureN whose emit also receives sinLat, the sine of the
+// dot's latitude as the sampler drew it: dots are drawn in the plane
+// (longitude, sin latitude) and p[1] is the arcsine of that draw, so sinLat
+// is the draw itself, not math.Sin(p[1]) with its rounding. (Dots of a
+// feature without area lie on its outline in lon/lat; theirs is
+// math.Sin(p[1]).) Web Mercator's northing is atanh(sin φ), so a caller can
+// project the dot without trigonometry (dotstore.WorldFromSin). The dots
+// are FeatureN's, in the same order.
+func FeatureNSin(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.Point, sinLat float64)) (r Result) {
 	maxTry := opt.MaxAttempts
 	if maxTry <= 0 {
 		maxTry = DefaultMaxAttempts
@@ -142,7 +154,7 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 				}
 				r.Dots[cat]++
 				placed++
-				emit(cat, pt)
+				emit(cat, pt, math.Sin(pt[1]*degToRad))
 			}
 		}
 		if placed > 0 {
@@ -157,6 +169,7 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 		type dot struct {
 			cat int
 			p   orb.Point
+			sin float64
 		}
 		buf := make([]dot, 0, total)
 		ok := true
@@ -164,18 +177,18 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 		for cat, n := range dots {
 			for i := 0; i < n; i++ {
 				p := stream(opt.Seed, id, streamOf(opt.Streams, cat), uint64(i))
-				pt, hit := shape.pointUnmasked(&p, maxTry, opt.Masks)
+				pt, sin, hit := shape.pointUnmasked(&p, maxTry, opt.Masks)
 				if !hit {
 					ok = false
 					break masked
 				}
-				buf = append(buf, dot{cat, pt})
+				buf = append(buf, dot{cat, pt, sin})
 			}
 		}
 		if ok {
 			for _, d := range buf {
 				r.Dots[d.cat]++
-				emit(d.cat, d.p)
+				emit(d.cat, d.p, d.sin)
 			}
 			return r
 		}
@@ -193,14 +206,14 @@ func FeatureN(f *geo.Feature, dots []int, opt Options, emit func(cat int, p orb.
 				continue
 			}
 			p := stream(opt.Seed, id, streamOf(opt.Streams, cat), uint64(i))
-			pt, ok := shape.Point(&p, maxTry)
+			pt, sin, ok := shape.point(&p, maxTry)
 			if !ok {
 				r.Lost[cat]++
 				lost = true
 				continue
 			}
 			r.Dots[cat]++
-			emit(cat, pt)
+			emit(cat, pt, sin)
 		}
 	}
 	if lost {

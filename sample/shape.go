@@ -209,10 +209,12 @@ func (pt *part) propose(p *rand.PCG) (x, y float64, ok bool) {
 // rings with edges straight in lon/lat: a horizontal ray in the plane is a
 // parallel, so even-odd ray casting on (x, latitude) against the lon/lat
 // edges is ray casting in the plane against the curved images of the edges.
-// It returns the point's latitude too.
-func (pt *part) inside(x, y float64) (lat float64, ok bool) {
-	lat = math.Asin(math.Max(-1, math.Min(1, y))) / degToRad
-	return lat, pt.ll.contains(x, lat)
+// It returns the point's latitude too, and y clamped to [-1, 1] (the sine of
+// that latitude as drawn).
+func (pt *part) inside(x, y float64) (lat, sin float64, ok bool) {
+	sin = math.Max(-1, math.Min(1, y))
+	lat = math.Asin(sin) / degToRad
+	return lat, sin, pt.ll.contains(x, lat)
 }
 
 // Area is the shape's area on the unit sphere (steradians). For parts whose
@@ -225,26 +227,33 @@ func (s *Shape) Area() float64 { return s.area * degToRad }
 // rejected proposal starts over from the choice of part, which makes the
 // result uniform over the union of the parts whatever their methods.
 func (s *Shape) Point(p *rand.PCG, maxTry int) (orb.Point, bool) {
+	q, _, ok := s.point(p, maxTry)
+	return q, ok
+}
+
+// point is Point that also returns the sine of the point's latitude as
+// drawn (the plane's y).
+func (s *Shape) point(p *rand.PCG, maxTry int) (orb.Point, float64, bool) {
 	for try := 0; try < maxTry && len(s.parts) > 0; try++ {
 		pt := &s.parts[s.pick.draw(p)]
 		if x, y, ok := pt.propose(p); ok {
-			if lat, in := pt.inside(x, y); in {
-				return orb.Point{wrapLon(x), lat}, true
+			if lat, sin, in := pt.inside(x, y); in {
+				return orb.Point{wrapLon(x), lat}, sin, true
 			}
 		}
 	}
-	return orb.Point{}, false
+	return orb.Point{}, 0, false
 }
 
-// pointUnmasked is Point that also rejects points inside masks.
-func (s *Shape) pointUnmasked(p *rand.PCG, maxTry int, m *Mask) (orb.Point, bool) {
+// pointUnmasked is point that also rejects points inside masks.
+func (s *Shape) pointUnmasked(p *rand.PCG, maxTry int, m *Mask) (orb.Point, float64, bool) {
 	for try := 0; try < maxTry && len(s.parts) > 0; try++ {
 		pt := &s.parts[s.pick.draw(p)]
 		x, y, ok := pt.propose(p)
 		if !ok {
 			continue
 		}
-		lat, in := pt.inside(x, y)
+		lat, sin, in := pt.inside(x, y)
 		if !in {
 			continue
 		}
@@ -252,9 +261,9 @@ func (s *Shape) pointUnmasked(p *rand.PCG, maxTry int, m *Mask) (orb.Point, bool
 		if m.containsLonLat(x, y, lat) {
 			continue
 		}
-		return orb.Point{x, lat}, true
+		return orb.Point{x, lat}, sin, true
 	}
-	return orb.Point{}, false
+	return orb.Point{}, 0, false
 }
 
 // Contains tells whether point q (lon/lat degrees) is inside the shape by

@@ -31,7 +31,7 @@ func MercatorPhi(y float64) float64 { return math.Pi/2 - 2*math.Atan(math.Exp(-y
 // It is written as ½ ln((1+s)/(1−s)) rather than math.Atanh because that is
 // the form tiles' outline drawing has always used (as does orb's
 // maptile.Fraction): keeping it keeps outline tiles byte-identical. The two
-// differ by rounding only (TestMercatorYSin).
+// differ by rounding only (TestMercatorYSinMatchesTanForm).
 func MercatorYSin(s float64) float64 { return 0.5 * math.Log((1+s)/(1-s)) }
 
 // WebMercator is the Popular Visualisation Pseudo Mercator of EPSG:3857

@@ -8,7 +8,9 @@
 // (Z-order) interleave of x and y in the high 58 bits, the category in the low
 // 6. Sorting the keys sorts the dots along the Z-order curve, and the dots of
 // tile (z, x, y) for any z ≤ WorldBits are exactly the keys whose top 2z bits
-// equal the interleave of the tile's x and y.
+// equal the interleave of the tile's x and y. Placed dots get their cells
+// from WorldFromSin (longitude and the sine of latitude the sampler drew);
+// World takes longitude and latitude.
 //
 // Size: a Builder gathers keys from many goroutines within a memory budget
 // (16 bytes a dot: the keys and the radix sort's second buffer). Past the

@@ -2,6 +2,7 @@ package dotstore_test
 
 import (
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 
@@ -38,4 +39,23 @@ func ExampleSortKeys() {
 	dotstore.SortKeys(keys, make([]uint64, len(keys)), 2)
 	fmt.Println(keys)
 	// Output: [0 7 7 42 1152921504606846976]
+}
+
+// The sampler draws dots in the plane (longitude, sin latitude);
+// WorldFromSin takes that sine as it is. Here the point of IOGP Guidance
+// Note 7-2's Web Mercator example (24°22′54.433″N, 100°20′W), whose
+// EPSG:3857 northing is 2 800 000.00 m: the same cell as World's from the
+// latitude, whose centre lies within half a cell (3.7 cm) of that northing.
+func ExampleWorldFromSin() {
+	lat := 24 + 22.0/60 + 54.433/3600
+	lon := -(100 + 20.0/60)
+	x, y := dotstore.WorldFromSin(lon, math.Sin(lat*math.Pi/180))
+	wx, wy := dotstore.World(lon, lat)
+	half := math.Pi * 6378137 // half the square world's width, metres
+	n := half - (float64(y)+0.5)/dotstore.WorldSize*2*half
+	fmt.Println(x, y, x == wx && y == wy)
+	fmt.Printf("N = %.2f m\n", n)
+	// Output:
+	// 118807544 230924840 true
+	// N = 2799999.98 m
 }

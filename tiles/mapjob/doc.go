@@ -9,10 +9,11 @@
 //     dots depend on (areas, counts, id field, seed, people per dot,
 //     rounding, category keys and fields, and the masks' contents).
 //   - Place puts the dots (package sample) into a sorted dot store
-//     (tiles/dotstore) under a memory budget, stopping when its context is
-//     done, for all areas or a subset, keeping all dots or those a filter
-//     picks (a shard's margin). The store is kept in a state folder and
-//     reused while the fingerprint matches. Per-area outcomes record dots
+//     (tiles/dotstore; each dot's world cell from the sine of latitude the
+//     sampler drew, dotstore.WorldFromSin) under a memory budget, stopping
+//     when its context is done, for all areas or a subset, keeping all
+//     dots or those a filter picks (a shard's margin). The store is kept
+//     in a state folder and reused while the fingerprint matches. Per-area outcomes record dots
 //     lost (an area with people but no polygon) and dots beyond Web
 //     Mercator's latitude limit, which tiles cannot show.
 //   - TallyAreas accounts, per category, for the people of any set of areas:

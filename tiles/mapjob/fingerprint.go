@@ -16,7 +16,10 @@ import (
 
 // sampleFormat names the dot store layout and the sampling rules behind it;
 // change it when sample places dots differently, so old stores are redone.
-const sampleFormat = "stipple-dots/3" // 3: one fingerprint for every command; category keys
+// 3: one fingerprint for every command; category keys. 4: world cells from
+// the sine the sampler drew (dotstore.WorldFromSin), which moves a rare dot
+// to the neighbouring cell.
+const sampleFormat = "stipple-dots/4"
 
 // tileFormat names how tiles are drawn; change it when pixels change, so
 // a rerun redraws instead of keeping old tiles.

@@ -253,7 +253,7 @@ func placeStore(ctx context.Context, in *Input, m *mapfile.Map, opt PlaceOptions
 					continue
 				}
 				var beyond []int
-				r := sample.FeatureN(&fs[i], in.Dots[i], sopt, func(cat int, p orb.Point) {
+				r := sample.FeatureNSin(&fs[i], in.Dots[i], sopt, func(cat int, p orb.Point, sinLat float64) {
 					if math.Abs(p[1]) > proj.WebMercatorMaxLat {
 						// Tiles end at Web Mercator's latitude limit: a dot
 						// beyond it is counted, not clamped onto the edge.
@@ -263,7 +263,9 @@ func placeStore(ctx context.Context, in *Input, m *mapfile.Map, opt PlaceOptions
 						beyond[cat]++
 						return
 					}
-					x, y := dotstore.World(p[0], p[1])
+					// The world cell from the sine the sampler drew: no
+					// arcsine rounding, no tangent (dotstore.WorldFromSin).
+					x, y := dotstore.WorldFromSin(p[0], sinLat)
 					k := dotstore.Key(x, y, cat)
 					if opt.Keep != nil && !opt.Keep(k) {
 						return
