@@ -1,6 +1,7 @@
 package render
 
 import (
+	"cmp"
 	"fmt"
 	"image"
 	"image/color"
@@ -305,8 +306,9 @@ func BenchmarkDrawTile(b *testing.B) {
 
 // BenchmarkDenseTile draws 100 000 dots of five mixed categories on one
 // 256 px tile (about 1.5 per pixel; a twentieth of them partly off the
-// canvas) and composites it: the drawing cost of a dense tile. ns/dot is
-// per dot drawn, compositing included.
+// canvas) and composites it: the drawing cost of a dense tile. The dots
+// come in Morton (Z) order of their centres, as the tile writer reads them
+// from the dot store. ns/dot is per dot drawn, compositing included.
 func BenchmarkDenseTile(b *testing.B) {
 	for _, diam := range []float64{1.13, 1.6, 3} {
 		b.Run(fmt.Sprint("d=", diam), func(b *testing.B) {
@@ -320,6 +322,7 @@ func BenchmarkDenseTile(b *testing.B) {
 				// Centres from 3 px beyond each edge to 3 px inside.
 				dots[i] = dot{rng.IntN(5), rng.IntN(262*Sub) - 3*Sub, rng.IntN(262*Sub) - 3*Sub}
 			}
+			slices.SortFunc(dots, func(a, b dot) int { return cmp.Compare(morton(a.x+3*Sub, a.y+3*Sub), morton(b.x+3*Sub, b.y+3*Sub)) })
 			for b.Loop() {
 				for _, d := range dots {
 					c.AddStamp(d.cat, d.x, d.y, st)
@@ -329,6 +332,15 @@ func BenchmarkDenseTile(b *testing.B) {
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(dots)), "ns/dot")
 		})
 	}
+}
+
+// morton interleaves the bits of x and y (x in the even bits).
+func morton(x, y int) uint64 {
+	var m uint64
+	for b := 0; b < 32; b++ {
+		m |= uint64(x>>b&1)<<(2*b) | uint64(y>>b&1)<<(2*b+1)
+	}
+	return m
 }
 
 // TestCountNIsRepeatedCount: CountN(n) leaves the canvas as n calls of
