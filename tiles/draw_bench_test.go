@@ -10,8 +10,8 @@ import (
 )
 
 // denseTileSet is a dense benchmark tile set: 900 000 dots spread evenly
-// over a 3 × 3 block of zoom-12 tiles (about 14 dots per pixel across the
-// block), five categories mixed everywhere in shares of 40, 25, 15, 12 and
+// over a 3 × 3 block of zoom-12 tiles (about 1.5 dots per pixel at zoom 12
+// and 6 at zoom 11), five categories mixed everywhere in shares of 40, 25, 15, 12 and
 // 8 %, drawn with the national example's look: 1.6 px at zoom 12, 1.13 px
 // at zoom 11, opacity 0.7.
 func denseTileSet() (*dotstore.Store, func(int) render.Dot) {
