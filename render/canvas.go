@@ -387,40 +387,36 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 					if pc == 0 {
 						continue
 					}
+					// The categories whose bits are set: below 7 each
+					// has coverage (no bit is set without), from 7 on
+					// each may.
 					var r, g, b uint64
-					var inked uint64 // bit k: category k has coverage here
-					add := func(k int) {
-						v := &c.cov[k*c.plane+p]
-						w := uint64(*v)
+					inked := uint64(pc & 0x7f) // bit k: category k has coverage
+					add := func(k int) uint64 {
+						i := k*c.plane + p
+						w := uint64(c.cov[i])
 						sum += w
 						r += w * cr[k]
 						g += w * cg[k]
 						b += w * cb[k]
-						inked |= (w | -w) >> 63 << k
 						if drain {
-							*v = 0
+							c.cov[i] = 0
 						}
+						return w
 					}
-					if n <= 8 {
-						// Few categories: read them all, in a loop
-						// of fixed length.
-						for k := 0; k < n; k++ {
-							add(k)
-						}
-					} else {
-						for m := pc & 0x7f; m != 0; m &= m - 1 {
-							add(bits.TrailingZeros8(m))
-						}
-						if pc&0x80 != 0 {
-							for k := 7; k < n; k++ {
-								add(k)
-							}
+					for m := pc & 0x7f; m != 0; m &= m - 1 {
+						add(bits.TrailingZeros8(m))
+					}
+					if pc&0x80 != 0 {
+						for k := 7; k < n; k++ {
+							w := add(k)
+							inked |= (w | -w) >> 63 << k
 						}
 					}
 					if drain {
 						c.cats[p] = 0
 					}
-					if inked == 0 {
+					if sum == 0 {
 						continue
 					}
 					rgb = solid[bits.TrailingZeros64(inked)]
