@@ -39,13 +39,15 @@ func plainDisc(cov []uint32, w, h, ncat, cat, x, y int, d Dot) {
 // and the emptiness the canvas is left in. Dots fall anywhere from well
 // off the canvas to well inside (edges, corners and partial dots included,
 // and a share placed right at the edges); canvases are narrower and wider
-// than the 64-pixel words compositing reads, categories from one to past
+// than the chunks compositing reads, categories from one to past
 // the shared bit 7, diameters up to MaxStampDiameter (whose rows are longer
 // than 64 pixels) and opacities down to one so faint that some or all
 // sub-pixel offsets ink nothing.
 func TestAddStampMatchesPlainDisc(t *testing.T) {
 	rng := rand.New(rand.NewPCG(19, 4))
-	sizes := [][2]int{{13, 9}, {70, 33}, {130, 67}, {200, 150}}
+	// Widths from under one 8-pixel word to past 512 pixels, where a
+	// row's 64 chunks grow wider than 8 pixels.
+	sizes := [][2]int{{13, 9}, {70, 33}, {130, 67}, {200, 150}, {700, 24}, {1100, 19}}
 	ncats := []int{1, 3, 5, 9, 12}
 	diams := []float64{1, 1.13, 1.6, 2.2, 3, 4.7, 9, 20, MaxStampDiameter}
 	opacities := []float64{1, 0.7, 0.3, 0.05, 0.00015}
@@ -177,8 +179,8 @@ func TestStampPadding(t *testing.T) {
 // into another with AddHalf, against plain per-category count arrays.
 func TestCountCanvasMatchesPlainCounts(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 19))
-	for _, ncat := range []int{1, 4, 10} {
-		const w, h = 72, 40 // wider than one 64-pixel word
+	for _, tc := range []struct{ ncat, w, h int }{{1, 72, 40}, {4, 72, 40}, {10, 72, 40}, {3, 600, 6}} {
+		ncat, w, h := tc.ncat, tc.w, tc.h
 		c := NewCanvas(w, h, ncat)
 		want := make([]uint32, w*h*ncat)
 		for i := 0; i < 3000; i++ {
