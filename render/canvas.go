@@ -388,8 +388,9 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 						continue
 					}
 					// The categories whose bits are set: below 7 each
-					// has coverage (no bit is set without), from 7 on
-					// each may.
+					// has coverage (no bit is set without; were one,
+					// the weighted mean below would give the same
+					// colour), from 7 on each may.
 					var r, g, b uint64
 					inked := uint64(pc & 0x7f) // bit k: category k has coverage
 					add := func(k int) uint64 {

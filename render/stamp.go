@@ -15,7 +15,8 @@ type Stamp struct {
 	// cells[f] lists the non-zero pixels of offset f = fy*Sub + fx, row by
 	// row; spans[f] cuts them into runs of at most 64 adjacent pixels of
 	// one row, whose weights lie in weights; rows top[f] ≤ dy <
-	// top[f]+nrows[f] hold them (and, padded, maybe one more).
+	// top[f]+nrows[f] hold them (padded, maybe with rows below them that
+	// hold none).
 	cells   [Sub * Sub][]stampCell
 	spans   [Sub * Sub][]stampSpan
 	top     [Sub * Sub]int32
@@ -83,8 +84,9 @@ func NewStamp(d Dot) *Stamp {
 // run the same number of times whatever the offset: the extra cells repeat
 // the first with weight 0 (adding nothing to a pixel the dot inks anyway),
 // and the extra rows, below the last, are marked as maybe inked, which
-// costs compositing a look at them and changes no pixel. Rows stay within
-// the reach.
+// costs compositing a look at them and changes no pixel. Rows are padded
+// only when the padded ones all stay within the reach, where AddStamp's
+// test for a dot inside the canvas vouches for them.
 func (s *Stamp) pad() {
 	nc, nr := 0, int32(0)
 	for f := range s.cells {
