@@ -1,6 +1,7 @@
 package render
 
 import (
+	"encoding/binary"
 	"image"
 	"image/color"
 	"math"
@@ -19,22 +20,22 @@ type Canvas struct {
 	W, H int
 	// NCat is the number of categories.
 	NCat int
-	// A pixel covered by one category only (below 7) keeps its coverage
-	// in tot[y*W+x]; a pixel covered by several keeps it per category in
-	// cov[(y*W+x)*NCat+cat], which is zero elsewhere. Most pixels of a dot
-	// map hold one category, and tot is a fifth the size of cov.
-	tot []uint32
-	cov []uint32
-	// rows[y] is set once coverage lands on row y; bit x%64 of
-	// mask[y*wpr+x/64] once it lands on pixel (x, y). Compositing and
-	// clearing visit the marked pixels only.
-	rows []bool
-	mask []uint64
-	wpr  int // mask words per row
+	// cov holds one plane of W·H values per category: the coverage of
+	// category k at pixel p is cov[k*plane+p]. A dot adds to one plane
+	// only, and a row of a dot is a run of adjacent values.
+	cov   []uint32
+	plane int // W·H
 	// cats[y*W+x] has bit k set when category k (k < 7) has coverage
 	// on the pixel, and bit 7 when any category from 7 on has; a pixel is
-	// single when cats is one bit below bit 7.
-	cats    []uint8
+	// single when cats is one bit below bit 7. Most pixels of a dot map
+	// hold one category, and compositing reads one plane for them. cats
+	// has 64 spare bytes at its end, so that any row can be read in
+	// words of 8 or 64 pixels past its end.
+	cats []uint8
+	// rows[y] is set once coverage may have landed on row y: compositing
+	// and clearing read the rows so marked only, and in them the pixels
+	// whose cats are not zero.
+	rows    []bool
 	touched bool
 	// stampCells are the cells of stamp as offsets into this canvas
 	// (bindStamp).
@@ -49,73 +50,61 @@ func catBit(k int) uint8 { return 1 << min(k, 7) }
 // category, known by its bit.
 func single(cb uint8) bool { return cb != 0 && cb&(cb-1) == 0 && cb < 1<<7 }
 
-// deposit adds w to category cat of pixel q.
+// deposit adds w (not zero) to category cat of pixel q.
 func (c *Canvas) deposit(q, cat int, w uint32) {
-	cb := c.cats[q]
-	if bit := catBit(cat); cat < 7 && (cb == 0 || cb == bit) {
-		c.tot[q] += w
-		c.cats[q] = bit
-		return
-	}
-	c.mixed(q, cat, cb)[cat] += w
+	c.cov[cat*c.plane+q] += w
+	c.cats[q] |= catBit(cat)
 }
 
-// mixed marks pixel q (category bits cb) as holding category cat besides
-// what it holds, moving a single category's coverage from tot into its
-// cell, and returns the pixel's cells.
-func (c *Canvas) mixed(q, cat int, cb uint8) []uint32 {
-	n := c.NCat
-	cell := c.cov[q*n : q*n+n : q*n+n]
-	if single(cb) {
-		cell[bits.TrailingZeros8(cb)] = c.tot[q]
-		c.tot[q] = 0
+// eachCat calls fn with every category whose bit is set in cb: those
+// below 7 by their own bits, and all from 7 on when bit 7 is set.
+func (c *Canvas) eachCat(cb uint8, fn func(k int)) {
+	for m := cb & 0x7f; m != 0; m &= m - 1 {
+		fn(bits.TrailingZeros8(m))
 	}
-	c.cats[q] = cb | catBit(cat)
-	return cell
+	if cb&0x80 != 0 {
+		for k := 7; k < c.NCat; k++ {
+			fn(k)
+		}
+	}
 }
 
 // Coverage is the coverage (or count) of category cat at pixel (x, y).
 func (c *Canvas) Coverage(x, y, cat int) uint32 {
-	q := y*c.W + x
-	if cb := c.cats[q]; single(cb) {
-		if bits.TrailingZeros8(cb) == cat {
-			return c.tot[q]
-		}
-		return 0
-	}
-	return c.cov[q*c.NCat+cat]
+	return c.cov[cat*c.plane+y*c.W+x]
 }
 
 // NewCanvas returns an empty w × h canvas for ncat categories.
 func NewCanvas(w, h, ncat int) *Canvas {
-	wpr := (w + 63) / 64
-	return &Canvas{W: w, H: h, NCat: ncat, tot: make([]uint32, w*h), cov: make([]uint32, w*h*ncat),
-		rows: make([]bool, h), mask: make([]uint64, wpr*h), wpr: wpr, cats: make([]uint8, w*h)}
+	return &Canvas{W: w, H: h, NCat: ncat, cov: make([]uint32, w*h*ncat), plane: w * h,
+		rows: make([]bool, h), cats: make([]uint8, w*h+64)}
 }
 
-// mark records that pixels x0 ≤ x < x1 (x0 < x1) of row y received
-// coverage.
-func (c *Canvas) mark(y, x0, x1 int) {
-	c.rows[y] = true
-	m := c.mask[y*c.wpr : (y+1)*c.wpr]
-	w0, w1 := x0>>6, (x1-1)>>6
-	lo := ^uint64(0) << (x0 & 63)
-	hi := ^uint64(0) >> (63 - (x1-1)&63)
-	if w0 == w1 {
-		m[w0] |= lo & hi
-		return
+// inked returns a bit for each of the 64 pixels from (x, y) on (x a
+// multiple of 64), set when the pixel holds coverage; bits beyond the
+// row's end are zero. It reads cats eight pixels at a time.
+func (c *Canvas) inked(y, x int) uint64 {
+	b := c.cats[y*c.W+x:][:64]
+	var m uint64
+	for j := 0; j < 8; j++ {
+		if w := binary.LittleEndian.Uint64(b[8*j:]); w != 0 {
+			m |= nonZeroBytes(w) << (8 * j)
+		}
 	}
-	m[w0] |= lo
-	for w := w0 + 1; w < w1; w++ {
-		m[w] = ^uint64(0)
+	if n := c.W - x; n < 64 {
+		m &= 1<<n - 1
 	}
-	m[w1] |= hi
+	return m
 }
 
-// mark1 records that pixel (x, y) received coverage.
-func (c *Canvas) mark1(x, y int) {
-	c.rows[y] = true
-	c.mask[y*c.wpr+x>>6] |= 1 << (x & 63)
+// nonZeroBytes has bit k set when byte k of w (little-endian) is not zero.
+func nonZeroBytes(w uint64) uint64 {
+	const lo7, hi1 = 0x7f7f7f7f7f7f7f7f, 0x8080808080808080
+	// The top bit of every non-zero byte, then those eight bits gathered
+	// into the top byte, byte k's as bit k (the products land on distinct
+	// bits, so nothing carries).
+	t := ((w&lo7 + lo7) | w) & hi1
+	return t >> 7 * 0x0102040810204080 >> 56
 }
 
 // Reset clears the canvas for reuse.
@@ -123,19 +112,14 @@ func (c *Canvas) Reset() {
 	if !c.touched {
 		return
 	}
-	n := c.NCat
 	for y, used := range c.rows {
 		if !used {
 			continue
 		}
-		m := c.mask[y*c.wpr : (y+1)*c.wpr]
-		for wi, bitsLeft := range m {
-			for bitsLeft != 0 {
-				p := y*c.W + wi<<6 + bits.TrailingZeros64(bitsLeft)
-				bitsLeft &= bitsLeft - 1
-				c.clearPixel(p, n)
+		for x := 0; x < c.W; x += 64 {
+			for left := c.inked(y, x); left != 0; left &= left - 1 {
+				c.clearPixel(y*c.W + x + bits.TrailingZeros64(left))
 			}
-			m[wi] = 0
 		}
 		c.rows[y] = false
 	}
@@ -143,11 +127,8 @@ func (c *Canvas) Reset() {
 }
 
 // clearPixel empties pixel p.
-func (c *Canvas) clearPixel(p, n int) {
-	if !single(c.cats[p]) {
-		clear(c.cov[p*n : p*n+n])
-	}
-	c.tot[p] = 0
+func (c *Canvas) clearPixel(p int) {
+	c.eachCat(c.cats[p], func(k int) { c.cov[k*c.plane+p] = 0 })
 	c.cats[p] = 0
 }
 
@@ -203,7 +184,7 @@ func (c *Canvas) Add(cat int, x, y float64, d Dot) {
 				continue
 			}
 			c.deposit(row+px, cat, w)
-			c.mark1(px, py)
+			c.rows[py] = true
 			c.touched = true
 		}
 	}
@@ -227,7 +208,7 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 			continue
 		}
 		c.deposit(py*c.W+px, cat, v)
-		c.mark1(px, py)
+		c.rows[py] = true
 		c.touched = true
 	}
 }
@@ -236,16 +217,11 @@ func (c *Canvas) splat(cat int, x, y, mass float64) {
 // saturating at the largest uint32.
 func (c *Canvas) Count(cat, px, py int) {
 	p := py*c.W + px
-	cb := c.cats[p]
-	if bit := catBit(cat); cat < 7 && (cb == 0 || cb == bit) {
-		if c.tot[p] != math.MaxUint32 {
-			c.tot[p]++
-		}
-		c.cats[p] = bit
-	} else if cell := c.mixed(p, cat, cb); cell[cat] != math.MaxUint32 {
-		cell[cat]++
+	if v := &c.cov[cat*c.plane+p]; *v != math.MaxUint32 {
+		*v++
 	}
-	c.mark1(px, py)
+	c.cats[p] |= catBit(cat)
+	c.rows[py] = true
 	c.touched = true
 }
 
@@ -255,22 +231,15 @@ func (c *Canvas) CountN(cat, px, py int, n uint32) {
 	if n == 0 {
 		return
 	}
-	sat := func(v uint32) uint32 {
-		if s := v + n; s >= v {
-			return s
-		}
-		return math.MaxUint32
-	}
 	p := py*c.W + px
-	cb := c.cats[p]
-	if bit := catBit(cat); cat < 7 && (cb == 0 || cb == bit) {
-		c.tot[p] = sat(c.tot[p])
-		c.cats[p] = bit
+	v := &c.cov[cat*c.plane+p]
+	if s := *v + n; s >= *v {
+		*v = s
 	} else {
-		cell := c.mixed(p, cat, cb)
-		cell[cat] = sat(cell[cat])
+		*v = math.MaxUint32
 	}
-	c.mark1(px, py)
+	c.cats[p] |= catBit(cat)
+	c.rows[py] = true
 	c.touched = true
 }
 
@@ -283,26 +252,17 @@ func (c *Canvas) CountN(cat, px, py int, n uint32) {
 // Count, so the result does not depend on the order either.
 func (c *Canvas) AddHalf(src *Canvas, qx, qy int) {
 	ox, oy := qx*c.W/2, qy*c.H/2
-	n := src.NCat
 	for y, used := range src.rows {
 		if !used {
 			continue
 		}
 		py := oy + y>>1
-		m := src.mask[y*src.wpr : (y+1)*src.wpr]
-		for wi, left := range m {
-			for left != 0 {
-				x := wi<<6 + bits.TrailingZeros64(left)
-				left &= left - 1
+		for x0 := 0; x0 < src.W; x0 += 64 {
+			for left := src.inked(y, x0); left != 0; left &= left - 1 {
+				x := x0 + bits.TrailingZeros64(left)
 				p := y*src.W + x
 				px := ox + x>>1
-				if cb := src.cats[p]; single(cb) {
-					c.CountN(bits.TrailingZeros8(cb), px, py, src.tot[p])
-					continue
-				}
-				for k, v := range src.cov[p*n : p*n+n] {
-					c.CountN(k, px, py, v)
-				}
+				src.eachCat(src.cats[p], func(k int) { c.CountN(k, px, py, src.cov[k*src.plane+p]) })
 			}
 		}
 	}
@@ -397,52 +357,72 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 		if t != nil {
 			t.dirty[py] = true
 		}
-		m := c.mask[py*c.wpr : (py+1)*c.wpr]
-		for wi, left := range m {
-			if drain {
-				m[wi] = 0
+		cats := c.cats[py*c.W:][:c.W+8]
+		for x0 := 0; x0 < c.W; x0 += 8 {
+			w := binary.LittleEndian.Uint64(cats[x0:])
+			if w == 0 {
+				continue
+			}
+			left := nonZeroBytes(w)
+			if c.W-x0 < 8 {
+				left &= 1<<(c.W-x0) - 1
 			}
 			for left != 0 {
-				px := wi<<6 + bits.TrailingZeros64(left)
+				px := x0 + bits.TrailingZeros64(left)
 				left &= left - 1
 				p := py*c.W + px
 				var sum uint64
 				var rgb uint32 // packed colour, alpha byte zero
 				if pc := c.cats[p]; single(pc) {
 					// One category (the common case): its own colour.
-					sum = uint64(c.tot[p])
-					rgb = solid[bits.TrailingZeros8(pc)]
+					k := bits.TrailingZeros8(pc)
+					v := &c.cov[k*c.plane+p]
+					sum = uint64(*v)
+					rgb = solid[k]
 					if drain {
-						c.tot[p] = 0
+						*v = 0
 						c.cats[p] = 0
 					}
 				} else {
 					if pc == 0 {
 						continue
 					}
-					cell := c.cov[p*n : p*n+n : p*n+n]
-					var inked uint64 // bit k: category k has coverage here
-					for k, w := range cell {
-						sum += uint64(w)
-						inked |= uint64((w|-w)>>31) << k
+					// The categories whose bits are set: below 7 each
+					// has coverage (no bit is set without; were one,
+					// the weighted mean below would give the same
+					// colour), from 7 on each may.
+					var r, g, b uint64
+					inked := uint64(pc & 0x7f) // bit k: category k has coverage
+					add := func(k int) uint64 {
+						i := k*c.plane + p
+						w := uint64(c.cov[i])
+						sum += w
+						r += w * cr[k]
+						g += w * cg[k]
+						b += w * cb[k]
+						if drain {
+							c.cov[i] = 0
+						}
+						return w
 					}
-					if inked == 0 {
+					for m := pc & 0x7f; m != 0; m &= m - 1 {
+						add(bits.TrailingZeros8(m))
+					}
+					if pc&0x80 != 0 {
+						for k := 7; k < n; k++ {
+							w := add(k)
+							inked |= (w | -w) >> 63 << k
+						}
+					}
+					if drain {
+						c.cats[p] = 0
+					}
+					if sum == 0 {
 						continue
 					}
 					rgb = solid[bits.TrailingZeros64(inked)]
 					if inked&(inked-1) != 0 {
-						var r, g, b uint64
-						for k, w := range cell {
-							ww := uint64(w)
-							r += ww * cr[k]
-							g += ww * cg[k]
-							b += ww * cb[k]
-						}
 						rgb = uint32((r+sum/2)/sum)<<24 | uint32((g+sum/2)/sum)<<16 | uint32((b+sum/2)/sum)<<8
-					}
-					if drain {
-						clear(cell)
-						c.cats[p] = 0
 					}
 				}
 				var a uint64 = 255

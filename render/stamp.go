@@ -13,14 +13,21 @@ type Stamp struct {
 	d     Dot
 	reach int
 	// cells[f] lists the non-zero pixels of offset f = fy*Sub + fx, row by
-	// row; spans[f] has one entry per row they cover.
-	cells [Sub * Sub][]stampCell
-	spans [Sub * Sub][]stampSpan
+	// row; spans[f] cuts them into runs of at most 64 adjacent pixels of
+	// one row, whose weights lie in weights; rows top[f] ≤ dy <
+	// top[f]+nrows[f] hold them (padded, maybe with rows below them that
+	// hold none).
+	cells   [Sub * Sub][]stampCell
+	spans   [Sub * Sub][]stampSpan
+	top     [Sub * Sub]int32
+	nrows   [Sub * Sub]int32
+	weights []uint32
 }
 
-// stampSpan is the stretch x0 ≤ dx < x1 of row dy that a stamp inks.
+// stampSpan is the run x0 ≤ dx < x0+n (n ≤ 64) of row dy that a stamp
+// inks, with weights[wi : wi+n].
 type stampSpan struct {
-	dy, x0, x1 int32
+	dy, x0, n, wi int32
 }
 
 type stampCell struct {
@@ -41,6 +48,7 @@ func NewStamp(d Dot) *Stamp {
 	ink := d.Opacity * One
 	for fy := 0; fy < Sub; fy++ {
 		for fx := 0; fx < Sub; fx++ {
+			f := fy*Sub + fx
 			var cells []stampCell
 			for dy := -s.reach; dy <= s.reach; dy++ {
 				for dx := -s.reach; dx <= s.reach; dx++ {
@@ -49,20 +57,58 @@ func NewStamp(d Dot) *Stamp {
 					}
 				}
 			}
-			s.cells[fy*Sub+fx] = cells
+			s.cells[f] = cells
 			var spans []stampSpan
 			for _, e := range cells {
-				if k := len(spans) - 1; k >= 0 && spans[k].dy == int32(e.dy) {
-					spans[k].x0 = min(spans[k].x0, int32(e.dx))
-					spans[k].x1 = max(spans[k].x1, int32(e.dx)+1)
-					continue
+				k := len(spans) - 1
+				if k >= 0 && spans[k].dy == int32(e.dy) && spans[k].x0+spans[k].n == int32(e.dx) && spans[k].n < 64 {
+					spans[k].n++
+				} else {
+					spans = append(spans, stampSpan{int32(e.dy), int32(e.dx), 1, int32(len(s.weights))})
 				}
-				spans = append(spans, stampSpan{int32(e.dy), int32(e.dx), int32(e.dx) + 1})
+				s.weights = append(s.weights, uint32(e.w))
 			}
-			s.spans[fy*Sub+fx] = spans
+			s.spans[f] = spans
+			if len(spans) > 0 {
+				s.top[f] = spans[0].dy
+				s.nrows[f] = spans[len(spans)-1].dy + 1 - spans[0].dy
+			}
 		}
 	}
+	s.pad()
 	return s
+}
+
+// pad makes every offset's cells and rows as many as the longest
+// offset's, when every offset has at least one cell, so that drawing loops
+// run the same number of times whatever the offset: the extra cells repeat
+// the first with weight 0 (adding nothing to a pixel the dot inks anyway),
+// and the extra rows, below the last, are marked as maybe inked, which
+// costs compositing a look at them and changes no pixel. Rows are padded
+// only when the padded ones all stay within the reach, where AddStamp's
+// test for a dot inside the canvas vouches for them.
+func (s *Stamp) pad() {
+	nc, nr := 0, int32(0)
+	for f := range s.cells {
+		if len(s.cells[f]) == 0 {
+			return
+		}
+		nc, nr = max(nc, len(s.cells[f])), max(nr, s.nrows[f])
+	}
+	rowsFit := true
+	for f := range s.cells {
+		rowsFit = rowsFit && s.top[f]+nr-1 <= int32(s.reach)
+	}
+	for f := range s.cells {
+		e := s.cells[f][0]
+		e.w = 0
+		for len(s.cells[f]) < nc {
+			s.cells[f] = append(s.cells[f], e)
+		}
+		if rowsFit {
+			s.nrows[f] = nr
+		}
+	}
 }
 
 // stampWeight is the coverage of the pixel dx, dy from the base pixel of a
@@ -112,44 +158,56 @@ func (s *Stamp) Reach() int { return s.reach }
 func (c *Canvas) AddStamp(cat int, x, y int, s *Stamp) {
 	ix, iy := x>>4, y>>4 // floor division by Sub
 	f := (y&(Sub-1))*Sub + (x & (Sub - 1))
-	cells := s.cells[f]
-	R := s.reach
-	if ix >= R && iy >= R && ix+R < c.W && iy+R < c.H {
-		pix := iy*c.W + ix
-		if c.stamp != s {
-			c.bindStamp(s)
-		}
-		cells := c.stampCells[f]
-		if cat < 7 {
-			bit := uint8(1) << cat
-			for _, e := range cells {
-				q := pix + int(e.off)
-				if cb := c.cats[q]; cb == 0 || cb == bit {
-					c.tot[q] += e.w
-					c.cats[q] = bit
-				} else {
-					c.mixed(q, cat, cb)[cat] += e.w
-				}
-			}
-		} else {
-			for _, e := range cells {
-				q := pix + int(e.off)
-				c.mixed(q, cat, c.cats[q])[cat] += e.w
-			}
-		}
-		for _, sp := range s.spans[f] {
-			c.mark(iy+int(sp.dy), ix+int(sp.x0), ix+int(sp.x1))
-		}
-		c.touched = true
+	if R := s.reach; ix < R || iy < R || ix+R >= c.W || iy+R >= c.H {
+		c.addClipped(cat, ix, iy, f, s)
 		return
 	}
-	for _, e := range cells {
-		px, py := ix+int(e.dx), iy+int(e.dy)
-		if px < 0 || py < 0 || px >= c.W || py >= c.H {
+	// Wholly inside: no clipping, and (with a padded stamp) loops of the
+	// same length for every dot.
+	if c.stamp != s {
+		c.bindStamp(s)
+	}
+	pl := c.cov[cat*c.plane:][:c.plane]
+	cats := c.cats[:c.plane]
+	bit := catBit(cat)
+	pix := iy*c.W + ix
+	for _, e := range c.stampCells[f] {
+		q := pix + int(e.off)
+		pl[q] += e.w
+		cats[q] |= bit
+	}
+	r := c.rows[iy+int(s.top[f]):][:s.nrows[f]]
+	for i := range r {
+		r[i] = true
+	}
+	c.touched = true
+}
+
+// addClipped is AddStamp for a dot that may reach beyond the canvas (base
+// pixel ix, iy; offset f): each span is clipped to the canvas.
+func (c *Canvas) addClipped(cat, ix, iy, f int, s *Stamp) {
+	pl := c.cov[cat*c.plane:][:c.plane]
+	bit := catBit(cat)
+	for _, sp := range s.spans[f] {
+		y := iy + int(sp.dy)
+		if y < 0 || y >= c.H {
 			continue
 		}
-		c.deposit(py*c.W+px, cat, uint32(e.w))
-		c.mark1(px, py)
+		x0 := ix + int(sp.x0)
+		a, b := max(x0, 0), min(x0+int(sp.n), c.W)
+		if a >= b {
+			continue
+		}
+		w0 := int(sp.wi) + a - x0
+		ws := s.weights[w0 : w0+b-a]
+		q := y*c.W + a
+		dst := pl[q : q+len(ws)]
+		cb := c.cats[q : q+len(ws)]
+		for i, w := range ws {
+			dst[i] += w
+			cb[i] |= bit
+		}
+		c.rows[y] = true
 		c.touched = true
 	}
 }
