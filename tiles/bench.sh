@@ -13,6 +13,13 @@
 # beside the repository root, zooms 0–12, one person per dot: about 5
 # minutes a run on 2 cores). Output goes to $BENCH_DIR (default /tmp),
 # on disk; tmpfs figures use /dev/shm.
+#
+# A disk run's output is removed after it is measured, and the next disk
+# run waits $BENCH_SETTLE seconds (default 300) after that removal: on ext4
+# without a journal, the build machines' disk, creating files within about
+# five minutes of deleting many makes the kernel skip the freshly freed
+# inodes one by one, which doubled a national run's CPU time
+# (BENCHMARKS.md, "Deleting before rendering").
 set -euo pipefail
 cd "$(dirname "$0")/.."
 runs=3 national=0 write=0 bins=()
@@ -34,13 +41,36 @@ fi
 rows="$work/rows"
 : >"$rows"
 
-# measure LABEL BINARY ARGS…: one timed run, one table row.
+settle=${BENCH_SETTLE:-300}
+removed=0 # when an output was last removed (seconds since the epoch)
+
+# clean DIR: remove a measured output, noting when if it held many files
+# (the national map's 310,000; the invented map's few thousand do not
+# count).
+clean() {
+	if [ -e "$1" ]; then
+		local many=0
+		if [ "$(find "$1" -type f | head -50000 | wc -l)" -ge 50000 ]; then
+			many=1
+		fi
+		rm -rf "$1"
+		if [ $many = 1 ]; then
+			removed=$(date +%s)
+		fi
+	fi
+}
+
+# measure LABEL BINARY ARGS…: one timed run, one table row. The output
+# (in $work/out) is removed after it is measured, never just before.
 measure() {
 	local label=$1 bin=$2
 	shift 2
-	local load
+	local load wait
+	wait=$((removed + ${SETTLE:-$settle} - $(date +%s)))
+	if [ $wait -gt 0 ]; then
+		sleep $wait
+	fi
 	load=$(cut -d' ' -f1-3 /proc/loadavg)
-	rm -rf "$work/out"
 	/usr/bin/time -f '%e %U %S %M' -o "$work/time" "$bin" "$@" >"$work/log" 2>&1 || {
 		echo "failed: $bin $*" >&2
 		cat "$work/log" >&2
@@ -51,12 +81,14 @@ measure() {
 		"$label" "$(basename "$bin")@$("$bin" version 2>/dev/null | head -1 | tr -d '|')" \
 		"$wall" "$(echo "$user + $sys" | bc)" "$user" "$sys" \
 		"$(echo "100 * $sys / ($user + $sys + 0.001)" | bc)" "$((rss / 1024))" "$load" >>"$rows"
+	clean "$work/out"
 }
 
 for ((r = 0; r < runs; r++)); do
 	for b in "${bins[@]}"; do
 		measure "invented 10 M people, z0–10, disk" "$b" bench --people 10000000 --max-zoom 10 --out "$work/out"
-		measure "invented 10 M people, z0–10, tmpfs" "$b" bench --people 10000000 --max-zoom 10 --out "/dev/shm/stipple-bench.$$"
+		# tmpfs has no such inode scan: no wait.
+		SETTLE=0 measure "invented 10 M people, z0–10, tmpfs" "$b" bench --people 10000000 --max-zoom 10 --out "/dev/shm/stipple-bench.$$"
 		rm -rf "/dev/shm/stipple-bench.$$"
 		if [ $national = 1 ]; then
 			measure "national z0–12, 1 person per dot" "$b" render examples/us-counties-synthetic/map.toml --out "$work/out"
@@ -64,18 +96,27 @@ for ((r = 0; r < runs; r++)); do
 	done
 done
 
-# Per-file costs, disk and tmpfs (no binary: the sink benchmark).
+# Per-file costs, disk and tmpfs (no binary: the sink benchmark). All modes
+# run in one process, which removes its trees only at the end; on disk the
+# next round waits $BENCH_SETTLE seconds after that removal.
 go test -c -o "$work/sink.test" ./tiles/sink
 for fs in "$work" /dev/shm; do
+	kind=disk
+	[ "$fs" = /dev/shm ] && kind=tmpfs
 	for ((r = 0; r < runs; r++)); do
+		if [ $kind = disk ]; then
+			wait=$((removed + settle - $(date +%s)))
+			[ $wait -gt 0 ] && sleep $wait
+		fi
+		sync
 		load=$(cut -d' ' -f1-3 /proc/loadavg)
-		for m in put crossdir samedir inplace; do
-			sync
-			ns=$(STIPPLE_BENCH_DIR=$fs "$work/sink.test" -test.run '^$' -test.bench "TileFiles/$m\$" -test.benchtime 20000x | awk '/^Benchmark/ {print $3}')
-			kind=disk
-			[ "$fs" = /dev/shm ] && kind=tmpfs
-			printf '| tile file, %s, %s | sink.test | %.0f µs/file | — | — | — | %s |\n' "$m" "$kind" "$(echo "$ns / 1000" | bc -l)" "$load" >>"$rows"
-		done
+		STIPPLE_BENCH_DIR=$fs "$work/sink.test" -test.run '^$' -test.bench 'TileFiles' -test.benchtime 20000x |
+			awk -v kind=$kind -v load="$load" '/^BenchmarkTileFiles/ {
+				split($1, a, "/"); sub(/-[0-9]+$/, "", a[2])
+				what = (a[1] ~ /TwoWriters/) ? "two writers, " : ""
+				printf "| tile file, %s%s, %s | sink.test | %.0f µs/file | — | — | — | %s |\n", what, a[2], kind, $3 / 1000, load
+			}' >>"$rows"
+		[ $kind = disk ] && removed=$(date +%s)
 	done
 done
 

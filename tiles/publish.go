@@ -137,7 +137,7 @@ func Publish(ctx context.Context, from, to string, opt PublishOptions) (PublishS
 		st.Bytes += now - old
 	}
 	if d, ok := dst.(*sink.Dir); ok {
-		// A folder's Put writes through .stipple/put; take the emptied
+		// Copy links a folder's files through .stipple/put; take the emptied
 		// folders away (os.Remove leaves a folder that holds anything).
 		os.Remove(filepath.Join(d.Root(), filepath.FromSlash(sink.TempDir)))
 		os.Remove(filepath.Join(d.Root(), StateDir))

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"html/template"
 	"net/url"
+	"os"
 	"path"
 	"path/filepath"
 	"slices"
@@ -401,23 +402,30 @@ func indexSet(ctx context.Context, out sink.Sink, layerDir, urlPrefix, t string,
 func scanZoom(ctx context.Context, out sink.Sink, zdir string, z int, ext string) (tileIndex, bool, error) {
 	n := 1 << z
 	rows := map[int][]int{}
-	err := out.List(ctx, zdir, func(p string, _ int64) error {
-		xs, name, found := strings.Cut(strings.TrimPrefix(p, zdir), "/")
-		if !found || strings.Contains(name, "/") {
-			return nil
-		}
-		name, found = strings.CutSuffix(name, ext)
+	add := func(xs, name string) {
+		name, found := strings.CutSuffix(name, ext)
 		if !found {
-			return nil
+			return
 		}
 		x, err1 := strconv.Atoi(xs)
 		y, err2 := strconv.Atoi(name)
 		if err1 != nil || err2 != nil || x < 0 || x >= n || y < 0 || y >= n {
-			return nil
+			return
 		}
 		rows[y] = append(rows[y], x)
-		return nil
-	})
+	}
+	var err error
+	if d, ok := out.(*sink.Dir); ok {
+		err = scanDir(ctx, filepath.Join(d.Root(), filepath.FromSlash(zdir)), add)
+	} else {
+		err = out.List(ctx, zdir, func(p string, _ int64) error {
+			xs, name, found := strings.Cut(strings.TrimPrefix(p, zdir), "/")
+			if found && !strings.Contains(name, "/") {
+				add(xs, name)
+			}
+			return nil
+		})
+	}
 	if err != nil {
 		return tileIndex{}, false, fmt.Errorf("tiles: index: %w", err)
 	}
@@ -425,6 +433,38 @@ func scanZoom(ctx context.Context, out sink.Sink, zdir string, z int, ext string
 		return tileIndex{}, false, nil
 	}
 	return encodeIndex(rows), true, nil
+}
+
+// scanDir calls add with the column folder and file name of every regular
+// file in zdir/{x}/: the names alone, read from the folders (no stat of
+// each file, which on a deep pyramid of millions of tiles took half a
+// minute). Temporary files of unfinished writes (sink.IsTemp) are skipped.
+func scanDir(ctx context.Context, zdir string, add func(xs, name string)) error {
+	cols, err := os.ReadDir(zdir)
+	if os.IsNotExist(err) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	for _, c := range cols {
+		if !c.IsDir() {
+			continue
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		files, err := os.ReadDir(filepath.Join(zdir, c.Name()))
+		if err != nil {
+			return err
+		}
+		for _, f := range files {
+			if f.Type().IsRegular() && !sink.IsTemp(f.Name()) {
+				add(c.Name(), f.Name())
+			}
+		}
+	}
+	return nil
 }
 
 // encodeIndex turns the present columns of each row into run lengths.

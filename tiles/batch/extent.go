@@ -157,6 +157,9 @@ func finish(ctx context.Context, f *File, j *job, cover map[int][][2]int, in *ma
 			}
 			return nil
 		}
+		if sink.IsTemp(d.Name()) {
+			return nil // another writer's unfinished file
+		}
 		fi, err := d.Info()
 		if err != nil {
 			return err

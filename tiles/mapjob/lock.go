@@ -1,6 +1,7 @@
 package mapjob
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -31,6 +32,9 @@ var ErrBusy = errors.New("another run is using this folder")
 //
 // A folder is stipple's when it is absent, empty, or holds the state
 // folder (.stipple) that every run writes first.
+//
+// Taking over a lock left by a killed run removes the temporary files that
+// run's unfinished writes left beside the tiles (sink.Dir.SweepTemp).
 func Claim(out string, force bool) (release func(), err error) {
 	state := filepath.Join(out, tiles.StateDir)
 	if _, err := os.Stat(state); os.IsNotExist(err) && !force {
@@ -50,6 +54,7 @@ func Claim(out string, force bool) (release func(), err error) {
 	host, _ := os.Hostname()
 	path := filepath.Join(state, lockFile)
 	me := fmt.Sprintf("%d %s %s\n", os.Getpid(), host, time.Now().UTC().Format(time.RFC3339))
+	dead := 0 // the process whose stale lock was taken over
 	for attempt := 0; ; attempt++ {
 		f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
 		if err == nil {
@@ -61,9 +66,14 @@ func Claim(out string, force bool) (release func(), err error) {
 				os.Remove(path)
 				return nil, fmt.Errorf("output: %w", werr)
 			}
-			// With the lock held, half-written files a killed run left in
-			// the sink's temporary folder are nobody's.
-			os.RemoveAll(filepath.Join(out, filepath.FromSlash(sink.TempDir)))
+			// With the lock held, half-written files a killed run left
+			// beside the tiles (and in the old shared temporary folder)
+			// are nobody's.
+			if dead > 0 {
+				sink.NewDir(out).SweepTemp(context.Background(), host, dead)
+			} else {
+				os.RemoveAll(filepath.Join(out, filepath.FromSlash(sink.TempDir)))
+			}
 			return func() {
 				if b, err := os.ReadFile(path); err == nil && string(b) == me {
 					os.Remove(path)
@@ -77,6 +87,7 @@ func Claim(out string, force bool) (release func(), err error) {
 		pid, owner, since := parseLock(string(b))
 		if attempt == 0 && owner == host && pid > 0 && !alive(pid) {
 			os.Remove(path) // the run that held it is gone
+			dead = pid
 			continue
 		}
 		return nil, fmt.Errorf("output: %s: %w (pid %d on %s, since %s); wait for it to finish, or remove %s if that run is gone",
@@ -122,4 +133,39 @@ func foreignFiles(dir string) []string {
 	}
 	sort.Strings(names)
 	return names
+}
+
+// writerFile, in a part's state folder, names the process that is writing
+// through it ("pid host"); it is removed when that process returns.
+const writerFile = "writer"
+
+// markWriter notes in state that this process writes the part's tiles into
+// out, and returns the function that takes the note away. A note found at
+// the start was left by a process that was killed: the temporary files its
+// unfinished writes left beside the tiles are removed first
+// (sink.Dir.SweepTemp; only that process's, so parts running at once into
+// one folder are not disturbed). Parts take no lock (several share one
+// output, and a rescheduled part may start on another host), so this is
+// how a killed part's leftovers go.
+func markWriter(ctx context.Context, state string, out sink.Sink) (done func(), err error) {
+	d, ok := out.(*sink.Dir)
+	if !ok {
+		return func() {}, nil // a bucket's Put leaves nothing half-written
+	}
+	path := filepath.Join(state, writerFile)
+	if b, err := os.ReadFile(path); err == nil {
+		if pid, host, _ := parseLock(string(b)); pid > 0 {
+			if _, err := d.SweepTemp(ctx, host, pid); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if err := os.MkdirAll(state, 0o755); err != nil {
+		return nil, fmt.Errorf("output: %w", err)
+	}
+	host, _ := os.Hostname()
+	if err := tiles.WriteFileAtomic(path, []byte(fmt.Sprintf("%d %s\n", os.Getpid(), host))); err != nil {
+		return nil, err
+	}
+	return func() { os.Remove(path) }, nil
 }

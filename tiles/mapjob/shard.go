@@ -157,6 +157,11 @@ func RunPart(ctx context.Context, in *Input, m *mapfile.Map, plan *ShardPlan, i 
 		}
 	}
 	dir := PartDir(m.Out, opt.Work, i, n)
+	done, err := markWriter(ctx, dir, out)
+	if err != nil {
+		return nil, err
+	}
+	defer done()
 	prog := newProgress(opt.Log, opt.ProgressEvery)
 	defer prog.stop()
 	t0 := time.Now()

@@ -15,28 +15,58 @@ import (
 )
 
 // Dir is a sink in a local folder. Put writes the file once, under a
-// temporary name of its own in the folder's TempDir (created with O_EXCL
-// and mode 0644, so no chmod), and renames it into place (rename is atomic
-// within a file system, POSIX rename(2)): a reader sees the old file or
-// the whole new one. Content types are not stored. A process killed
-// mid-Put leaves at most a temporary file in TempDir, never in the map's
-// own folders, so a published folder holds only whole files.
+// temporary name of its own in the file's own folder (TempName: a dot-file,
+// created with O_EXCL and mode 0644, so no chmod), and renames it into
+// place within that folder (rename is atomic within a file system, POSIX
+// rename(2)): a reader sees the old file or the whole new one. Content
+// types are not stored.
 //
-// Creating the file in the tile's own folder (under a temporary name, or
-// the tile itself) measured no cheaper on the build machines' disk, within
-// wide noise (BENCHMARKS.md, "Tile files").
+// A process killed mid-Put can leave a temporary file beside a tile. Such
+// files are never listed (List skips them), so they are never published,
+// indexed or taken for tiles, and the next run that takes over the dead
+// run's lock removes them (SweepTemp).
+//
+// Writing beside the tile, rather than in one shared temporary folder, is
+// what keeps the file system cheap when millions of tiles are written by
+// several workers: one shared folder is locked by every create and every
+// rename out of it, and ext4 looks for free inodes near a file's folder,
+// so a single folder sends every create searching past the full groups
+// (BENCHMARKS.md, "Tile files").
 type Dir struct {
 	root string
 	made sync.Map // folders known to exist
 }
 
+// tempPrefix begins the name of every temporary file Put writes.
+const tempPrefix = ".put-"
+
 // tempToken tells this process's temporary names from another's sharing
 // the folder (several parts of a sharded render, or hosts on a network
-// file system); tempSeq tells its own apart.
+// file system): host, process id and start time; tempSeq tells its own
+// apart.
 var (
-	tempToken = fmt.Sprintf("%d-%x", os.Getpid(), time.Now().UnixNano()&0xffffff)
+	tempToken = TempToken(hostName(), os.Getpid()) + fmt.Sprintf("%x-", time.Now().UnixNano()&0xffffff)
 	tempSeq   atomic.Int64
 )
+
+func hostName() string {
+	h, _ := os.Hostname()
+	return h
+}
+
+// TempToken is how the temporary names of the process pid on host begin
+// (after the folder): SweepTemp removes the files of a process by it.
+func TempToken(host string, pid int) string {
+	var h uint32 = 2166136261 // FNV-1a, 32 bits
+	for i := 0; i < len(host); i++ {
+		h = (h ^ uint32(host[i])) * 16777619
+	}
+	return fmt.Sprintf("%s%08x-%d-", tempPrefix, h, pid)
+}
+
+// IsTemp reports whether a file name (the last element of a path) is a
+// temporary file of an unfinished Put.
+func IsTemp(name string) bool { return strings.HasPrefix(name, tempPrefix) }
 
 // NewDir returns the sink for folder root; nothing is created until Put.
 func NewDir(root string) *Dir { return &Dir{root: root} }
@@ -46,10 +76,10 @@ func (d *Dir) Root() string { return d.root }
 
 func (d *Dir) String() string { return d.root }
 
-// TempDir is where Put writes and link links before renaming:
-// inside stipple's state folder (.stipple, which is never published), on
-// the same file system as the tiles. Several processes may share it: names
-// are unique.
+// TempDir is where link links before renaming, and where Put wrote its
+// temporary files before they moved beside the tiles: inside stipple's
+// state folder (.stipple, which is never published), on the same file
+// system as the tiles. Several processes may share it: names are unique.
 const TempDir = ".stipple/put"
 
 func (d *Dir) full(p string) (string, error) {
@@ -68,11 +98,11 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 	if err != nil {
 		return err
 	}
-	tmpDir := filepath.Join(d.root, filepath.FromSlash(TempDir))
+	dir := filepath.Dir(full)
 	var tmp string
 	var f *os.File
 	for try := 0; ; try++ {
-		tmp = filepath.Join(tmpDir, "put-"+tempToken+"-"+strconv.FormatInt(tempSeq.Add(1), 36))
+		tmp = filepath.Join(dir, tempToken+strconv.FormatInt(tempSeq.Add(1), 36))
 		f, err = d.create(tmp, os.O_EXCL)
 		if err == nil || !os.IsExist(err) || try == 9 {
 			break
@@ -87,27 +117,13 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 		werr = cerr
 	}
 	if werr == nil {
-		werr = d.rename(tmp, full)
+		werr = os.Rename(tmp, full)
 	}
 	if werr != nil {
 		os.Remove(tmp)
 		return fmt.Errorf("sink: %w", werr)
 	}
 	return nil
-}
-
-// rename moves tmp to full, making full's folder when it is missing (one
-// failed rename and one mkdir for the first file of a folder; later files
-// cost the rename alone).
-func (d *Dir) rename(tmp, full string) error {
-	err := os.Rename(tmp, full)
-	if err == nil || !os.IsNotExist(err) {
-		return err
-	}
-	if err := d.mkdir(filepath.Dir(full)); err != nil {
-		return err
-	}
-	return os.Rename(tmp, full)
 }
 
 // mkdir makes folder dir, trying a single mkdir before MkdirAll.
@@ -132,6 +148,44 @@ func (d *Dir) create(full string, flag int) (*os.File, error) {
 		return nil, err
 	}
 	return os.OpenFile(full, flag, 0o644)
+}
+
+// SweepTemp removes the temporary files that Puts of the process pid on
+// host left in the folder (the process was killed mid-Put), and the old
+// shared temporary folder; it returns how many files it removed. Only call
+// it for a process that is gone: its files are nobody's.
+func (d *Dir) SweepTemp(ctx context.Context, host string, pid int) (int, error) {
+	os.RemoveAll(filepath.Join(d.root, filepath.FromSlash(TempDir)))
+	token := TempToken(host, pid)
+	n := 0
+	err := filepath.WalkDir(d.root, func(full string, de fs.DirEntry, err error) error {
+		if err != nil {
+			if os.IsNotExist(err) {
+				return nil
+			}
+			return err
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		if de.IsDir() {
+			if de.Name() == ".stipple" && full != d.root {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		if strings.HasPrefix(de.Name(), token) {
+			if err := os.Remove(full); err != nil && !os.IsNotExist(err) {
+				return err
+			}
+			n++
+		}
+		return nil
+	})
+	if err != nil {
+		return n, fmt.Errorf("sink: %w", err)
+	}
+	return n, nil
 }
 
 // Exists implements Sink.
@@ -195,6 +249,9 @@ func (d *Dir) List(ctx context.Context, prefix string, fn func(path string, size
 			if rel, _ := filepath.Rel(d.root, full); filepath.ToSlash(rel) == TempDir {
 				return fs.SkipDir
 			}
+			return nil
+		}
+		if IsTemp(de.Name()) {
 			return nil
 		}
 		rel, err := filepath.Rel(d.root, full)

@@ -10,15 +10,15 @@ import (
 )
 
 // BenchmarkTileFiles measures the file-system cost of writing one tile of
-// 4 KiB (a typical sparse tile) three ways, in a fresh z/x/y tree of 64
+// 4 KiB (a typical sparse tile) four ways, in a fresh z/x/y tree of 64
 // tiles per column folder:
 //
-//   - crossdir: the earlier Put (CreateTemp in .stipple/put, write, chmod,
+//   - crossdir: an early Put (CreateTemp in .stipple/put, write, chmod,
 //     rename across folders), kept here as the reference;
-//   - put: Put (O_EXCL temporary in .stipple/put with mode 0644, write,
-//     rename across folders: no chmod);
-//   - samedir: an O_EXCL temporary beside the tile, renamed within the
-//     tile's folder;
+//   - shared: the previous Put (O_EXCL temporary with mode 0644 in the
+//     one shared folder .stipple/put, write, rename across folders);
+//   - put: Put (O_EXCL temporary beside the tile, write, rename within
+//     the tile's folder);
 //   - inplace: the tile file itself opened, written and closed (no
 //     rename).
 //
@@ -31,7 +31,18 @@ func BenchmarkTileFiles(b *testing.B) {
 		data[i] = byte(i * 7)
 	}
 	ctx := context.Background()
-	for _, mode := range []string{"crossdir", "put", "inplace", "samedir"} {
+	// The trees are removed after every mode has run, not between modes:
+	// on ext4 without a journal (the build machines' disk), creating files
+	// soon after many were deleted scans the freed inodes (the kernel skips
+	// inodes deleted in the last minutes), which would slow whichever mode
+	// came after a removal (BENCHMARKS.md, "Tile files").
+	var trees []string
+	defer func() {
+		for _, t := range trees {
+			os.RemoveAll(t)
+		}
+	}()
+	for _, mode := range []string{"crossdir", "shared", "put", "inplace"} {
 		b.Run(mode, func(b *testing.B) {
 			base := os.Getenv("STIPPLE_BENCH_DIR")
 			if base == "" {
@@ -41,7 +52,7 @@ func BenchmarkTileFiles(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			defer os.RemoveAll(root)
+			trees = append(trees, root)
 			d := NewDir(root)
 			b.SetBytes(int64(len(data)))
 			b.ResetTimer()
@@ -54,8 +65,8 @@ func BenchmarkTileFiles(b *testing.B) {
 					err = d.Put(ctx, p, data, "image/png", "")
 				case "inplace":
 					err = inPlace(d, p, data)
-				case "samedir":
-					err = sameDirPut(d, p, data)
+				case "shared":
+					err = sharedDirPut(d, p, data)
 				}
 				if err != nil {
 					b.Fatal(err)
@@ -97,12 +108,12 @@ func crossDirPut(d *Dir, p string, data []byte) error {
 	return nil
 }
 
-// sameDirPut writes under a temporary name in the tile's own folder and
-// renames it within that folder.
-func sameDirPut(d *Dir, p string, data []byte) error {
+// sharedDirPut is the Put of the previous version: an O_EXCL temporary
+// with mode 0644 in the one shared folder .stipple/put, renamed across
+// folders into place.
+func sharedDirPut(d *Dir, p string, data []byte) error {
 	full := filepath.Join(d.root, filepath.FromSlash(p))
-	dir, base := filepath.Split(full)
-	tmp := dir + "." + base + "." + tempToken + "-" + strconv.FormatInt(tempSeq.Add(1), 36) + ".tmp"
+	tmp := filepath.Join(d.root, filepath.FromSlash(TempDir), "put-"+strconv.FormatInt(tempSeq.Add(1), 36))
 	f, err := d.create(tmp, os.O_EXCL)
 	if err != nil {
 		return err
@@ -113,7 +124,14 @@ func sameDirPut(d *Dir, p string, data []byte) error {
 	if err := f.Close(); err != nil {
 		return err
 	}
-	return os.Rename(tmp, full)
+	err = os.Rename(tmp, full)
+	if os.IsNotExist(err) {
+		if err := d.mkdir(filepath.Dir(full)); err != nil {
+			return err
+		}
+		err = os.Rename(tmp, full)
+	}
+	return err
 }
 
 // inPlace writes the tile file itself.
@@ -126,4 +144,69 @@ func inPlace(d *Dir, p string, data []byte) error {
 		return err
 	}
 	return f.Close()
+}
+
+// BenchmarkTileFilesTwoWriters is BenchmarkTileFiles with two goroutines
+// writing at once, each into column folders of its own, as the renderer's
+// two workers do on a 2-core machine. It shows what the writers cost each
+// other: with shared, every file is created in, and renamed out of, the
+// one temporary folder, whose lock both take.
+func BenchmarkTileFilesTwoWriters(b *testing.B) {
+	data := make([]byte, 4096)
+	for i := range data {
+		data[i] = byte(i * 7)
+	}
+	ctx := context.Background()
+	// The trees are removed after every mode has run, not between modes:
+	// on ext4 without a journal (the build machines' disk), creating files
+	// soon after many were deleted scans the freed inodes (the kernel skips
+	// inodes deleted in the last minutes), which would slow whichever mode
+	// came after a removal (BENCHMARKS.md, "Tile files").
+	var trees []string
+	defer func() {
+		for _, t := range trees {
+			os.RemoveAll(t)
+		}
+	}()
+	for _, mode := range []string{"shared", "put", "inplace"} {
+		b.Run(mode, func(b *testing.B) {
+			base := os.Getenv("STIPPLE_BENCH_DIR")
+			if base == "" {
+				base = b.TempDir()
+			}
+			root, err := os.MkdirTemp(base, "tilefiles-")
+			if err != nil {
+				b.Fatal(err)
+			}
+			trees = append(trees, root)
+			d := NewDir(root)
+			b.SetBytes(int64(len(data)))
+			b.ResetTimer()
+			errs := make(chan error, 2)
+			for w := 0; w < 2; w++ {
+				go func() {
+					var err error
+					for i := w; i < b.N && err == nil; i += 2 {
+						// Worker w writes the columns ≡ w mod 2.
+						col := 2*(i/128) + w
+						p := "12/" + strconv.Itoa(col) + "/" + strconv.Itoa(i%128/2) + ".png"
+						switch mode {
+						case "put":
+							err = d.Put(ctx, p, data, "image/png", "")
+						case "inplace":
+							err = inPlace(d, p, data)
+						case "shared":
+							err = sharedDirPut(d, p, data)
+						}
+					}
+					errs <- err
+				}()
+			}
+			for w := 0; w < 2; w++ {
+				if err := <-errs; err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
 }

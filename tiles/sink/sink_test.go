@@ -106,7 +106,7 @@ func TestSinksRoundTrip(t *testing.T) {
 }
 
 // TestDirPutIsAtomic: a cancelled Put leaves the old file, and no
-// temporary file stays behind.
+// temporary file stays behind; one a killed Put left is never listed.
 func TestDirPutIsAtomic(t *testing.T) {
 	root := t.TempDir()
 	d := NewDir(root)
@@ -126,8 +126,10 @@ func TestDirPutIsAtomic(t *testing.T) {
 	if len(entries) != 1 {
 		t.Errorf("folder holds %d entries; want 1", len(entries))
 	}
-	// A temporary file left by a killed Put is not listed.
-	if err := os.WriteFile(filepath.Join(root, ".stipple", "put", "put-123-abc-1"), []byte("half"), 0o644); err != nil {
+	// A temporary file left by a killed Put, beside the tile, is not
+	// listed.
+	planted := filepath.Join(root, "1", "0", TempToken("elsewhere", 123)+"abc-1")
+	if err := os.WriteFile(planted, []byte("half"), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	var listed []string
@@ -135,9 +137,16 @@ func TestDirPutIsAtomic(t *testing.T) {
 	if len(listed) != 1 || listed[0] != "1/0/0.png" {
 		t.Errorf("List = %v; want [1/0/0.png]", listed)
 	}
-	// Put leaves nothing of its own in the temporary folder.
-	if entries, _ := os.ReadDir(filepath.Join(root, ".stipple", "put")); len(entries) != 1 {
-		t.Errorf("temporary folder holds %d entries; want only the planted one", len(entries))
+	// Put leaves nothing of its own beside the tile, and no shared
+	// temporary folder.
+	if err := d.Put(ctx, "1/0/0.png", []byte("newer"), "", ""); err != nil {
+		t.Fatal(err)
+	}
+	if entries, _ := os.ReadDir(filepath.Join(root, "1", "0")); len(entries) != 2 {
+		t.Errorf("tile folder holds %d entries; want the tile and the planted file", len(entries))
+	}
+	if _, err := os.Stat(filepath.Join(root, filepath.FromSlash(TempDir))); !os.IsNotExist(err) {
+		t.Errorf("Put made %s: %v", TempDir, err)
 	}
 	if fi, _ := os.Stat(filepath.Join(root, "1", "0", "0.png")); fi.Mode().Perm() != 0o644 {
 		t.Errorf("mode %v; want 0644", fi.Mode().Perm())
@@ -181,5 +190,54 @@ func TestCopyBetweenFoldersLinks(t *testing.T) {
 	st, err = Copy(ctx, dst, src, CopyOptions{Overwrite: true})
 	if err != nil || st.Copied != 2 {
 		t.Errorf("overwrite: %v, %v; want 2 copied", st, err)
+	}
+}
+
+// TestSweepTempRemovesOnlyTheDeadProcessFiles: the temporary files of the
+// swept process go, wherever they are in the tree; those of another
+// process (a live part of a sharded render, say) and the tiles stay.
+func TestSweepTempRemovesOnlyTheDeadProcessFiles(t *testing.T) {
+	root := t.TempDir()
+	d := NewDir(root)
+	ctx := context.Background()
+	for _, p := range []string{"3/1/2.png", "12/655/1582.png"} {
+		if err := d.Put(ctx, p, []byte("tile"), "", ""); err != nil {
+			t.Fatal(err)
+		}
+	}
+	dead := []string{
+		filepath.Join(root, "3", "1", TempToken("hostA", 4242)+"1f-1"),
+		filepath.Join(root, "12", "655", TempToken("hostA", 4242)+"1f-2"),
+		filepath.Join(root, ".stipple", "put", "put-old"), // the old shared folder
+	}
+	alive := []string{
+		filepath.Join(root, "3", "1", TempToken("hostA", 4243)+"1f-1"), // another process
+		filepath.Join(root, "3", "1", TempToken("hostB", 4242)+"1f-1"), // same pid, other host
+	}
+	for _, f := range append(append([]string{}, dead...), alive...) {
+		os.MkdirAll(filepath.Dir(f), 0o755)
+		if err := os.WriteFile(f, []byte("half"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	n, err := d.SweepTemp(ctx, "hostA", 4242)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n != 2 {
+		t.Errorf("SweepTemp removed %d files; want 2", n)
+	}
+	for _, f := range dead {
+		if _, err := os.Stat(f); !os.IsNotExist(err) {
+			t.Errorf("%s is still there", f)
+		}
+	}
+	for _, f := range append(alive, filepath.Join(root, "3", "1", "2.png"), filepath.Join(root, "12", "655", "1582.png")) {
+		if _, err := os.Stat(f); err != nil {
+			t.Errorf("%s was removed: %v", f, err)
+		}
+	}
+	if !IsTemp(filepath.Base(alive[0])) || IsTemp("2.png") || IsTemp(".stipple") {
+		t.Error("IsTemp misreads names")
 	}
 }
