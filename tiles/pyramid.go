@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"image/color"
 	"math/bits"
+	"os"
+	"path/filepath"
 	"runtime"
 	"slices"
 	"sort"
@@ -242,6 +244,14 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 	// renderers go on meanwhile.
 	w.counting.Store(int64(len(walks)))
 	w.io = make(chan tileFile, 8*workers)
+	// A tile is written in place when nothing is at its path yet (no
+	// temporary file, no rename): a kill can then leave part of a tile,
+	// which is safe because the zoom is not yet listed as done, and a
+	// resumed run keeps only whole tiles (kept).
+	put := w.opt.Out.Put
+	if fp, ok := w.opt.Out.(sink.FreshPutter); ok {
+		put = fp.PutFresh
+	}
 	for i := 0; i < 2*workers+2; i++ {
 		iowg.Add(1)
 		go func() {
@@ -250,7 +260,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 				if failed.Load() != nil {
 					continue
 				}
-				err := w.opt.Out.Put(ctx, f.path, f.data, "image/png", sink.CacheTiles)
+				err := put(ctx, f.path, f.data, "image/png", sink.CacheTiles)
 				if err == nil {
 					err = w.account(f.j, int64(len(f.data)), false)
 				}
@@ -389,7 +399,9 @@ func (w *writer) do(r *tileRenderer, j job) error {
 }
 
 // kept reports whether tile j (at path p) is kept from an earlier run,
-// accounting for it if so.
+// accounting for it if so. In a folder only a whole PNG is kept (one that
+// ends with the IEND chunk): tiles are written in place, so a killed run
+// can leave part of one, which is then written again.
 func (w *writer) kept(j job, p string) (bool, error) {
 	if !w.resuming {
 		return false, nil
@@ -398,7 +410,33 @@ func (w *writer) kept(j job, p string) (bool, error) {
 	if err != nil || !ok {
 		return false, err
 	}
+	if d, isDir := w.opt.Out.(*sink.Dir); isDir && !wholePNG(filepath.Join(d.Root(), filepath.FromSlash(p)), size) {
+		return false, nil
+	}
 	return true, w.account(j, size, true)
+}
+
+// pngEnd is the IEND chunk that ends every PNG (W3C PNG specification,
+// second edition, 11.2.5 and 5.3: length 0, type IEND, its CRC-32).
+var pngEnd = []byte{0, 0, 0, 0, 'I', 'E', 'N', 'D', 0xAE, 0x42, 0x60, 0x82}
+
+// wholePNG reports whether the file at full, size bytes long, ends with
+// the IEND chunk. A prefix of a tile cut anywhere else ends so only if
+// those twelve bytes occur in its compressed data right at the cut.
+func wholePNG(full string, size int64) bool {
+	if size < int64(len(pngEnd)) {
+		return false
+	}
+	f, err := os.Open(full)
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	var tail [12]byte
+	if _, err := f.ReadAt(tail[:], size-int64(len(tail))); err != nil {
+		return false
+	}
+	return bytes.Equal(tail[:], pngEnd)
 }
 
 // encode encodes tile t (nil: no ink) and hands it to the writers.

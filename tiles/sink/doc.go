@@ -12,6 +12,13 @@
 // visible only when its upload completes. A reader of the sink therefore
 // never sees half a tile, and a rerun can trust whatever Exists reports.
 //
+// The one exception is asked for by name: a folder's PutFresh
+// (FreshPutter) writes a file that does not exist yet in place, so until
+// the write ends, or after a kill during it, the path can hold part of it.
+// The tile writer uses it, because a resumed run keeps a tile of an
+// unfinished zoom only when the whole PNG is there and writes the rest
+// again.
+//
 // Content types and cache headers are stored with each object where the
 // store keeps them (object stores); a local folder ignores them, since the
 // web server that serves it derives them from the file extension. TypeOf

@@ -17,8 +17,10 @@ import (
 //     rename across folders), kept here as the reference;
 //   - shared: the previous Put (O_EXCL temporary with mode 0644 in the
 //     one shared folder .stipple/put, write, rename across folders);
-//   - put: Put (O_EXCL temporary beside the tile, write, rename within
-//     the tile's folder);
+//   - osput: the Put of 2026-12-05 morning (O_EXCL temporary beside the
+//     tile, write, rename within the tile's folder, through package os);
+//   - put: Put (the same, making the system calls itself: no fcntl,
+//     epoll_ctl or lstat);
 //   - inplace: the tile file itself opened, written and closed (no
 //     rename).
 //
@@ -42,7 +44,7 @@ func BenchmarkTileFiles(b *testing.B) {
 			os.RemoveAll(t)
 		}
 	}()
-	for _, mode := range []string{"crossdir", "shared", "put", "inplace"} {
+	for _, mode := range []string{"crossdir", "shared", "osput", "put", "inplace"} {
 		b.Run(mode, func(b *testing.B) {
 			base := os.Getenv("STIPPLE_BENCH_DIR")
 			if base == "" {
@@ -63,6 +65,8 @@ func BenchmarkTileFiles(b *testing.B) {
 					err = crossDirPut(d, p, data)
 				case "put":
 					err = d.Put(ctx, p, data, "image/png", "")
+				case "osput":
+					err = osPut(d, p, data)
 				case "inplace":
 					err = inPlace(d, p, data)
 				case "shared":
@@ -134,6 +138,24 @@ func sharedDirPut(d *Dir, p string, data []byte) error {
 	return err
 }
 
+// osPut is Put through package os (os.OpenFile, os.Rename), as it was
+// before Put made the system calls itself.
+func osPut(d *Dir, p string, data []byte) error {
+	full := filepath.Join(d.root, filepath.FromSlash(p))
+	tmp := filepath.Join(filepath.Dir(full), tempToken+strconv.FormatInt(tempSeq.Add(1), 36))
+	f, err := d.create(tmp, os.O_EXCL)
+	if err != nil {
+		return err
+	}
+	if _, err := f.Write(data); err != nil {
+		return err
+	}
+	if err := f.Close(); err != nil {
+		return err
+	}
+	return os.Rename(tmp, full)
+}
+
 // inPlace writes the tile file itself.
 func inPlace(d *Dir, p string, data []byte) error {
 	f, err := d.create(filepath.Join(d.root, filepath.FromSlash(p)), os.O_TRUNC)
@@ -168,7 +190,7 @@ func BenchmarkTileFilesTwoWriters(b *testing.B) {
 			os.RemoveAll(t)
 		}
 	}()
-	for _, mode := range []string{"shared", "put", "inplace"} {
+	for _, mode := range []string{"shared", "osput", "put", "inplace"} {
 		b.Run(mode, func(b *testing.B) {
 			base := os.Getenv("STIPPLE_BENCH_DIR")
 			if base == "" {
@@ -193,6 +215,8 @@ func BenchmarkTileFilesTwoWriters(b *testing.B) {
 						switch mode {
 						case "put":
 							err = d.Put(ctx, p, data, "image/png", "")
+						case "osput":
+							err = osPut(d, p, data)
 						case "inplace":
 							err = inPlace(d, p, data)
 						case "shared":

@@ -33,6 +33,19 @@ type Sink interface {
 	String() string
 }
 
+// FreshPutter is implemented by sinks that can skip Put's temporary file
+// for a path that holds nothing yet (Dir).
+type FreshPutter interface {
+	// PutFresh stores data at path like Put, except that when path holds
+	// nothing yet the file is written there directly, with no temporary
+	// name and no rename: while the write runs, and after a kill during
+	// it, the path may hold part of data. A path that holds a file is
+	// replaced atomically, as by Put. Only for files whose writer redoes
+	// every one it did not record as finished: the tiles of a zoom the
+	// resume manifest does not list as done.
+	PutFresh(ctx context.Context, path string, data []byte, contentType, cacheControl string) error
+}
+
 // ErrNotExist is returned (wrapped) by Get for a path that holds nothing.
 var ErrNotExist = fs.ErrNotExist
 

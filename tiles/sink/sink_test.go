@@ -153,6 +153,57 @@ func TestDirPutIsAtomic(t *testing.T) {
 	}
 }
 
+// TestPutFreshWritesNewFilesInPlaceAndReplacesOldOnesWhole: a new path
+// gets the file itself (no temporary name is ever made: the folder holds
+// one entry, with mode 0644 under umask 022, the folders made on the way);
+// an existing file is replaced by a new one (a new inode, as a rename
+// gives), never rewritten where it is; a path under a file fails with an
+// error naming it.
+func TestPutFreshWritesNewFilesInPlaceAndReplacesOldOnesWhole(t *testing.T) {
+	root := t.TempDir()
+	d := NewDir(root)
+	ctx := context.Background()
+	tile := filepath.Join(root, "14", "8000", "5000.png")
+	if err := d.PutFresh(ctx, "14/8000/5000.png", []byte("first"), "image/png", ""); err != nil {
+		t.Fatal(err)
+	}
+	if b, err := os.ReadFile(tile); err != nil || string(b) != "first" {
+		t.Fatalf("file holds %q (%v); want %q", b, err, "first")
+	}
+	if entries, _ := os.ReadDir(filepath.Dir(tile)); len(entries) != 1 {
+		t.Errorf("folder holds %d entries; want 1", len(entries))
+	}
+	before, _ := os.Stat(tile)
+	if before.Mode().Perm()&^0o022 != 0o644&^0o022 || before.Mode().Perm()&0o111 != 0 {
+		t.Errorf("mode %v; want 0644 less the umask", before.Mode().Perm())
+	}
+	if err := d.PutFresh(ctx, "14/8000/5000.png", []byte("second, longer"), "image/png", ""); err != nil {
+		t.Fatal(err)
+	}
+	after, _ := os.Stat(tile)
+	if b, _ := os.ReadFile(tile); string(b) != "second, longer" {
+		t.Errorf("file holds %q after the second PutFresh", b)
+	}
+	if os.SameFile(before, after) {
+		t.Error("an existing file was rewritten in place; want it replaced by a rename")
+	}
+	if entries, _ := os.ReadDir(filepath.Dir(tile)); len(entries) != 1 {
+		t.Errorf("folder holds %d entries after replacing; want 1", len(entries))
+	}
+	if err := os.WriteFile(filepath.Join(root, "blocker"), nil, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	err := d.PutFresh(ctx, "blocker/0.png", []byte("x"), "image/png", "")
+	if err == nil || !strings.Contains(err.Error(), filepath.Join(root, "blocker")) {
+		t.Errorf("PutFresh under a file: %v; want an error naming the path", err)
+	}
+	cctx, cancel := context.WithCancel(ctx)
+	cancel()
+	if err := d.PutFresh(cctx, "14/8000/5001.png", []byte("x"), "image/png", ""); err == nil {
+		t.Error("PutFresh with a cancelled context succeeded")
+	}
+}
+
 func TestOpenErrors(t *testing.T) {
 	ctx := context.Background()
 	for _, loc := range []string{"", "nosuch://bucket", "s3://%zz", "file://otherhost/x"} {
