@@ -9,8 +9,25 @@ import (
 	"testing"
 )
 
+// benchTrees are the folders the file benchmarks made; TestMain removes
+// them when every benchmark has run. On ext4 without a journal (the build
+// machines' disk), creating files soon after many were deleted scans the
+// freed inodes (the kernel skips inodes deleted in the last minutes),
+// which would slow whatever ran after a removal: removing BenchmarkTileFiles'
+// trees before BenchmarkTileFilesTwoWriters made its first two modes 3 to
+// 8 times slower (BENCHMARKS.md, "Tile files").
+var benchTrees []string
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	for _, t := range benchTrees {
+		os.RemoveAll(t)
+	}
+	os.Exit(code)
+}
+
 // BenchmarkTileFiles measures the file-system cost of writing one tile of
-// 4 KiB (a typical sparse tile) four ways, in a fresh z/x/y tree of 64
+// 4 KiB (a typical sparse tile) six ways, in a fresh z/x/y tree of 64
 // tiles per column folder:
 //
 //   - crossdir: an early Put (CreateTemp in .stipple/put, write, chmod,
@@ -22,7 +39,10 @@ import (
 //   - put: Put (the same, making the system calls itself: no fcntl,
 //     epoll_ctl or lstat);
 //   - inplace: the tile file itself opened, written and closed (no
-//     rename).
+//     rename), through package os;
+//   - fresh: PutFresh, which the tile writer uses (the tile file itself
+//     created with O_EXCL, written and closed, system calls made
+//     directly).
 //
 // STIPPLE_BENCH_DIR picks the file system (for example a folder on disk
 // and one under /dev/shm); the default is the test's temporary folder.
@@ -33,18 +53,9 @@ func BenchmarkTileFiles(b *testing.B) {
 		data[i] = byte(i * 7)
 	}
 	ctx := context.Background()
-	// The trees are removed after every mode has run, not between modes:
-	// on ext4 without a journal (the build machines' disk), creating files
-	// soon after many were deleted scans the freed inodes (the kernel skips
-	// inodes deleted in the last minutes), which would slow whichever mode
-	// came after a removal (BENCHMARKS.md, "Tile files").
-	var trees []string
-	defer func() {
-		for _, t := range trees {
-			os.RemoveAll(t)
-		}
-	}()
-	for _, mode := range []string{"crossdir", "shared", "osput", "put", "inplace"} {
+	// The trees are removed when the test binary ends (TestMain), not
+	// between modes or benchmarks: see benchTrees.
+	for _, mode := range []string{"crossdir", "shared", "osput", "put", "inplace", "fresh"} {
 		b.Run(mode, func(b *testing.B) {
 			base := os.Getenv("STIPPLE_BENCH_DIR")
 			if base == "" {
@@ -54,7 +65,7 @@ func BenchmarkTileFiles(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			trees = append(trees, root)
+			benchTrees = append(benchTrees, root)
 			d := NewDir(root)
 			b.SetBytes(int64(len(data)))
 			b.ResetTimer()
@@ -67,6 +78,8 @@ func BenchmarkTileFiles(b *testing.B) {
 					err = d.Put(ctx, p, data, "image/png", "")
 				case "osput":
 					err = osPut(d, p, data)
+				case "fresh":
+					err = d.PutFresh(ctx, p, data, "image/png", "")
 				case "inplace":
 					err = inPlace(d, p, data)
 				case "shared":
@@ -179,18 +192,9 @@ func BenchmarkTileFilesTwoWriters(b *testing.B) {
 		data[i] = byte(i * 7)
 	}
 	ctx := context.Background()
-	// The trees are removed after every mode has run, not between modes:
-	// on ext4 without a journal (the build machines' disk), creating files
-	// soon after many were deleted scans the freed inodes (the kernel skips
-	// inodes deleted in the last minutes), which would slow whichever mode
-	// came after a removal (BENCHMARKS.md, "Tile files").
-	var trees []string
-	defer func() {
-		for _, t := range trees {
-			os.RemoveAll(t)
-		}
-	}()
-	for _, mode := range []string{"shared", "osput", "put", "inplace"} {
+	// The trees are removed when the test binary ends (TestMain), not
+	// between modes or benchmarks: see benchTrees.
+	for _, mode := range []string{"shared", "osput", "put", "inplace", "fresh"} {
 		b.Run(mode, func(b *testing.B) {
 			base := os.Getenv("STIPPLE_BENCH_DIR")
 			if base == "" {
@@ -200,7 +204,7 @@ func BenchmarkTileFilesTwoWriters(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			trees = append(trees, root)
+			benchTrees = append(benchTrees, root)
 			d := NewDir(root)
 			b.SetBytes(int64(len(data)))
 			b.ResetTimer()
@@ -217,6 +221,8 @@ func BenchmarkTileFilesTwoWriters(b *testing.B) {
 							err = d.Put(ctx, p, data, "image/png", "")
 						case "osput":
 							err = osPut(d, p, data)
+						case "fresh":
+							err = d.PutFresh(ctx, p, data, "image/png", "")
 						case "inplace":
 							err = inPlace(d, p, data)
 						case "shared":
