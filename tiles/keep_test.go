@@ -4,15 +4,11 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"math"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
-	"github.com/stipple-maps/stipple/render"
-	"github.com/stipple-maps/stipple/tiles/dotstore"
 	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
@@ -47,16 +43,8 @@ func pngFiles(t *testing.T, root string) map[string][]byte {
 // exactly the whole write's tiles that Keep accepts, byte for byte, and
 // their totals count only those.
 func TestKeepSkipsTiles(t *testing.T) {
-	rng := rand.New(rand.NewPCG(21, 21))
-	var keys []uint64
-	for i := 0; i < 30000; i++ {
-		wx, wy := worldAt(8, 30000+rng.Float64()*700, 20000+rng.Float64()*600)
-		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
-	}
-	src := sorted(keys)
-	look := func(z int) render.Dot {
-		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-11)), Opacity: 0.9}
-	}
+	src := clusterKeys(21, 21, 30000, 700, 600)
+	look := growingLook(11)
 	opt := Options{MinZoom: 3, MaxZoom: 11, TileSize: 256, Colors: testColors, Look: look, Workers: 2, HiDPI: true}
 	all := opt
 	all.Dir = t.TempDir()
@@ -164,16 +152,8 @@ func atoi(t *testing.T, s string) int {
 // fingerprint it clears its own old tiles first, and must leave the other's
 // alone: the output still holds the whole write's tiles, byte for byte.
 func TestNewFingerprintRemovesOnlyKeptTiles(t *testing.T) {
-	rng := rand.New(rand.NewPCG(5, 5))
-	var keys []uint64
-	for i := 0; i < 8000; i++ {
-		wx, wy := worldAt(8, 30000+rng.Float64()*500, 20000+rng.Float64()*400)
-		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
-	}
-	src := sorted(keys)
-	look := func(z int) render.Dot {
-		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-10)), Opacity: 0.9}
-	}
+	src := clusterKeys(5, 5, 8000, 500, 400)
+	look := growingLook(10)
 	opt := Options{MinZoom: 4, MaxZoom: 10, TileSize: 256, Colors: testColors, Look: look, Workers: 2, HiDPI: true}
 	whole := opt
 	whole.Dir = t.TempDir()

@@ -290,16 +290,8 @@ func compareTrees(t *testing.T, a, b string) int {
 // fingerprint, and compares with an uninterrupted write: same files, same
 // bytes, same totals; and a new fingerprint clears the old tiles.
 func TestInterruptedWriteResumesToIdenticalTiles(t *testing.T) {
-	rng := rand.New(rand.NewPCG(13, 13))
-	var keys []uint64
-	for i := 0; i < 30000; i++ {
-		wx, wy := worldAt(8, 30000+rng.Float64()*600, 20000+rng.Float64()*500)
-		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
-	}
-	src := sorted(keys)
-	look := func(z int) render.Dot {
-		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-11)), Opacity: 0.9}
-	}
+	src := clusterKeys(13, 13, 30000, 600, 500)
+	look := growingLook(11)
 	opt := Options{MinZoom: 3, MaxZoom: 11, TileSize: 256, Colors: testColors, Look: look, Workers: 2, Fingerprint: "look-1", HiDPI: true}
 	ref := t.TempDir()
 	o := opt
@@ -361,16 +353,8 @@ func TestResumeRewritesPartWrittenTiles(t *testing.T) {
 	if got := crc32.ChecksumIEEE([]byte("IEND")); !bytes.Equal(pngEnd[8:], []byte{byte(got >> 24), byte(got >> 16), byte(got >> 8), byte(got)}) {
 		t.Fatalf("pngEnd CRC %x; the IEND chunk's CRC-32 is %08x", pngEnd[8:], got)
 	}
-	rng := rand.New(rand.NewPCG(31, 7))
-	var keys []uint64
-	for i := 0; i < 20000; i++ {
-		wx, wy := worldAt(8, 30000+rng.Float64()*600, 20000+rng.Float64()*500)
-		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
-	}
-	src := sorted(keys)
-	look := func(z int) render.Dot {
-		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-11)), Opacity: 0.9}
-	}
+	src := clusterKeys(31, 7, 20000, 600, 500)
+	look := growingLook(11)
 	opt := Options{MinZoom: 9, MaxZoom: 11, TileSize: 256, Colors: testColors, Look: look, Workers: 2, Fingerprint: "look-1"}
 	ref, dir := t.TempDir(), t.TempDir()
 	for _, d := range []string{ref, dir} {
@@ -415,6 +399,26 @@ func TestResumeRewritesPartWrittenTiles(t *testing.T) {
 		t.Error("the resumed run kept no tiles")
 	}
 	compareTrees(t, ref, dir)
+}
+
+// clusterKeys is n dots of 3 categories uniform over a w × h patch of
+// zoom-8 pixels at (30000, 20000), from PCG seeds a, b.
+func clusterKeys(a, b uint64, n int, w, h float64) *dotstore.Store {
+	rng := rand.New(rand.NewPCG(a, b))
+	keys := make([]uint64, 0, n)
+	for i := 0; i < n; i++ {
+		wx, wy := worldAt(8, 30000+rng.Float64()*w, 20000+rng.Float64()*h)
+		keys = append(keys, dotstore.Key(wx, wy, rng.IntN(3)))
+	}
+	return sorted(keys)
+}
+
+// growingLook is 2.5 px dots at zoom top, √2 times wider a zoom in,
+// opacity 0.9.
+func growingLook(top int) func(z int) render.Dot {
+	return func(z int) render.Dot {
+		return render.Dot{Diameter: 2.5 * math.Pow(math.Sqrt2, float64(z-top)), Opacity: 0.9}
+	}
 }
 
 func mapsEqual(a, b map[int]int64) bool {

@@ -104,8 +104,15 @@ func (d *Dir) Put(ctx context.Context, p string, data []byte, contentType, cache
 	if err != nil {
 		return err
 	}
+	return d.replace(full, data)
+}
+
+// replace writes data to a temporary file beside full and renames it
+// into place.
+func (d *Dir) replace(full string, data []byte) error {
 	dir := filepath.Dir(full)
 	var tmp string
+	var err error
 	for try := 0; ; try++ {
 		tmp = filepath.Join(dir, tempToken+strconv.FormatInt(tempSeq.Add(1), 36))
 		err = writeNew(d, tmp, data)
@@ -140,7 +147,7 @@ func (d *Dir) PutFresh(ctx context.Context, p string, data []byte, contentType, 
 		return nil
 	}
 	if os.IsExist(err) {
-		return d.Put(ctx, p, data, contentType, cacheControl)
+		return d.replace(full, data)
 	}
 	return fmt.Errorf("sink: %w", err)
 }

@@ -131,17 +131,10 @@ func crossDirPut(d *Dir, p string, data []byte) error {
 func sharedDirPut(d *Dir, p string, data []byte) error {
 	full := filepath.Join(d.root, filepath.FromSlash(p))
 	tmp := filepath.Join(d.root, filepath.FromSlash(TempDir), "put-"+strconv.FormatInt(tempSeq.Add(1), 36))
-	f, err := d.create(tmp, os.O_EXCL)
-	if err != nil {
+	if err := osWrite(d, tmp, os.O_EXCL, data); err != nil {
 		return err
 	}
-	if _, err := f.Write(data); err != nil {
-		return err
-	}
-	if err := f.Close(); err != nil {
-		return err
-	}
-	err = os.Rename(tmp, full)
+	err := os.Rename(tmp, full)
 	if os.IsNotExist(err) {
 		if err := d.mkdir(filepath.Dir(full)); err != nil {
 			return err
@@ -156,14 +149,7 @@ func sharedDirPut(d *Dir, p string, data []byte) error {
 func osPut(d *Dir, p string, data []byte) error {
 	full := filepath.Join(d.root, filepath.FromSlash(p))
 	tmp := filepath.Join(filepath.Dir(full), tempToken+strconv.FormatInt(tempSeq.Add(1), 36))
-	f, err := d.create(tmp, os.O_EXCL)
-	if err != nil {
-		return err
-	}
-	if _, err := f.Write(data); err != nil {
-		return err
-	}
-	if err := f.Close(); err != nil {
+	if err := osWrite(d, tmp, os.O_EXCL, data); err != nil {
 		return err
 	}
 	return os.Rename(tmp, full)
@@ -171,7 +157,13 @@ func osPut(d *Dir, p string, data []byte) error {
 
 // inPlace writes the tile file itself.
 func inPlace(d *Dir, p string, data []byte) error {
-	f, err := d.create(filepath.Join(d.root, filepath.FromSlash(p)), os.O_TRUNC)
+	return osWrite(d, filepath.Join(d.root, filepath.FromSlash(p)), os.O_TRUNC, data)
+}
+
+// osWrite opens name through package os with the extra flag, writes data
+// and closes it.
+func osWrite(d *Dir, name string, flag int, data []byte) error {
+	f, err := d.create(name, flag)
 	if err != nil {
 		return err
 	}
