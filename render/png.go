@@ -55,9 +55,13 @@ type encState struct {
 	raw   []byte   // filtered scanlines
 	z     []byte
 	ink   []uint64 // non-zero pixels, for Encode
-	runs  []uint32
-	out   bytes.Buffer
-	zlib  deflate.Encoder
+	// inkBits and inkWords are the ink bitmap of the tile EncodeTile is
+	// writing (inkWords words a row), which packRows reads; nil otherwise.
+	inkBits  []uint64
+	inkWords int
+	runs     []uint32
+	out      bytes.Buffer
+	zlib     deflate.Encoder
 }
 
 var pngSignature = []byte{0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'}
@@ -111,7 +115,9 @@ func (e *Encoder) EncodeTile(w io.Writer, t *Tile) error {
 	defer e.pool.Put(st)
 	var data []byte
 	if t.paletted {
+		st.inkBits, st.inkWords = t.ink, t.wpr
 		data = st.write(t.w, t.h, t.pal, t.ind, 1+t.w, 1, nil)
+		st.inkBits = nil
 	} else if e.Filter == FilterNone || (e.Filter == FilterAuto && 2*t.inked <= t.w*t.h) {
 		// The rows as they are, coded as literal pixels and runs of
 		// empty ones.
@@ -391,6 +397,20 @@ func (st *encState) packRows(ind []byte, stride, off, w, h int, depth uint8) []b
 		}
 		out := r[1:]
 		clear(out)
+		if st.inkBits != nil && w%8 == 0 {
+			// A tile's ink bitmap (a bit for every pixel with a colour)
+			// says which steps of eight pixels to pack: a sparse tile's
+			// rows are not read at all where they have no ink.
+			for wi, word := range st.inkBits[y*st.inkWords : (y+1)*st.inkWords] {
+				for word != 0 {
+					g := bits.TrailingZeros64(word) &^ 7
+					word &^= 0xff << g
+					x := wi<<6 + g
+					packStep(out, src[x:x+8:x+8], x, depth)
+				}
+			}
+			continue
+		}
 		// Eight pixels a step; a step of index 0 only (transparent, most
 		// of a sparse tile) leaves out zero.
 		n8 := len(src) &^ 7
@@ -399,17 +419,7 @@ func (st *encState) packRows(ind []byte, stride, off, w, h int, depth uint8) []b
 			if binary.LittleEndian.Uint64(s) == 0 {
 				continue
 			}
-			switch depth {
-			case 4:
-				o := out[x>>1 : x>>1+4 : x>>1+4]
-				o[0], o[1], o[2], o[3] = s[0]<<4|s[1], s[2]<<4|s[3], s[4]<<4|s[5], s[6]<<4|s[7]
-			case 2:
-				o := out[x>>2 : x>>2+2 : x>>2+2]
-				o[0] = s[0]<<6 | s[1]<<4 | s[2]<<2 | s[3]
-				o[1] = s[4]<<6 | s[5]<<4 | s[6]<<2 | s[7]
-			case 1:
-				out[x>>3] = s[0]<<7 | s[1]<<6 | s[2]<<5 | s[3]<<4 | s[4]<<3 | s[5]<<2 | s[6]<<1 | s[7]
-			}
+			packStep(out, s, x, depth)
 		}
 		// The pixels after the last whole step, into partly filled bytes.
 		d := uint(depth)
@@ -418,6 +428,22 @@ func (st *encState) packRows(ind []byte, stride, off, w, h int, depth uint8) []b
 		}
 	}
 	return st.raw
+}
+
+// packStep packs the eight indices s of pixels x … x+7 (x a multiple of
+// eight) into out, a scanline of depth 4, 2 or 1 bits a pixel.
+func packStep(out, s []byte, x int, depth uint8) {
+	switch depth {
+	case 4:
+		o := out[x>>1 : x>>1+4 : x>>1+4]
+		o[0], o[1], o[2], o[3] = s[0]<<4|s[1], s[2]<<4|s[3], s[4]<<4|s[5], s[6]<<4|s[7]
+	case 2:
+		o := out[x>>2 : x>>2+2 : x>>2+2]
+		o[0] = s[0]<<6 | s[1]<<4 | s[2]<<2 | s[3]
+		o[1] = s[4]<<6 | s[5]<<4 | s[6]<<2 | s[7]
+	case 1:
+		out[x>>3] = s[0]<<7 | s[1]<<6 | s[2]<<5 | s[3]<<4 | s[4]<<3 | s[5]<<2 | s[6]<<1 | s[7]
+	}
 }
 
 // chunk appends one PNG chunk: length, type, data, CRC-32 of type and data.

@@ -206,6 +206,16 @@ func BenchmarkEncodeTile(b *testing.B) {
 // every kind of tile (indexed at each bit depth, sparse and dense
 // truecolour, count canvases), and decodes to those pixels.
 func TestEncodeTileMatchesEncode(t *testing.T) {
+	depths := map[[2]byte]bool{} // bit depth, colour type
+	defer func() {
+		// Every way rows are laid out: indexed at 1, 2, 4 and 8 bits
+		// (packed from the tile's ink bitmap below 8), and truecolour.
+		for _, d := range [][2]byte{{1, 3}, {2, 3}, {4, 3}, {8, 3}, {8, 6}} {
+			if !depths[d] {
+				t.Errorf("no case made a tile of bit depth %d, colour type %d", d[0], d[1])
+			}
+		}
+	}()
 	for _, tc := range []struct {
 		name  string
 		dots  int
@@ -220,6 +230,9 @@ func TestEncodeTileMatchesEncode(t *testing.T) {
 		{"dense", 40000, 3, 5, false},
 		{"nine categories", 3000, 2.2, 9, false},
 		{"counts", 20000, 0, 5, true},
+		{"few counts, one category (1-bit rows)", 40, 0, 1, true},
+		{"few counts, three categories (2-bit rows)", 60, 0, 3, true},
+		{"few counts, twelve categories (4-bit rows)", 300, 0, 12, true},
 		{"empty", 0, 3, 5, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -261,6 +274,8 @@ func TestEncodeTileMatchesEncode(t *testing.T) {
 				if !bytes.Equal(a.Bytes(), b.Bytes()) {
 					t.Fatalf("EncodeTile wrote %d bytes, Encode %d: they differ", a.Len(), b.Len())
 				}
+				// IHDR's bit depth and colour type (PNG spec §11.2.2).
+				depths[[2]byte{a.Bytes()[24], a.Bytes()[25]}] = true
 				got, err := png.Decode(bytes.NewReader(a.Bytes()))
 				if err != nil {
 					t.Fatal(err)

@@ -37,6 +37,7 @@ func cmdInspect(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	fs.SetOutput(stderr)
 	mapPath := fs.String("map", "", "map file: also show the join report, the dots per category, the tiles, and the disk and time a render would take (default: none)")
 	layerName := fs.String("layer", "", "GeoPackage layer (default: the map file's input.layer, else the only polygon layer)")
+	rates := fs.String("rates", "", "with --map: "+ratesUsage)
 	id := fs.String("id", "", "field that identifies each area (default: the map file's input.id, else the feature's own id)")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -70,7 +71,11 @@ func cmdInspect(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err != nil {
 		return err
 	}
-	return plan(stdout, m, in)
+	r, err := readRates(*rates)
+	if err != nil {
+		return err
+	}
+	return plan(stdout, m, in, r)
 }
 
 func describe(w io.Writer, res *read.Result) {
@@ -191,7 +196,7 @@ func fieldStats(l *geo.Layer, name string) stats {
 	return s
 }
 
-func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) error {
+func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input, rates *shard.Rates) error {
 	if in.Join != nil {
 		fmt.Fprintln(w, strings.TrimRight(in.Join.String(), "\n"))
 	}
@@ -211,7 +216,11 @@ func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) error {
 	}
 	fmt.Fprintf(w, "  dots: exactly the dots render allocates with this map file (rounding = %q, seed %d); render draws them all\n", m.Rounding, m.Seed)
 	fmt.Fprintln(w, "  except those in areas it cannot draw (counted there as not drawn)")
-	est, err := mapjob.Estimate(in, m, m.Tiles.HiDPI)
+	est, err := mapjob.Estimate(in, m, m.Tiles.HiDPI, rates)
+	source := shard.MeasuredRates.Source
+	if rates != nil {
+		source = rates.Source
+	}
 	if err != nil {
 		return err
 	}
@@ -224,7 +233,7 @@ func plan(w io.Writer, m *mapfile.Map, in *mapjob.Input) error {
 		hidpi = " (with @2x tiles)"
 	}
 	fmt.Fprintf(w, "  estimate: %.0f dots, about %s tiles%s, about %s, about %s of CPU (rates measured on %s)\n",
-		dots, render.FormatCount(math.Round(est.Tiles)), hidpi, sizeText(est.Bytes), cpuText(est.CoreHours), shard.MeasuredRates.Source)
+		dots, render.FormatCount(math.Round(est.Tiles)), hidpi, sizeText(est.Bytes), cpuText(est.CoreHours), source)
 	return nil
 }
 

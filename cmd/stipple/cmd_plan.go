@@ -7,12 +7,17 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"text/tabwriter"
+	"time"
 
 	"github.com/stipple-maps/stipple/render"
+	"github.com/stipple-maps/stipple/tiles"
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
 	"github.com/stipple-maps/stipple/tiles/shard"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 var planDoc = register(cmdDoc{Name: "plan", Order: 80, Usage: "plan MAP.toml --shards N [flags]",
@@ -23,7 +28,56 @@ var planDoc = register(cmdDoc{Name: "plan", Order: 80, Usage: "plan MAP.toml --s
 	Examples: []string{
 		"stipple plan map.toml --shards 8",
 		"stipple plan map.toml --shards 32 --max-zoom 14 --json",
+		"stipple plan map.toml --shards 16 --probe /data/out --rates rates.json",
+		"stipple render map.toml --shard 3/16 --rates rates.json",
 	}})
+
+// ratesUsage is the text of --rates, which render, plan and inspect share.
+const ratesUsage = "rates `file` that stipple plan --probe wrote: the measured costs that cut a sharded render into parts; " +
+	"give every part, the plan and the final step the same file (default: the rates measured for BENCHMARKS.md)"
+
+// readRates reads the --rates file; nil for none.
+func readRates(name string) (*shard.Rates, error) {
+	if name == "" {
+		return nil, nil
+	}
+	r, err := shard.ReadRates(name)
+	if err != nil {
+		return nil, err
+	}
+	return &r, nil
+}
+
+// Probe sizes: probeFiles files of probeBytes (about a sparse deep tile's
+// PNG), probePerDir to a folder as in a zoom's columns.
+const (
+	probeFiles  = 4000
+	probeBytes  = 2048
+	probePerDir = 64
+)
+
+// probeRates measures what a tile file costs in the output folder or
+// bucket at out (shard.ProbeFiles, in a folder of its own that it removes
+// again) and returns the default rates with that cost.
+func probeRates(ctx context.Context, out string) (shard.Rates, error) {
+	r := shard.MeasuredRates
+	s, err := sink.Open(ctx, out)
+	if err != nil {
+		return r, err
+	}
+	defer s.Close()
+	prefix := tiles.StateDir + "/probe-" + fmt.Sprint(os.Getpid(), "-", time.Now().UnixNano())
+	ns, err := shard.ProbeFiles(ctx, s, prefix, probeFiles, probeBytes, probePerDir)
+	if d, ok := s.(*sink.Dir); ok {
+		os.RemoveAll(filepath.Join(d.Root(), filepath.FromSlash(prefix)))
+	}
+	if err != nil {
+		return r, fmt.Errorf("%s: %w", out, err)
+	}
+	r.FileNs = ns
+	r.Source = fmt.Sprintf("%s, tile files probed in %s on %s (%.0f µs a file)", shard.MeasuredRates.Source, out, time.Now().UTC().Format("2006-01-02"), ns/1e3)
+	return r, nil
+}
 
 // cmdPlan is "stipple plan MAP.toml --shards N": how a render of the map
 // would be cut into N parts, the work of each, and the expected tiles,
@@ -35,6 +89,8 @@ func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	o.register(fs)
 	n := fs.Int("shards", 1, "number of parts")
 	asJSON := fs.Bool("json", false, "print the plan as JSON")
+	rates := fs.String("rates", "", ratesUsage)
+	probe := fs.String("probe", "", "measure what writing a tile file costs in this output `folder` or bucket, cut the plan by it, and save the rates to --rates FILE for the parts: writes and removes a few thousand small files (default: no probe)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return err
@@ -52,11 +108,28 @@ func cmdPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if err := o.apply(m); err != nil {
 		return err
 	}
+	var r *shard.Rates
+	if *probe != "" {
+		if *rates == "" {
+			return usageError{"--probe saves what it measures: give --rates FILE too"}
+		}
+		pr, err := probeRates(ctx, *probe)
+		if err != nil {
+			return err
+		}
+		if err := shard.WriteRates(*rates, pr); err != nil {
+			return err
+		}
+		fmt.Fprintf(stderr, "plan: a tile file in %s costs %.0f µs; rates saved to %s (give every part --rates %s)\n", *probe, pr.FileNs/1e3, *rates, *rates)
+		r = &pr
+	} else if r, err = readRates(*rates); err != nil {
+		return err
+	}
 	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
 	}
-	sp, err := mapjob.PlanShards(in, m, *n, o.hidpi || m.Tiles.HiDPI)
+	sp, err := mapjob.PlanShards(in, m, *n, o.hidpi || m.Tiles.HiDPI, r)
 	if err != nil {
 		return err
 	}
@@ -88,7 +161,7 @@ type shardWork struct {
 
 func makePlan(sp *mapjob.ShardPlan) *shardPlan {
 	areas := sp.Areas
-	rates := shard.MeasuredRates
+	rates := sp.Rates
 	est := shard.EstimateTiles(areas, sp.Layout, rates)
 	p := &shardPlan{Layout: sp.Layout, Est: est, Rates: rates, Areas: len(areas)}
 	for _, a := range areas {

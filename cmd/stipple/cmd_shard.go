@@ -11,6 +11,7 @@ import (
 
 	"github.com/stipple-maps/stipple/tiles/mapfile"
 	"github.com/stipple-maps/stipple/tiles/mapjob"
+	"github.com/stipple-maps/stipple/tiles/shard"
 )
 
 // shardSpec is a parsed --shard value: part Index of Count, or the final
@@ -136,13 +137,13 @@ func (f *shardFlag) Set(v string) error {
 
 // renderShard runs part spec of a sharded render of m into m.Out, or its
 // final step, with mapjob's engine, and prints what it did.
-func renderShard(ctx context.Context, m *mapfile.Map, spec shardSpec, opt mapjob.Options, stdout io.Writer) error {
+func renderShard(ctx context.Context, m *mapfile.Map, spec shardSpec, opt mapjob.Options, rates *shard.Rates, stdout io.Writer) error {
 	start := time.Now()
 	in, err := mapjob.Load(m, nil)
 	if err != nil {
 		return err
 	}
-	plan, err := mapjob.PlanShards(in, m, spec.Count, opt.HiDPI || m.Tiles.HiDPI)
+	plan, err := mapjob.PlanShards(in, m, spec.Count, opt.HiDPI || m.Tiles.HiDPI, rates)
 	if err != nil {
 		return err
 	}

@@ -73,7 +73,7 @@ func TestEstimateMatchesRender(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			est, err := mapjob.Estimate(in, m, hidpi)
+			est, err := mapjob.Estimate(in, m, hidpi, nil)
 			if err != nil {
 				t.Fatal(err)
 			}

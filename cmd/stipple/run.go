@@ -308,6 +308,7 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	o.register(fs)
 	var sh shardFlag
 	fs.Var(&sh, "shard", shardUsage)
+	rates := fs.String("rates", "", ratesUsage)
 	work := fs.String("work", "", "local folder for the state of a bucket output or of a --shard part (default: the output's .stipple folder, or the system's temporary folder for a bucket)")
 	pos, err := parse(fs, args)
 	if err != nil {
@@ -328,8 +329,15 @@ func cmdRender(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return err
 	}
 	opt.Work = *work
+	r, err := readRates(*rates)
+	if err != nil {
+		return err
+	}
 	if sh.set {
-		return renderShard(ctx, m, sh.spec, opt, stdout)
+		return renderShard(ctx, m, sh.spec, opt, r, stdout)
+	}
+	if r != nil {
+		return usageError{"--rates cuts a sharded render into parts: give it with --shard"}
 	}
 	// A folder, file:// URL or bucket: mapjob.Run writes to each alike.
 	return renderMap(ctx, m, opt, stdout)

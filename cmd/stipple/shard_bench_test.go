@@ -62,7 +62,7 @@ func BenchmarkShardBalance(b *testing.B) {
 	b.ResetTimer()
 	for it := 0; it < b.N; it++ {
 		for _, n := range []int{2, 4, 16} {
-			plan, err := mapjob.PlanShards(in, m, n, false)
+			plan, err := mapjob.PlanShards(in, m, n, false, nil)
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -213,7 +213,7 @@ func BenchmarkShardParts(b *testing.B) {
 	var table []string
 	b.ResetTimer()
 	for _, n := range counts {
-		plan, err := mapjob.PlanShards(in, m, n, false)
+		plan, err := mapjob.PlanShards(in, m, n, false, nil)
 		if err != nil {
 			b.Fatal(err)
 		}

@@ -54,7 +54,7 @@ func TestRenderToFakeS3(t *testing.T) {
 	var log bytes.Buffer
 	opt := mapjob.Options{Workers: 2, Work: filepath.Join(root, "work"), Log: &log}
 	for _, spec := range []shardSpec{{Index: 0, Count: 1}, {Count: 1, Final: true}} {
-		if err := renderShard(ctx, m, spec, opt, &log); err != nil {
+		if err := renderShard(ctx, m, spec, opt, nil, &log); err != nil {
 			t.Fatalf("%s: %v\n%s", spec, err, log.String())
 		}
 	}
@@ -104,7 +104,7 @@ func TestRenderToFakeS3(t *testing.T) {
 	}
 	// Rerun: the part's report is there, so nothing is drawn or sent.
 	log.Reset()
-	if err := renderShard(ctx, m, shardSpec{Index: 0, Count: 1}, opt, &log); err != nil {
+	if err := renderShard(ctx, m, shardSpec{Index: 0, Count: 1}, opt, nil, &log); err != nil {
 		t.Fatal(err)
 	}
 	if !strings.Contains(log.String(), "already complete") {

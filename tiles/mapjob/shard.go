@@ -33,6 +33,8 @@ type ShardPlan struct {
 	Look string
 	// HiDPI is set when the parts also draw @2x tiles.
 	HiDPI bool
+	// Rates are the costs the layout was cut by.
+	Rates shard.Rates
 }
 
 // planPoints is how many dots the planner places in an area that spans
@@ -40,15 +42,20 @@ type ShardPlan struct {
 const planPoints = 64
 
 // PlanShards computes the layout of an n-part render of m from its loaded
-// input.
-func PlanShards(in *Input, m *mapfile.Map, n int, hidpi bool) (*ShardPlan, error) {
+// input, cut by rates (nil: shard.MeasuredRates). Every part, the plan and
+// the final step must be given the same rates.
+func PlanShards(in *Input, m *mapfile.Map, n int, hidpi bool, rates *shard.Rates) (*ShardPlan, error) {
 	areas := shardAreas(in, m)
 	p := shard.Pyramid{MinZoom: m.Tiles.MinZoom, MaxZoom: m.Tiles.MaxZoom, TileSize: m.Tiles.Size, HiDPI: hidpi, Look: Look(m), Categories: len(m.Categories)}
-	l, err := shard.Plan(areas, p, shard.PlanOptions{Shards: n})
+	r := shard.MeasuredRates
+	if rates != nil {
+		r = *rates
+	}
+	l, err := shard.Plan(areas, p, shard.PlanOptions{Shards: n, Rates: &r})
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", m.Path, err)
 	}
-	return &ShardPlan{Layout: l, Areas: areas, Look: LookFingerprint(in, m, hidpi), HiDPI: hidpi}, nil
+	return &ShardPlan{Layout: l, Areas: areas, Look: LookFingerprint(in, m, hidpi), HiDPI: hidpi, Rates: r}, nil
 }
 
 // shardAreas describes the input's areas for shard.Plan: bound, expected
@@ -385,12 +392,12 @@ func mergeOutcomes(in *Input, l *shard.Layout, reps []*shard.Report) (Outcomes, 
 
 // Estimate predicts what a render of m writes (tiles and bytes per zoom)
 // and the CPU it takes, from the areas' shapes and dots, without placing a
-// dot: shard.EstimateTiles at shard.MeasuredRates over a one-part layout.
-// stipple inspect --map and stipple plan both print it.
-func Estimate(in *Input, m *mapfile.Map, hidpi bool) (shard.Estimate, error) {
-	sp, err := PlanShards(in, m, 1, hidpi)
+// dot: shard.EstimateTiles at rates (nil: shard.MeasuredRates) over a
+// one-part layout. stipple inspect --map and stipple plan both print it.
+func Estimate(in *Input, m *mapfile.Map, hidpi bool, rates *shard.Rates) (shard.Estimate, error) {
+	sp, err := PlanShards(in, m, 1, hidpi, rates)
 	if err != nil {
 		return shard.Estimate{}, err
 	}
-	return shard.EstimateTiles(sp.Areas, sp.Layout, shard.MeasuredRates), nil
+	return shard.EstimateTiles(sp.Areas, sp.Layout, sp.Rates), nil
 }

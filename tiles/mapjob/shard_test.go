@@ -30,7 +30,7 @@ func renderShards(t *testing.T, m *mapfile.Map, layer *geo.Layer, n int, opt Opt
 	if err != nil {
 		t.Fatal(err)
 	}
-	plan, err := PlanShards(in, m, n, opt.HiDPI || m.Tiles.HiDPI)
+	plan, err := PlanShards(in, m, n, opt.HiDPI || m.Tiles.HiDPI, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -139,7 +139,7 @@ func TestKilledPartResumes(t *testing.T) {
 		t.Fatal(err)
 	}
 	const n = 2
-	plan, err := PlanShards(in, m, n, false)
+	plan, err := PlanShards(in, m, n, false, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -302,7 +302,7 @@ func TestMaskEditReplacesPart(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		plan, err := PlanShards(in, m, 1, false)
+		plan, err := PlanShards(in, m, 1, false, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -352,7 +352,7 @@ func TestMergeOutcomes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	plan, err := PlanShards(in, m, 3, false)
+	plan, err := PlanShards(in, m, 3, false, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -14,8 +14,11 @@
 // blocks (a part samples such an area whole, its own dots or not, so an
 // area across a cut is charged to both runs), plus each tile the dots are
 // expected to ink
-// (EstimateTiles: a tile costs about a millisecond to composite, encode and
-// write, and thinly peopled land has many tiles per dot), at MeasuredRates.
+// (EstimateTiles: thinly peopled land has many tiles per dot, and a tile
+// costs tens of microseconds to composite, encode and write), at
+// MeasuredRates or at Rates measured for the job: what a tile file costs
+// depends on where the tiles go, and ProbeFiles measures it there
+// (stipple plan --probe writes a rates file, ReadRates reads it).
 // A tile of zoom z ≥ S belongs to the shard that owns the block above it.
 // The layout is computed from the input alone (each area's bound, fill and
 // expected dots, plus a few sample points for the areas that span blocks),

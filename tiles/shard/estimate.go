@@ -21,13 +21,13 @@ type Rates struct {
 	// tiles and of disc tiles, per core.
 	CountNsPerDot float64 `json:"count_ns_per_dot_zoom"`
 	DiscNsPerDot  float64 `json:"disc_ns_per_dot_zoom"`
-	// TileNs is compositing, encoding and writing one tile, per core, with
-	// the tiles on tmpfs.
+	// TileNs is compositing and encoding one tile, per core, beyond its
+	// dots' drawing.
 	TileNs float64 `json:"tile_ns"`
-	// FileNs is what creating one tile file costs on the output's file
-	// system beyond tmpfs (kernel time and waiting for the disk): a sparse
-	// part writes many tiles per dot, so leaving it out makes such parts
-	// look light. 0 for tiles on tmpfs.
+	// FileNs is what writing one tile file costs where the tiles go
+	// (system calls, the file system, the network): a sparse part writes
+	// many tiles per dot, so getting it wrong makes such parts look light
+	// or heavy. ProbeFiles measures it.
 	FileNs float64 `json:"file_ns"`
 	// TileBytes is a drawn tile's PNG size beyond its inked pixels
 	// (signature, header, palette or row filters, empty rows).
@@ -47,30 +47,27 @@ type Rates struct {
 }
 
 // MeasuredRates were measured on the national benchmark (3230 areas,
-// synthetic counts, 1 dot = 10 people: 30.9 million dots, zooms 0–12,
-// 296 000 tiles) on a 2-core machine, with the tiles on tmpfs so that the
-// rates are the renderer's work rather than the disk's: a least-squares
-// fit of the CPU time (user + sys) of 22 part renders (N = 2, 4 and 16)
-// to their drawn dot-zooms, tiles and a fixed cost per part, with the
-// sampling rate fixed to the placing rate stipple bench measures (sampled
-// and drawn dots go together in most parts, so the fit cannot separate
-// them). The fixed cost, 0.26 s a part, is the same for every part and
-// does not move the cuts. Creating tile files on a virtual disk costs
-// about as much again as rendering them (BENCHMARKS.md, "Sharded
-// renders"). Rerun: go test ./cmd/stipple -run '^$' -bench ShardParts
-// -benchtime 1x, with STIPPLE_SHARD_PER_DOT=10 and STIPPLE_SHARD_DIR on
-// tmpfs.
+// synthetic counts, one person per dot: 309 million dots, zooms 0–14, cut
+// into 16 parts at split zoom 8) on a 2-core machine with the tiles on its
+// ext4 disk (BENCHMARKS.md, "Shard parts at zoom 14"): a least-squares fit
+// of the CPU time (user + sys) of the 16 parts to their drawn disc
+// dot-zooms and tiles, with the sampling rate fixed to the placing rate
+// stipple bench measures and a fixed cost of one second a part (the parts
+// of a balanced cut do the same mix of work, so the fit cannot separate
+// those three). A tile file on that disk costs 23 µs (stipple plan
+// --probe); the rest of a tile's 80 µs is compositing, encoding and the
+// work of the zooms' tile walk. Rerun: the 16 parts with /usr/bin/time,
+// then fit as BENCHMARKS.md says. Measure FileNs where a job's tiles go
+// (plan --probe): a network folder or a bucket costs far more per file.
 var MeasuredRates = Rates{
-	Source:         "the national benchmark, 2 cores, tiles on tmpfs (BENCHMARKS.md)",
+	Source:         "the national benchmark at zoom 14, 2 cores, tiles on ext4 (BENCHMARKS.md)",
 	SampleNsPerDot: 450,
 	CountNsPerDot:  10,
-	DiscNsPerDot:   580,
-	TileNs:         0.123e6,
-	// sink.Dir.Put of a 4 KiB tile on the ext4 virtual disk of the same
-	// machines less the same on tmpfs: 0.36–1.1 ms over three rounds at
-	// load 6–23 (BenchmarkTileFiles, BENCHMARKS.md "Tile files"); a part's
-	// own writes overlap its drawing, so a figure from the lower half.
-	FileNs: 0.6e6,
+	DiscNsPerDot:   390,
+	TileNs:         57e3,
+	// sink.Dir.PutFresh of a 2 KiB file on the ext4 disk of the same
+	// machine, 64 files a folder (ProbeFiles through stipple plan --probe).
+	FileNs: 23e3,
 	// Fitted on the demo, one state and the national map (BENCHMARKS.md,
 	// "Size estimates"): total bytes of each zoom against its predicted
 	// inked pixels (inkedPixels).

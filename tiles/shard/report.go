@@ -102,32 +102,51 @@ func WriteReport(ctx context.Context, out sink.Sink, r *Report, s *Summary) erro
 // ReadReport loads shard i's report and summary; ok is false when the
 // shard has not finished (no report, or the report of an older format).
 func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Summary, ok bool, err error) {
-	j, err := out.Get(ctx, ReportPath(i, n))
-	if errors.Is(err, sink.ErrNotExist) {
-		return nil, nil, false, nil
+	r, ok, err = readReport(ctx, out, i, n)
+	if !ok || err != nil {
+		return nil, nil, ok, err
 	}
+	s, err = readSummary(ctx, out, i, n)
 	if err != nil {
 		return nil, nil, false, err
+	}
+	return r, s, true, nil
+}
+
+// readReport loads shard i's report; ok is false when the shard has not
+// finished (no report, or the report of an older format).
+func readReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, ok bool, err error) {
+	j, err := out.Get(ctx, ReportPath(i, n))
+	if errors.Is(err, sink.ErrNotExist) {
+		return nil, false, nil
+	}
+	if err != nil {
+		return nil, false, err
 	}
 	r = &Report{}
 	if err := json.Unmarshal(j, r); err == nil && r.Format != ReportFormat && strings.HasPrefix(r.Format, "stipple-shard/") {
-		return nil, nil, false, nil // an older stipple's report: the shard is to be redone
+		return nil, false, nil // an older stipple's report: the shard is to be redone
 	}
 	if err := json.Unmarshal(j, r); err != nil || r.Format != ReportFormat {
-		return nil, nil, false, fmt.Errorf("shard: %s/%s: not a shard report (%v)", out, ReportPath(i, n), err)
+		return nil, false, fmt.Errorf("shard: %s/%s: not a shard report (%v)", out, ReportPath(i, n), err)
 	}
 	if r.Shard != i || r.Shards != n {
-		return nil, nil, false, fmt.Errorf("shard: %s/%s is the report of shard %d/%d", out, ReportPath(i, n), r.Shard, r.Shards)
+		return nil, false, fmt.Errorf("shard: %s/%s is the report of shard %d/%d", out, ReportPath(i, n), r.Shard, r.Shards)
 	}
+	return r, true, nil
+}
+
+// readSummary loads shard i's summary.
+func readSummary(ctx context.Context, out sink.Sink, i, n int) (*Summary, error) {
 	b, err := out.Get(ctx, SummaryPath(i, n))
 	if err != nil {
-		return nil, nil, false, err
+		return nil, err
 	}
-	s = &Summary{}
+	s := &Summary{}
 	if err := s.UnmarshalBinary(b); err != nil {
-		return nil, nil, false, fmt.Errorf("%s/%s: %w", out, SummaryPath(i, n), err)
+		return nil, fmt.Errorf("%s/%s: %w", out, SummaryPath(i, n), err)
 	}
-	return r, s, true, nil
+	return s, nil
 }
 
 // Collect reads the reports of all n shards, checks that they belong to
@@ -136,10 +155,10 @@ func ReadReport(ctx context.Context, out sink.Sink, i, n int) (r *Report, s *Sum
 func Collect(ctx context.Context, out sink.Sink, l *Layout, look string) ([]*Report, *Summary, error) {
 	n := l.Shards
 	var reps []*Report
-	var sums []*Summary
 	var missing []string
+	total := 0
 	for i := 0; i < n; i++ {
-		r, s, ok, err := ReadReport(ctx, out, i, n)
+		r, ok, err := readReport(ctx, out, i, n)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -148,21 +167,33 @@ func Collect(ctx context.Context, out sink.Sink, l *Layout, look string) ([]*Rep
 			continue
 		}
 		if r.Layout != l.Fingerprint() {
-			return nil, nil, fmt.Errorf("shard: shard %d/%d was rendered with another layout (%s, here %s): the input or the map's tile settings changed; rerun it", i, n, r.Layout, l.Fingerprint())
+			return nil, nil, fmt.Errorf("shard: shard %d/%d was rendered with another layout (%s, here %s): the input, the map's tile settings or the --rates file changed; rerun it", i, n, r.Layout, l.Fingerprint())
 		}
 		if r.Look != look {
 			return nil, nil, fmt.Errorf("shard: shard %d/%d was rendered with another look or dots (fingerprint %.12s…, here %.12s…); rerun it", i, n, r.Look, look)
 		}
 		reps = append(reps, r)
-		sums = append(sums, s)
+		total += max(r.SummaryCells, 0)
 	}
 	if len(missing) > 0 {
 		return nil, nil, fmt.Errorf("shard: %d of %d shards have not finished (no report in %s/%s): %s", len(missing), n, out, ReportDir, strings.Join(missing, " "))
 	}
-	merged, err := Merge(sums...)
-	if err != nil {
-		return nil, nil, err
+	// One summary in memory at a time besides the merged one, which is
+	// sized once from the reports' cell counts: the parts' summaries
+	// together are as large as the merged one, and the final step's
+	// memory stays near that (issue #19's 2.9 GB came from holding all of
+	// them while merging into growing slices).
+	m := newMerger(total)
+	for i := 0; i < n; i++ {
+		s, err := readSummary(ctx, out, i, n)
+		if err != nil {
+			return nil, nil, err
+		}
+		if err := m.add(s); err != nil {
+			return nil, nil, err
+		}
 	}
+	merged := m.out
 	if l.Split > l.MinZoom && merged.Level != l.Level() && len(merged.Keys) > 0 {
 		return nil, nil, fmt.Errorf("shard: summaries of level %d; the layout needs %d", merged.Level, l.Level())
 	}

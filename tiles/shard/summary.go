@@ -4,7 +4,6 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"slices"
 	"sort"
 
 	"github.com/stipple-maps/stipple/tiles/dotstore"
@@ -77,39 +76,77 @@ func (s *Summary) Dots() uint64 {
 
 // Merge adds summaries of one level together.
 func Merge(parts ...*Summary) (*Summary, error) {
-	out := &Summary{}
-	if len(parts) == 0 {
-		return out, nil
-	}
-	out.Level = parts[0].Level
-	type kc struct{ k, c uint64 }
-	var all []kc
+	total := 0
 	for _, p := range parts {
-		if p.Level != out.Level {
-			return nil, fmt.Errorf("shard: summaries of levels %d and %d cannot be merged", out.Level, p.Level)
+		total += len(p.Keys)
+	}
+	m := newMerger(total)
+	for _, p := range parts {
+		if err := m.add(p); err != nil {
+			return nil, err
 		}
+	}
+	return m.out, nil
+}
+
+// merger adds sorted summaries into one, in as little memory as it can:
+// the parts of a layout hold disjoint runs of keys, so added in shard
+// order each one is appended to slices sized once for all of them; a part
+// whose keys interleave with those before it is merged into new slices.
+type merger struct {
+	out   *Summary
+	level bool // out.Level is set
+}
+
+// newMerger makes a merger for summaries of about total entries.
+func newMerger(total int) *merger {
+	return &merger{out: &Summary{Keys: make([]uint64, 0, total), Counts: make([]uint64, 0, total)}}
+}
+
+// add merges p (its keys ascending) into the merger's summary.
+func (m *merger) add(p *Summary) error {
+	o := m.out
+	if !m.level {
+		o.Level, m.level = p.Level, true
+	} else if p.Level != o.Level {
+		return fmt.Errorf("shard: summaries of levels %d and %d cannot be merged", o.Level, p.Level)
+	}
+	if len(p.Keys) == 0 {
+		return nil
+	}
+	if n := len(o.Keys); n == 0 || p.Keys[0] > o.Keys[n-1] {
 		for i, k := range p.Keys {
-			all = append(all, kc{k, p.Counts[i]})
+			if n := len(o.Keys); n > 0 && o.Keys[n-1] == k {
+				o.Counts[n-1] += p.Counts[i]
+				continue
+			}
+			o.Keys = append(o.Keys, k)
+			o.Counts = append(o.Counts, p.Counts[i])
+		}
+		return nil
+	}
+	keys := make([]uint64, 0, max(cap(o.Keys), len(o.Keys)+len(p.Keys)))
+	counts := make([]uint64, 0, cap(keys))
+	push := func(k, c uint64) {
+		if n := len(keys); n > 0 && keys[n-1] == k {
+			counts[n-1] += c
+			return
+		}
+		keys = append(keys, k)
+		counts = append(counts, c)
+	}
+	a, b := 0, 0
+	for a < len(o.Keys) || b < len(p.Keys) {
+		if b == len(p.Keys) || (a < len(o.Keys) && o.Keys[a] <= p.Keys[b]) {
+			push(o.Keys[a], o.Counts[a])
+			a++
+		} else {
+			push(p.Keys[b], p.Counts[b])
+			b++
 		}
 	}
-	slices.SortStableFunc(all, func(a, b kc) int {
-		switch {
-		case a.k < b.k:
-			return -1
-		case a.k > b.k:
-			return 1
-		}
-		return 0
-	})
-	for _, e := range all {
-		if n := len(out.Keys); n > 0 && out.Keys[n-1] == e.k {
-			out.Counts[n-1] += e.c
-			continue
-		}
-		out.Keys = append(out.Keys, e.k)
-		out.Counts = append(out.Counts, e.c)
-	}
-	return out, nil
+	o.Keys, o.Counts = keys, counts
+	return nil
 }
 
 const summaryMagic = "STIPSUM1"
