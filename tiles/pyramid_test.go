@@ -389,6 +389,11 @@ func TestResumeRewritesPartWrittenTiles(t *testing.T) {
 	if err := man.save(dir); err != nil {
 		t.Fatal(err)
 	}
+	// A kill while the manifest was being saved leaves its temporary file.
+	stale := filepath.Join(dir, StateDir, "."+manifestName+".2170266531.tmp")
+	if err := os.WriteFile(stale, data[:len(data)/2], 0o644); err != nil {
+		t.Fatal(err)
+	}
 	o := opt
 	o.Dir = dir
 	st, err := Write(context.Background(), src, o)
@@ -397,6 +402,9 @@ func TestResumeRewritesPartWrittenTiles(t *testing.T) {
 	}
 	if st.Kept == 0 {
 		t.Error("the resumed run kept no tiles")
+	}
+	if _, err := os.Stat(stale); !os.IsNotExist(err) {
+		t.Errorf("the resumed run left the killed run's %s (%v)", filepath.Base(stale), err)
 	}
 	compareTrees(t, ref, dir)
 }

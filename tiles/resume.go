@@ -46,6 +46,12 @@ func manifestPath(dir string) string { return filepath.Join(dir, StateDir, manif
 // tiles, never those of the other parts sharing the output).
 func openManifest(ctx context.Context, dir string, out sink.Sink, fp string, keep func(z, x, y int) bool) (man *manifest, resuming bool, err error) {
 	man = &manifest{Fingerprint: fp, Done: map[string]ZoomStats{}}
+	// A run killed while it saved the manifest leaves WriteFileAtomic's
+	// temporary file; this run is the only writer of this manifest.
+	stale, _ := filepath.Glob(filepath.Join(dir, StateDir, "."+manifestName+".*.tmp"))
+	for _, f := range stale {
+		os.Remove(f)
+	}
 	data, err := os.ReadFile(manifestPath(dir))
 	if err == nil {
 		var old manifest
