@@ -19,6 +19,7 @@ import (
 
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles/dotstore"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 var testColors = []color.NRGBA{{230, 159, 0, 255}, {86, 180, 233, 255}, {0, 158, 115, 255}}
@@ -389,8 +390,9 @@ func TestResumeRewritesPartWrittenTiles(t *testing.T) {
 	if err := man.save(dir); err != nil {
 		t.Fatal(err)
 	}
-	// A kill while the manifest was being saved leaves its temporary file.
-	stale := filepath.Join(dir, StateDir, "."+manifestName+".2170266531.tmp")
+	// A kill while the manifest was being saved leaves its temporary file
+	// (named as WriteFileAtomic names it, for a process that is gone).
+	stale := filepath.Join(dir, StateDir, sink.TempToken("gone-host", 4242)+"7."+manifestName)
 	if err := os.WriteFile(stale, data[:len(data)/2], 0o644); err != nil {
 		t.Fatal(err)
 	}

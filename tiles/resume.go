@@ -48,9 +48,11 @@ func openManifest(ctx context.Context, dir string, out sink.Sink, fp string, kee
 	man = &manifest{Fingerprint: fp, Done: map[string]ZoomStats{}}
 	// A run killed while it saved the manifest leaves WriteFileAtomic's
 	// temporary file; this run is the only writer of this manifest.
-	stale, _ := filepath.Glob(filepath.Join(dir, StateDir, "."+manifestName+".*.tmp"))
+	stale, _ := filepath.Glob(filepath.Join(dir, StateDir, "*."+manifestName))
 	for _, f := range stale {
-		os.Remove(f)
+		if sink.IsTemp(filepath.Base(f)) {
+			os.Remove(f)
+		}
 	}
 	data, err := os.ReadFile(manifestPath(dir))
 	if err == nil {
@@ -177,7 +179,18 @@ func WriteFileAtomic(path string, data []byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
-	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	// The temporary name carries this process's token: a run killed
+	// between the create and the rename leaves a file that the next run
+	// taking over the folder removes (sink.Dir.SweepTemp) and that no
+	// listing or publish step counts as output (sink.IsTemp).
+	var f *os.File
+	var err error
+	for try := 0; ; try++ {
+		f, err = os.OpenFile(sink.TempPath(dir, filepath.Base(path)), os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		if err == nil || !os.IsExist(err) || try == 9 {
+			break
+		}
+	}
 	if err != nil {
 		return fmt.Errorf("tiles: %w", err)
 	}
@@ -185,9 +198,6 @@ func WriteFileAtomic(path string, data []byte) error {
 	_, werr := f.Write(data)
 	if cerr := f.Close(); werr == nil {
 		werr = cerr
-	}
-	if werr == nil {
-		werr = os.Chmod(tmp, 0o644) // CreateTemp makes 0600 files; these are served
 	}
 	if werr == nil {
 		werr = os.Rename(tmp, path)

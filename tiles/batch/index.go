@@ -12,6 +12,7 @@ import (
 
 	"github.com/stipple-maps/stipple/render"
 	"github.com/stipple-maps/stipple/tiles"
+	"github.com/stipple-maps/stipple/tiles/sink"
 )
 
 //go:embed assets/index.html assets/index.css
@@ -41,6 +42,9 @@ type Summary struct {
 // summary tables (summary.csv, summary.json) into dir, one row or card per
 // extent in batch-file order, failed ones with their reason.
 func WriteIndex(dir string, f *File, rep *Report) error {
+	// A batch killed while it wrote these pages may have left a
+	// temporary file beside them; no lock guards this folder.
+	sink.SweepGoneTemp(dir)
 	m := f.Map
 	sum := Summary{Format: "stipple-batch/1", Title: m.Title, Map: f.MapPath, Seed: m.Seed, Extents: rep.Results, Mixing: rep.Mixing}
 	for _, c := range m.Categories {

@@ -70,6 +70,48 @@ func TempToken(host string, pid int) string {
 	return fmt.Sprintf("%s%08x-%d-", tempPrefix, h, pid)
 }
 
+// TempPath returns a new temporary file name in folder dir for a file that
+// will be renamed to base: it begins with this process's token (so
+// SweepTemp removes it once the process is gone and IsTemp keeps it out of
+// listings) and ends with base (so its owner can tell it apart).
+func TempPath(dir, base string) string {
+	return filepath.Join(dir, tempToken+strconv.FormatInt(tempSeq.Add(1), 36)+"."+base)
+}
+
+// SweepGoneTemp removes, from folder dir alone (not its subfolders), the
+// temporary files of processes on this host that are no longer running,
+// and returns how many it removed. It is for folders no lock guards, such
+// as a batch's top folder, where a run killed between writing and renaming
+// an index page would otherwise leave the half-written file for good.
+// Files of running processes and of other hosts are left alone.
+func SweepGoneTemp(dir string) int {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return 0
+	}
+	host := hostName()
+	n := 0
+	for _, e := range entries {
+		name := e.Name()
+		if e.IsDir() || !IsTemp(name) {
+			continue
+		}
+		// .put-<host hash>-<pid>-…: the token TempToken makes.
+		var hash uint32
+		var pid int
+		if _, err := fmt.Sscanf(name[len(tempPrefix):], "%08x-%d-", &hash, &pid); err != nil || pid <= 0 {
+			continue
+		}
+		if !strings.HasPrefix(name, TempToken(host, pid)) || pid == os.Getpid() || running(pid) {
+			continue
+		}
+		if os.Remove(filepath.Join(dir, name)) == nil {
+			n++
+		}
+	}
+	return n
+}
+
 // IsTemp reports whether a file name (the last element of a path) is a
 // temporary file of an unfinished Put.
 func IsTemp(name string) bool { return strings.HasPrefix(name, tempPrefix) }
