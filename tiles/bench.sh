@@ -57,6 +57,7 @@ if [ ${#bins[@]} -eq 0 ]; then
 fi
 rows="$work/rows"
 : >"$rows"
+: >"$work/notes"
 
 settle=${BENCH_SETTLE:-300}
 removed=0 # when an output was last removed (seconds since the epoch)
@@ -130,6 +131,7 @@ shardset() {
 		ts=$(echo "$ts + $sys" | bc)
 		[ $i -lt $n ] && walls+=("$wall")
 	done
+	printf '%s, %s parts, wall seconds of each: %s\n' "$(basename "$bin")" "$n" "${walls[*]}" >>"$work/notes"
 	local stats
 	stats=$(printf '%s\n' "${walls[@]}" | awk '{s += $1; if ($1 > m) m = $1} END {printf "parts: mean %.1f s, largest %.1f s (%.2f); final %.1f s", s / NR, m, m / (s / NR), '"$wall"'}')
 	printf '| %s | %s | %s | %.0f s (%.0f + %.0f) | %.0f%% | %d MiB (final) | %s |\n' \
@@ -192,6 +194,10 @@ table=$(
 	echo "|---|---|---|---|---|---|---|"
 	cat "$rows"
 	echo
+	if [ -s "$work/notes" ]; then
+		sed 's/^/- /' "$work/notes"
+		echo
+	fi
 	echo "Machine: $(nproc) cores, $(grep -m1 'model name' /proc/cpuinfo | cut -d: -f2 | sed 's/^ //'), $(date -u +%Y-%m-%d); rerun: bash tiles/bench.sh$([ $national = 1 ] && echo ' --national')$([ $deep = 1 ] && echo ' --deep')$([ "$shards" -gt 0 ] && echo " --shards $shards")$([ $small = 0 ] && echo ' --no-small') --runs $runs."
 )
 if [ $write = 1 ]; then
