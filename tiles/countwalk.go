@@ -91,7 +91,7 @@ func (cw *countWalk) node(r *tileRenderer, z, x, y int, anc bool) (*render.Canva
 		return nil, nil
 	}
 	keys := srcTile(cw.w.src, z, x, y)
-	cw.w.noteRead(searchCost)
+	cw.w.noteRead(nil)
 	if len(keys) == 0 {
 		return nil, nil
 	}

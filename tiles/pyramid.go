@@ -97,11 +97,16 @@ func asIndexed(src Source) indexed {
 	return dotstore.FromSorted(src.Keys())
 }
 
-// releaser is a Source that can drop pages it has read (a mapped store).
-type releaser interface{ Release() }
+// releaser is a Source that can drop pages it has read (a mapped store)
+// and estimate how much of it reads have made resident.
+type releaser interface {
+	Release()
+	Resident() int64
+	Touched(keys []uint64)
+}
 
-// releaseEvery is how many bytes of keys are read between Release calls:
-// resident memory of a mapped store stays within about this much.
+// releaseEvery is how much of a mapped store may be resident before it is
+// released: resident memory of the store stays within about this much.
 const releaseEvery = 128 << 20
 
 // pass is one kind of tile: 1× or @2x.
@@ -201,7 +206,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 				cw.write[z] = true
 				cw.zooms = append(cw.zooms, zk)
 				w.src.EachTile(z, func(x, y int, _ []uint64) {
-					w.noteRead(searchCost)
+					w.noteRead(nil)
 					if w.keep(z, x, y) {
 						w.st.Planned++
 					}
@@ -211,7 +216,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 					if w.keep(z, x, y) {
 						w.st.Planned++
 					}
-					w.noteRead(searchCost)
+					w.noteRead(nil)
 				})
 				disc = append(disc, discZoom{p, z})
 			}
@@ -326,7 +331,7 @@ func Write(ctx context.Context, src Source, opt Options) (Stats, error) {
 		cw.queueJobs(queue)
 	}
 	for _, d := range disc {
-		eachCandidate(w.src, d.z, func() { w.noteRead(searchCost) }, func(x, y, n int) {
+		eachCandidate(w.src, d.z, func() { w.noteRead(nil) }, func(x, y, n int) {
 			if w.keep(d.z, x, y) {
 				queue(job{p: d.p, z: d.z, x: x, y: y, n: n})
 			}
@@ -359,7 +364,6 @@ type writer struct {
 	opt       Options
 	src       indexed
 	rel       releaser
-	read      atomic.Int64
 	man       *manifest
 	resuming  bool
 	mu        sync.Mutex
@@ -501,14 +505,21 @@ func (w *writer) account(j job, size int64, kept bool) error {
 	return nil
 }
 
-// noteRead counts key bytes read and lets a mapped store drop its pages now
-// and then.
-func (w *writer) noteRead(n int) {
+// noteRead tells a mapped store that keys (none after a bare search) have
+// been read, and releases its pages once the blocks that searches and
+// reads have reached since the last release could hold releaseEvery bytes
+// (dotstore.Store.Resident). Until 2026-12-05 every search was charged
+// 128 KiB and every key read 8 bytes, whether or not its pages were
+// already resident; at zoom 14, where neighbouring tiles share pages,
+// that released the whole mapping every thousand searches and faulted
+// the same pages back (madvise and page faults: 2% of a national z0–14
+// run's CPU time).
+func (w *writer) noteRead(keys []uint64) {
 	if w.rel == nil {
 		return
 	}
-	if w.read.Add(int64(8*n)) > releaseEvery {
-		w.read.Store(0)
+	w.rel.Touched(keys)
+	if w.rel.Resident() > releaseEvery {
 		w.rel.Release()
 	}
 }
@@ -622,12 +633,12 @@ func (r *tileRenderer) render(j job) *render.Tile {
 // countKeys fills a count canvas for tile (z, x, y) of 2^shift pixels from
 // the tile's keys all: one per dot in the pixel holding its centre.
 func (r *tileRenderer) countKeys(c *render.Canvas, z, x, y, shift int, all []uint64) {
-	r.w.noteRead(searchCost)
+	r.w.noteRead(nil)
 	// Pixel = world coordinate >> s, minus the tile's first pixel.
 	s := dotstore.WorldBits - z - shift
 	ox, oy := x<<shift, y<<shift
 	for keys := range chunks(all) {
-		r.w.noteRead(len(keys))
+		r.w.noteRead(keys)
 		if s >= 0 {
 			for _, k := range keys {
 				wx, wy, cat := dotstore.Split(k)
@@ -680,7 +691,7 @@ func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
 		ox := (nx - dx) * T * render.Sub
 		oy := j.y * T * render.Sub
 		for keys := range chunks(all) {
-			r.w.noteRead(len(keys))
+			r.w.noteRead(keys)
 			for _, k := range keys {
 				wx, wy, cat := dotstore.Split(k)
 				c.AddStamp(cat, subPixel(wx, j.z, j.p.shift)-ox, subPixel(wy, j.z, j.p.shift)-oy, st)
@@ -695,7 +706,7 @@ func (r *tileRenderer) discs(c *render.Canvas, j job, st *render.Stamp) {
 		for dx := -1; dx <= 1; dx++ {
 			nx := (j.x + dx + n) % n
 			keys := srcTile(r.w.src, j.z, nx, ny)
-			r.w.noteRead(searchCost)
+			r.w.noteRead(nil)
 			if len(keys) == 0 {
 				continue
 			}
@@ -741,11 +752,6 @@ func tileKeys(keys []uint64, z, x, y int) []uint64 {
 	first, last := dotstore.TileRange(z, x, y)
 	return searchRange(keys, first, last)
 }
-
-// searchCost is what one search of the store is charged in keys read: the
-// index confines it to one 32 KiB block, but the kernel maps page-cache
-// folios of up to 64 KiB or more around a touched page.
-const searchCost = 16 << 10
 
 func searchRange(keys []uint64, first, last uint64) []uint64 {
 	i := sort.Search(len(keys), func(i int) bool { return keys[i] >= first })

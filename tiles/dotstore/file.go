@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"sync/atomic"
 	"unsafe"
 )
 
@@ -153,6 +154,7 @@ func Open(path string) (*Store, error) {
 		if err == nil {
 			s.m = m
 			s.keys = unsafe.Slice((*uint64)(unsafe.Pointer(&m.data[headerSize])), n)
+			s.touched = make([]atomic.Uint64, (n>>touchShift)/64+1)
 			s.buildIndex()
 			return s, nil
 		}

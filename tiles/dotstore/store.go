@@ -2,6 +2,8 @@ package dotstore
 
 import (
 	"sort"
+	"sync/atomic"
+	"unsafe"
 )
 
 // Store is a sorted set of dots, held in memory or mapped from a store file
@@ -15,6 +17,37 @@ type Store struct {
 	// file in one small block instead of probing pages all over it: each
 	// page a probe touches becomes resident (with its neighbours).
 	index []uint64
+	// touched marks, for a mapped store, each block of 2^touchShift keys
+	// that a search or a reported read has reached since the last Release, and
+	// resident sums what those blocks may have made resident: what
+	// Resident reports.
+	touched  []atomic.Uint64
+	resident atomic.Int64
+}
+
+// touchShift sets the block of resident accounting: 2^13 keys, 64 KiB of
+// file. A block first reached counts twice its size, touchCost: the
+// kernel maps the page-cache folios around a touched page (fault-around,
+// 64 KiB, not aligned to the keys, which follow the file's header).
+const (
+	touchShift = 13
+	touchCost  = 2 * 8 << touchShift
+)
+
+// touch marks the blocks holding keys[i:j] (the block of i when j ≤ i) as
+// reached.
+func (s *Store) touch(i, j int) {
+	if s.touched == nil || len(s.keys) == 0 {
+		return
+	}
+	i = min(i, len(s.keys)-1)
+	last := min(max(j-1, i), len(s.keys)-1)
+	for b := i >> touchShift; b <= last>>touchShift; b++ {
+		w, bit := &s.touched[b>>6], uint64(1)<<(b&63)
+		if w.Load()&bit == 0 && w.Or(bit)&bit == 0 {
+			s.resident.Add(touchCost)
+		}
+	}
 }
 
 // indexStride is the spacing of the index: 4096 keys, one 32 KiB block.
@@ -46,6 +79,7 @@ func (s *Store) Search(k uint64) int {
 		lo = 0
 	}
 	hi := min(len(s.keys), j*indexStride)
+	s.touch(lo, hi)
 	return lo + sort.Search(hi-lo, func(i int) bool { return s.keys[lo+i] >= k })
 }
 
@@ -171,8 +205,35 @@ func TilesOf(keys []uint64, z int, fn func(x, y int, keys []uint64)) {
 func (s *Store) Release() {
 	if s.m != nil {
 		s.m.release()
+		for i := range s.touched {
+			s.touched[i].Store(0)
+		}
+		s.resident.Store(0)
 	}
 }
+
+// Touched notes that keys, a slice of this store's keys (from Range, Tile,
+// EachTile or Keys), have been read: Resident counts the blocks they lie
+// in. Slices of other memory are ignored.
+func (s *Store) Touched(keys []uint64) {
+	if s.touched == nil || len(keys) == 0 || len(s.keys) == 0 {
+		return
+	}
+	base := uintptr(unsafe.Pointer(unsafe.SliceData(s.keys)))
+	p := uintptr(unsafe.Pointer(unsafe.SliceData(keys)))
+	if p < base || p >= base+uintptr(len(s.keys))*8 {
+		return
+	}
+	i := int((p - base) / 8)
+	s.touch(i, i+len(keys))
+}
+
+// Resident is an upper estimate of the bytes of a mapped store that
+// searches (Search, and Range, Tile and EachTile through it) and the reads
+// reported to Touched have made resident since the last Release: each
+// block of 2^13 keys they reached counts 128 KiB. It is 0 for an
+// in-memory store.
+func (s *Store) Resident() int64 { return s.resident.Load() }
 
 // Close unmaps a mapped store; its key slices must not be used afterwards.
 func (s *Store) Close() error {
