@@ -167,15 +167,7 @@ func TestOpenRejectsBadFiles(t *testing.T) {
 func BenchmarkStoreRange(b *testing.B) {
 	keys := benchKeys(1 << 21)
 	SortKeys(keys, make([]uint64, len(keys)), 2)
-	path := filepath.Join(b.TempDir(), "dots.bin")
-	if err := FromSorted(keys).WriteFile(path); err != nil {
-		b.Fatal(err)
-	}
-	s, err := Open(path)
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer s.Close()
+	s := mappedStore(b, keys)
 	var tl [][2]int
 	s.Tiles(12, func(x, y int) { tl = append(tl, [2]int{x, y}) })
 	b.ReportAllocs()
@@ -214,4 +206,20 @@ func TestSearchMatchesPlainBinarySearch(t *testing.T) {
 			t.Fatalf("n=%d: full range holds %d keys", n, len(got))
 		}
 	}
+}
+
+// mappedStore writes sorted keys to a store file in a temporary folder and
+// opens it (mapped where the platform allows); it is closed when tb ends.
+func mappedStore(tb testing.TB, keys []uint64) *Store {
+	tb.Helper()
+	path := filepath.Join(tb.TempDir(), "dots.bin")
+	if err := FromSorted(keys).WriteFile(path); err != nil {
+		tb.Fatal(err)
+	}
+	s, err := Open(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tb.Cleanup(func() { s.Close() })
+	return s
 }

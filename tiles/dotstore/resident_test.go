@@ -1,7 +1,6 @@
 package dotstore
 
 import (
-	"path/filepath"
 	"slices"
 	"testing"
 )
@@ -16,15 +15,7 @@ func TestResidentCountsBlocksOnce(t *testing.T) {
 	for i := range keys {
 		keys[i] = uint64(i) << CatBits
 	}
-	path := filepath.Join(t.TempDir(), "s.bin")
-	if err := FromSorted(keys).WriteFile(path); err != nil {
-		t.Fatal(err)
-	}
-	s, err := Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer s.Close()
+	s := mappedStore(t, keys)
 	if s.touched == nil {
 		t.Skip("store not mapped on this platform")
 	}

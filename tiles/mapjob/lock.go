@@ -10,7 +10,6 @@ import (
 	"sort"
 	"strconv"
 	"strings"
-	"syscall"
 	"time"
 
 	"github.com/stipple-maps/stipple/tiles"
@@ -85,7 +84,7 @@ func Claim(out string, force bool) (release func(), err error) {
 		}
 		b, _ := os.ReadFile(path)
 		pid, owner, since := parseLock(string(b))
-		if attempt == 0 && owner == host && pid > 0 && !alive(pid) {
+		if attempt == 0 && owner == host && pid > 0 && !sink.Running(pid) {
 			os.Remove(path) // the run that held it is gone
 			dead = pid
 			continue
@@ -107,17 +106,6 @@ func parseLock(s string) (pid int, host, since string) {
 		since = f[2]
 	}
 	return pid, host, since
-}
-
-// alive reports whether process pid exists (signal 0: POSIX kill(2)
-// checks the process without sending anything).
-func alive(pid int) bool {
-	p, err := os.FindProcess(pid)
-	if err != nil {
-		return false
-	}
-	err = p.Signal(syscall.Signal(0))
-	return err == nil || errors.Is(err, syscall.EPERM)
 }
 
 // foreignFiles lists the names in folder dir (top level), sorted; none for

@@ -2,6 +2,7 @@ package sink
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io/fs"
 	"os"
@@ -11,6 +12,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"syscall"
 	"time"
 )
 
@@ -102,7 +104,7 @@ func SweepGoneTemp(dir string) int {
 		if _, err := fmt.Sscanf(name[len(tempPrefix):], "%08x-%d-", &hash, &pid); err != nil || pid <= 0 {
 			continue
 		}
-		if !strings.HasPrefix(name, TempToken(host, pid)) || pid == os.Getpid() || running(pid) {
+		if !strings.HasPrefix(name, TempToken(host, pid)) || pid == os.Getpid() || Running(pid) {
 			continue
 		}
 		if os.Remove(filepath.Join(dir, name)) == nil {
@@ -110,6 +112,19 @@ func SweepGoneTemp(dir string) int {
 		}
 	}
 	return n
+}
+
+// Running reports whether process pid exists on this host (signal 0:
+// POSIX kill(2) checks the process without sending anything; EPERM means
+// it exists). A lock or a temporary file of a process that is not running
+// is nobody's.
+func Running(pid int) bool {
+	p, err := os.FindProcess(pid)
+	if err != nil {
+		return false
+	}
+	err = p.Signal(syscall.Signal(0))
+	return err == nil || errors.Is(err, syscall.EPERM)
 }
 
 // IsTemp reports whether a file name (the last element of a path) is a

@@ -25,7 +25,3 @@ func writeNew(d *Dir, name string, data []byte) error {
 
 // renameFile renames old to new, replacing a file at new.
 func renameFile(old, new string) error { return os.Rename(old, new) }
-
-// running reports whether process pid may exist: without a portable
-// check, every process counts as running and nothing is swept.
-func running(pid int) bool { return true }

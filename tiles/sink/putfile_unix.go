@@ -77,10 +77,3 @@ func renameFile(old, new string) error {
 		return nil
 	}
 }
-
-// running reports whether process pid exists (signal 0: POSIX kill(2)
-// checks the process without sending anything; EPERM means it exists).
-func running(pid int) bool {
-	err := syscall.Kill(pid, 0)
-	return err == nil || err == syscall.EPERM
-}
