@@ -357,19 +357,16 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 		if t != nil {
 			t.dirty[py] = true
 		}
-		cats := c.cats[py*c.W:][:c.W+8]
-		for x0 := 0; x0 < c.W; x0 += 8 {
-			w := binary.LittleEndian.Uint64(cats[x0:])
-			if w == 0 {
+		for x0 := 0; x0 < c.W; x0 += 64 {
+			left := c.inked(py, x0)
+			if left == 0 {
 				continue
 			}
-			left := nonZeroBytes(w)
-			if c.W-x0 < 8 {
-				left &= 1<<(c.W-x0) - 1
-			}
+			var inked uint64 // the pixels of these 64 given ink
 			for left != 0 {
-				px := x0 + bits.TrailingZeros64(left)
+				i := bits.TrailingZeros64(left)
 				left &= left - 1
+				px := x0 + i
 				p := py*c.W + px
 				var sum uint64
 				var rgb uint32 // packed colour, alpha byte zero
@@ -384,15 +381,12 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 						c.cats[p] = 0
 					}
 				} else {
-					if pc == 0 {
-						continue
-					}
 					// The categories whose bits are set: below 7 each
 					// has coverage (no bit is set without; were one,
 					// the weighted mean below would give the same
 					// colour), from 7 on each may.
 					var r, g, b uint64
-					inked := uint64(pc & 0x7f) // bit k: category k has coverage
+					has := uint64(pc & 0x7f) // bit k: category k has coverage
 					add := func(k int) uint64 {
 						i := k*c.plane + p
 						w := uint64(c.cov[i])
@@ -411,7 +405,7 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 					if pc&0x80 != 0 {
 						for k := 7; k < n; k++ {
 							w := add(k)
-							inked |= (w | -w) >> 63 << k
+							has |= (w | -w) >> 63 << k
 						}
 					}
 					if drain {
@@ -420,24 +414,26 @@ func (c *Canvas) compositeInto(colors []color.NRGBA, gain uint64, pix []uint8, s
 					if sum == 0 {
 						continue
 					}
-					rgb = solid[bits.TrailingZeros64(inked)]
-					if inked&(inked-1) != 0 {
+					rgb = solid[bits.TrailingZeros64(has)]
+					if has&(has-1) != 0 {
 						rgb = uint32((r+sum/2)/sum)<<24 | uint32((g+sum/2)/sum)<<16 | uint32((b+sum/2)/sum)<<8
 					}
 				}
-				var a uint64 = 255
-				if sum < sat {
-					a = (sum*gain*255 + full/2) / full
-				}
+				// From sat on the pixel is opaque; min, not a branch,
+				// as edges and centres of dots alternate.
+				a := min((min(sum, sat)*gain*255+full/2)/full, 255)
 				if a == 0 {
 					continue
 				}
 				col := rgb | uint32(a)
-				o := row[4*px : 4*px+4 : 4*px+4]
-				o[0], o[1], o[2], o[3] = uint8(col>>24), uint8(col>>16), uint8(col>>8), uint8(col)
-				if t != nil {
-					t.add(py, px, col)
+				binary.BigEndian.PutUint32(row[4*px:], col)
+				inked |= 1 << i
+				if t != nil && t.paletted {
+					t.index(py, px, col)
 				}
+			}
+			if t != nil && inked != 0 {
+				t.inkWord(py, x0, inked)
 			}
 		}
 		if drain {

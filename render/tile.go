@@ -3,6 +3,7 @@ package render
 import (
 	"image"
 	"image/color"
+	"math/bits"
 )
 
 // Tile is a composited image laid out for the PNG encoder: its NRGBA rows
@@ -67,13 +68,16 @@ func (t *Tile) clearRow(y int) {
 	clear(t.ink[y*t.wpr : (y+1)*t.wpr])
 }
 
-// add records the colour of pixel (x, y), which is not transparent.
-func (t *Tile) add(y, x int, col uint32) {
-	t.inked++
-	t.ink[y*t.wpr+x>>6] |= 1 << (x & 63)
-	if !t.paletted {
-		return
-	}
+// inkWord records the pixels of row y from x0 (a multiple of 64) on whose
+// bits are set in m (bit i: pixel x0+i) as inked.
+func (t *Tile) inkWord(y, x0 int, m uint64) {
+	t.inked += bits.OnesCount64(m)
+	t.ink[y*t.wpr+x0>>6] |= m
+}
+
+// index records the palette index of pixel (x, y), of colour col (not
+// transparent), while the tile is paletted.
+func (t *Tile) index(y, x int, col uint32) {
 	i := y*(1+t.w) + 1 + x
 	if col == t.last {
 		t.ind[i] = t.lastIdx
