@@ -85,12 +85,16 @@ func NewCanvas(w, h, ncat int) *Canvas {
 // row's end are zero. It reads cats eight pixels at a time.
 func (c *Canvas) inked(y, x int) uint64 {
 	b := c.cats[y*c.W+x:][:64]
-	var m uint64
-	for j := 0; j < 8; j++ {
-		if w := binary.LittleEndian.Uint64(b[8*j:]); w != 0 {
-			m |= nonZeroBytes(w) << (8 * j)
-		}
-	}
+	// No branch per word: on a dot tile, words with and without ink
+	// alternate.
+	m := nonZeroBytes(binary.LittleEndian.Uint64(b[0:])) |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[8:]))<<8 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[16:]))<<16 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[24:]))<<24 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[32:]))<<32 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[40:]))<<40 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[48:]))<<48 |
+		nonZeroBytes(binary.LittleEndian.Uint64(b[56:]))<<56
 	if n := c.W - x; n < 64 {
 		m &= 1<<n - 1
 	}
