@@ -8,6 +8,7 @@ import (
 	"hash/adler32"
 	"io"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -386,5 +387,35 @@ func TestZlibRunsRoundTrip(t *testing.T) {
 	z := e.ZlibRuns(nil, data, []uint32{uint32(len(data) - 10), 10})
 	if got := inflate(t, z); !bytes.Equal(got, data) {
 		t.Fatal("round trip with zeros among literals differs")
+	}
+}
+
+// TestSortKeysMatchesSort: the radix sort of build orders keys as a plain
+// comparison sort does, for counts from one byte to four.
+func TestSortKeysMatchesSort(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 7))
+	for _, top := range []uint64{0, 1, 200, 1 << 12, 1 << 20, 1<<32 - 1} {
+		for round := 0; round < 20; round++ {
+			var c code
+			for s := 0; s < numLitLen; s++ {
+				if rng.IntN(3) == 0 {
+					continue
+				}
+				f := uint64(0)
+				if top > 0 {
+					f = rng.Uint64N(top + 1)
+				}
+				c.keys = append(c.keys, f<<16|uint64(s))
+			}
+			if len(c.keys) == 0 {
+				continue
+			}
+			want := slices.Clone(c.keys)
+			slices.Sort(want)
+			c.sortKeys()
+			if !slices.Equal(c.keys, want) {
+				t.Fatalf("top %d: sortKeys gave %v, want %v", top, c.keys[:8], want[:8])
+			}
+		}
 	}
 }

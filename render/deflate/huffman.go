@@ -2,7 +2,6 @@ package deflate
 
 import (
 	"math/bits"
-	"slices"
 )
 
 // code is a canonical Huffman code (RFC 1951 §3.2.2) for one alphabet.
@@ -12,6 +11,7 @@ type code struct {
 	len  [numLitLen]uint8
 	code [numLitLen]uint32 // bit-reversed, ready to write LSB first
 	keys []uint64          // scratch: count<<16 | symbol, sorted
+	tmp  []uint64          // scratch for sortKeys
 	a    []int             // scratch for lengths
 }
 
@@ -39,7 +39,7 @@ func (c *code) build(freq []uint32, maxBits int) {
 			last = max(last, s)
 		}
 	}
-	slices.Sort(c.keys)
+	c.sortKeys()
 	c.n = last + 1
 	clear(c.len[:len(freq)])
 
@@ -95,6 +95,42 @@ func (c *code) build(freq []uint32, maxBits int) {
 			c.code[s] = uint32(bits.Reverse16(uint16(next[l])) >> (16 - l))
 			next[l]++
 		}
+	}
+}
+
+// sortKeys sorts c.keys, which are in increasing symbol order, by count
+// and then symbol: a stable radix sort on the count a byte a pass, with as
+// many passes as the largest count has bytes (one or two on a tile; a
+// comparison sort of 286 keys cost more than the rest of build).
+func (c *code) sortKeys() {
+	keys := c.keys
+	if cap(c.tmp) < len(keys) {
+		c.tmp = make([]uint64, len(keys))
+	}
+	tmp := c.tmp[:len(keys)]
+	var most uint64
+	for _, k := range keys {
+		most |= k
+	}
+	for shift := uint(16); most>>shift != 0; shift += 8 {
+		var at [256]int
+		for _, k := range keys {
+			at[k>>shift&0xff]++
+		}
+		sum := 0
+		for d, n := range at {
+			at[d] = sum
+			sum += n
+		}
+		for _, k := range keys {
+			d := k >> shift & 0xff
+			tmp[at[d]] = k
+			at[d]++
+		}
+		keys, tmp = tmp, keys
+	}
+	if &keys[0] != &c.keys[0] {
+		copy(c.keys, keys)
 	}
 }
 
