@@ -129,9 +129,8 @@ func (c *code) sortKeys() {
 		}
 		keys, tmp = tmp, keys
 	}
-	if &keys[0] != &c.keys[0] {
-		copy(c.keys, keys)
-	}
+	// Both are scratch: the sorted one becomes keys, with no copy back.
+	c.keys, c.tmp = keys, tmp
 }
 
 // minRedundancy replaces the non-decreasing counts in a (at least two) by
